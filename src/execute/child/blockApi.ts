@@ -1,0 +1,295 @@
+// The block API: the globals a calculation block calls (inputs, result, table, criterion, caution, chart, figure, solver).
+import type { InputData } from '../protocol.ts';
+import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../records.ts';
+import { DEFAULT_DIGITS, formatQuantity } from '../../report/format.ts';
+import { UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
+import { summarise } from './summarise.ts';
+
+/** A thrown block-API misuse: the message names what and the hint says how to fix it. */
+export class BlockApiError extends Error {
+  readonly code: string;
+  readonly hint: string;
+  constructor(code: string, message: string, hint: string) {
+    super(message);
+    this.name = 'BlockApiError';
+    this.code = code;
+    this.hint = hint;
+  }
+}
+
+/** A figure a reader sees: a value with its unit and significant figures; `{{ }}` shows it formatted. */
+export class Figure {
+  readonly value: ScalarValue;
+  readonly unit: string;
+  readonly digits: number;
+  constructor(value: ScalarValue, unit: string, digits: number) {
+    this.value = value;
+    this.unit = unit;
+    this.digits = digits;
+  }
+  valueOf(): ScalarValue {
+    return this.value;
+  }
+  toString(): string {
+    return formatQuantity(this.value, this.unit, this.digits);
+  }
+}
+
+/** A study input inside a block: read it in the unit you need with `.in('kV')`, or `.si` for SI. */
+export class InputValue {
+  readonly name: string;
+  /** The number as given, in `unit`. */
+  readonly value: number;
+  readonly unit: string;
+  readonly si: number;
+  readonly description: string;
+  constructor(data: InputData) {
+    this.name = data.name;
+    this.value = data.value;
+    this.unit = data.unit;
+    this.si = data.si;
+    this.description = data.description ?? '';
+    Object.freeze(this);
+  }
+  in(unit: string): number {
+    try {
+      return convertQuantity(this.value, this.unit, unit);
+    } catch (error) {
+      const problem = error as UnitProblem;
+      throw new BlockApiError('input-conversion', `inputs.${this.name} (${this.toString()}): ${problem.message}`, problem.hint ?? 'ask for a unit of the same kind');
+    }
+  }
+  toString(): string {
+    return formatQuantity(this.value, this.unit, 6);
+  }
+}
+
+export interface ResultOptions {
+  unit?: string;
+  digits?: number;
+  note?: string;
+  tolerance?: number;
+}
+
+export interface CriterionLimits {
+  min?: number;
+  max?: number;
+  unit?: string;
+  digits?: number;
+  note?: string;
+}
+
+export interface TableColumnOption {
+  key: string;
+  label?: string;
+  unit?: string;
+  digits?: number;
+}
+
+export interface TableOptions {
+  caption?: string;
+  columns?: TableColumnOption[];
+}
+
+export interface ChartOptions {
+  caption: string;
+}
+
+export interface Recorder {
+  record(record: BlockRecord): void;
+  /** Where in the calling block the API was called from. */
+  callerPosition(): BlockPosition | undefined;
+}
+
+function requireName(kind: string, name: unknown): string {
+  if (typeof name !== 'string' || name.trim() === '') {
+    throw new BlockApiError(`${kind}-name`, `${kind}() needs a name as its first argument, got ${describe(name)}`, `write e.g. ${kind}('receivingEndVoltage', ...)`);
+  }
+  return name;
+}
+
+function requireUnit(kind: string, name: string, unit: unknown): string {
+  if (unit === undefined) return '';
+  if (typeof unit !== 'string') throw new BlockApiError('unit', `${kind} "${name}": unit must be text, got ${describe(unit)}`, 'write e.g. { unit: "Mvar" }');
+  const problem = unitProblem(unit);
+  if (problem) throw new BlockApiError('unit', `${kind} "${name}": unknown unit "${unit}" (${problem})`, 'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %');
+  return unit;
+}
+
+function requireDigits(kind: string, name: string, digits: unknown): number {
+  if (digits === undefined) return DEFAULT_DIGITS;
+  if (typeof digits !== 'number' || !Number.isInteger(digits) || digits < 1 || digits > 15) {
+    throw new BlockApiError('digits', `${kind} "${name}": digits = ${describe(digits)} is outside the allowed range 1 to 15`, 'digits is the number of significant figures shown');
+  }
+  return digits;
+}
+
+function requireFinite(kind: string, name: string, what: string, value: unknown): number {
+  const number = value instanceof Figure ? value.value : value;
+  if (typeof number !== 'number' || !Number.isFinite(number)) {
+    throw new BlockApiError(
+      'non-finite',
+      `${kind} "${name}": ${what} is ${describe(number)}, not a finite number`,
+      'a NaN or Infinity usually means a division by zero or a missing input upstream; a report never shows one',
+    );
+  }
+  return number;
+}
+
+function describe(value: unknown): string {
+  if (typeof value === 'number') return String(value);
+  if (typeof value === 'string') return JSON.stringify(value);
+  if (value === null || value === undefined) return String(value);
+  return typeof value;
+}
+
+function scalarOf(kind: string, where: string, value: unknown): ScalarValue {
+  const plain = value instanceof Figure || value instanceof InputValue ? value.value : value;
+  if (typeof plain === 'string' || typeof plain === 'boolean') return plain;
+  return requireFinite(kind, where, 'the value', plain);
+}
+
+/** Build the globals one study run shares across its blocks. */
+export function createBlockApi(inputData: readonly InputData[], recorder: Recorder, solverModule: Record<string, unknown>, chartModule: Record<string, unknown>) {
+  const resultNames = new Set<string>();
+  const criterionNames = new Set<string>();
+  const emit = (record: BlockRecord) => {
+    const position = recorder.callerPosition();
+    recorder.record(position ? { ...record, position } : record);
+  };
+
+  const inputs: Record<string, InputValue> = Object.create(null);
+  for (const data of inputData) inputs[data.name] = new InputValue(data);
+  Object.freeze(inputs);
+
+  function result(name: string, value: ScalarValue | Figure, options: ResultOptions = {}): Figure {
+    requireName('result', name);
+    if (resultNames.has(name)) {
+      throw new BlockApiError('result-duplicate', `result "${name}" is recorded twice`, 'every named result is a figure a checker verifies: give each its own name');
+    }
+    const scalar = scalarOf('result', name, value);
+    const unit = requireUnit('result', name, options.unit ?? (value instanceof Figure ? value.unit : undefined));
+    const digits = requireDigits('result', name, options.digits ?? (value instanceof Figure ? value.digits : undefined));
+    if (options.tolerance !== undefined && !(typeof options.tolerance === 'number' && options.tolerance > 0 && options.tolerance < 1)) {
+      throw new BlockApiError('tolerance', `result "${name}": tolerance = ${describe(options.tolerance)} is outside the allowed range (0, 1)`, 'tolerance is the relative difference a checker accepts, e.g. 1e-6');
+    }
+    resultNames.add(name);
+    emit({
+      kind: 'result',
+      name,
+      value: scalar,
+      unit,
+      digits,
+      ...(options.note ? { note: String(options.note) } : {}),
+      ...(options.tolerance !== undefined ? { tolerance: options.tolerance } : {}),
+    });
+    return new Figure(scalar, unit, digits);
+  }
+
+  function criterion(name: string, value: number | Figure, limits: CriterionLimits): boolean {
+    requireName('criterion', name);
+    if (criterionNames.has(name)) throw new BlockApiError('criterion-duplicate', `criterion "${name}" is checked twice`, 'give each criterion its own name');
+    const number = requireFinite('criterion', name, 'the value', value);
+    if (!limits || (limits.min === undefined && limits.max === undefined)) {
+      throw new BlockApiError('criterion-limits', `criterion "${name}" has neither min nor max`, 'write e.g. criterion("Receiving-end voltage", v, { min: 0.95, max: 1.05, unit: "pu" })');
+    }
+    const min = limits.min === undefined ? undefined : requireFinite('criterion', name, 'min', limits.min);
+    const max = limits.max === undefined ? undefined : requireFinite('criterion', name, 'max', limits.max);
+    if (min !== undefined && max !== undefined && min > max) throw new BlockApiError('criterion-limits', `criterion "${name}": min ${min} is above max ${max}`, 'swap min and max');
+    const unit = requireUnit('criterion', name, limits.unit ?? (value instanceof Figure ? value.unit : undefined));
+    const digits = requireDigits('criterion', name, limits.digits ?? (value instanceof Figure ? value.digits : undefined));
+    const passed = (min === undefined || number >= min) && (max === undefined || number <= max);
+    criterionNames.add(name);
+    emit({
+      kind: 'criterion',
+      name,
+      value: number,
+      unit,
+      digits,
+      ...(min !== undefined ? { min } : {}),
+      ...(max !== undefined ? { max } : {}),
+      passed,
+      ...(limits.note ? { note: String(limits.note) } : {}),
+    });
+    return passed;
+  }
+
+  function caution(text: string): void {
+    if (typeof text !== 'string' || text.trim() === '') throw new BlockApiError('caution-text', 'caution() needs the text of the caution', 'write e.g. caution("Energise the reactor before the line ...")');
+    emit({ kind: 'caution', text: text.trim() });
+  }
+
+  function table(rows: readonly (Record<string, unknown> | readonly unknown[])[], options: TableOptions = {}): void {
+    if (!Array.isArray(rows)) throw new BlockApiError('table-rows', 'table() needs an array of rows', 'pass e.g. [{ caseName: "light load", vrPu: 1.02 }]');
+    const columnOptions: TableColumnOption[] =
+      options.columns ?? (rows.length > 0 && !Array.isArray(rows[0]) ? Object.keys(rows[0] as object).map((key) => ({ key })) : []);
+    const columns: TableColumn[] = columnOptions.map((column, index) => {
+      const label = column.label ?? column.key ?? `column ${index + 1}`;
+      return {
+        key: String(column.key ?? index),
+        label,
+        unit: requireUnit('table column', label, column.unit),
+        digits: requireDigits('table column', label, column.digits),
+      };
+    });
+    const body: ScalarValue[][] = rows.map((row, rowIndex) =>
+      columns.map((column, columnIndex) => {
+        const cell = Array.isArray(row) ? row[columnIndex] : (row as Record<string, unknown>)[column.key];
+        return scalarOf('table', `${options.caption ?? 'table'}, row ${rowIndex + 1}, column "${column.label}"`, cell);
+      }),
+    );
+    emit({ kind: 'table', ...(options.caption ? { caption: options.caption } : {}), columns, rows: body });
+  }
+
+  function chart(spec: object, options: ChartOptions): void {
+    if (!options || typeof options.caption !== 'string' || options.caption.trim() === '') {
+      throw new BlockApiError('chart-caption', 'chart() needs { caption: "..." }: every figure in a report has a caption', 'write e.g. chart(spec, { caption: "Receiving-end voltage along the line" })');
+    }
+    let plain: unknown;
+    try {
+      plain = JSON.parse(JSON.stringify(spec));
+    } catch (error) {
+      throw new BlockApiError('chart-spec', `chart "${options.caption}": the specification is not plain data (${(error as Error).message})`, 'a Vega-Lite specification is JSON: numbers, text, arrays and objects');
+    }
+    if (typeof plain !== 'object' || plain === null) throw new BlockApiError('chart-spec', `chart "${options.caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
+    emit({ kind: 'chart', caption: options.caption.trim(), spec: plain });
+  }
+
+  function figure(value: ScalarValue, unit = '', digits?: number): Figure {
+    const scalar = scalarOf('figure', String(unit), value);
+    return new Figure(scalar, requireUnit('figure', String(value), unit), requireDigits('figure', String(value), digits));
+  }
+
+  const solver = wrapSolver(solverModule, (functionName, args, returned) =>
+    emit({ kind: 'solver-call', functionName, argumentsSummary: summarise(args), returnedSummary: summarise(returned) }),
+  );
+
+  const console = {
+    log: (...parts: unknown[]) => emit({ kind: 'text', text: parts.map(String).join(' ') }),
+  };
+
+  return Object.freeze({ inputs, result, criterion, caution, table, chart, figure, solver, charts: Object.freeze({ ...chartModule }), console });
+}
+
+/** Every exported solver function, recorded in the calculation log when a block calls it. */
+function wrapSolver(
+  solverModule: Record<string, unknown>,
+  log: (functionName: string, args: unknown[], returned: unknown) => void,
+): Readonly<Record<string, unknown>> {
+  const wrapped: Record<string, unknown> = {};
+  for (const [name, exported] of Object.entries(solverModule)) {
+    if (typeof exported !== 'function' || /^[A-Z]/.test(name)) {
+      wrapped[name] = exported;
+      continue;
+    }
+    const fn = exported as (...args: unknown[]) => unknown;
+    wrapped[name] = (...args: unknown[]) => {
+      const returned = fn(...args);
+      log(name, args, returned);
+      return returned;
+    };
+  }
+  return Object.freeze(wrapped);
+}
+
+export type BlockApi = ReturnType<typeof createBlockApi>;

@@ -1,0 +1,85 @@
+// What a calculation block leaves behind, as plain data that crosses the process boundary from the calculation child.
+
+/** Where in a block something happened, before the parent maps it to a study line. */
+export interface BlockPosition {
+  blockIndex: number;
+  /** 1-based line and column in the transpiled JavaScript of that block. */
+  line: number;
+  column: number;
+}
+
+export type ScalarValue = number | string | boolean;
+
+export interface ResultRecord {
+  kind: 'result';
+  name: string;
+  value: ScalarValue;
+  unit: string;
+  digits: number;
+  note?: string;
+  /** Relative tolerance a checker allows for this figure; the study default applies when absent. */
+  tolerance?: number;
+}
+
+export interface CriterionRecord {
+  kind: 'criterion';
+  name: string;
+  value: number;
+  unit: string;
+  digits: number;
+  min?: number;
+  max?: number;
+  passed: boolean;
+  note?: string;
+}
+
+export interface CautionRecord {
+  kind: 'caution';
+  text: string;
+}
+
+export interface TableColumn {
+  key: string;
+  label: string;
+  unit: string;
+  digits: number;
+}
+
+export interface TableRecord {
+  kind: 'table';
+  caption?: string;
+  columns: TableColumn[];
+  rows: ScalarValue[][];
+}
+
+export interface ChartRecord {
+  kind: 'chart';
+  caption: string;
+  spec: unknown;
+}
+
+export interface TextRecord {
+  kind: 'text';
+  text: string;
+}
+
+export interface SolverCallRecord {
+  kind: 'solver-call';
+  functionName: string;
+  /** Arguments and return value, with long arrays summarised so the log stays readable. */
+  argumentsSummary: unknown;
+  returnedSummary: unknown;
+}
+
+export type BlockRecord = (ResultRecord | CriterionRecord | CautionRecord | TableRecord | ChartRecord | TextRecord | SolverCallRecord) & {
+  position?: BlockPosition;
+};
+
+/** A thrown error as the child reports it: no host stack, only positions inside blocks. */
+export interface BlockErrorReport {
+  name: string;
+  message: string;
+  code?: string;
+  hint?: string;
+  positions: BlockPosition[];
+}

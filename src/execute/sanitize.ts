@@ -1,0 +1,102 @@
+// Records from the calculation child are untrusted data: keep only well-formed ones, and refuse non-finite numbers.
+import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
+import type { Study } from '../study/model.ts';
+import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
+
+const isText = (value: unknown): value is string => typeof value === 'string';
+const isFiniteNumber = (value: unknown): value is number => typeof value === 'number' && Number.isFinite(value);
+const isScalar = (value: unknown): value is ScalarValue => isText(value) || isFiniteNumber(value) || typeof value === 'boolean';
+const isDigits = (value: unknown): value is number => isFiniteNumber(value) && Number.isInteger(value) && value >= 1 && value <= 15;
+
+function positionOf(value: unknown): BlockPosition | undefined {
+  if (typeof value !== 'object' || value === null) return undefined;
+  const { blockIndex, line, column } = value as Record<string, unknown>;
+  return isFiniteNumber(blockIndex) && isFiniteNumber(line) && isFiniteNumber(column) ? { blockIndex, line, column } : undefined;
+}
+
+function optionalText(value: unknown): string | undefined {
+  return isText(value) ? value : undefined;
+}
+
+function one(raw: unknown): BlockRecord | undefined {
+  if (typeof raw !== 'object' || raw === null) return undefined;
+  const record = raw as Record<string, unknown>;
+  const position = positionOf(record.position);
+  const withPosition = <T extends object>(value: T): T => (position ? { ...value, position } : value);
+  switch (record.kind) {
+    case 'result':
+      if (!isText(record.name) || !isScalar(record.value) || !isText(record.unit) || !isDigits(record.digits)) return undefined;
+      return withPosition({
+        kind: 'result',
+        name: record.name,
+        value: record.value,
+        unit: record.unit,
+        digits: record.digits,
+        ...(optionalText(record.note) ? { note: record.note as string } : {}),
+        ...(isFiniteNumber(record.tolerance) ? { tolerance: record.tolerance } : {}),
+      });
+    case 'criterion':
+      if (!isText(record.name) || !isFiniteNumber(record.value) || !isText(record.unit) || !isDigits(record.digits) || typeof record.passed !== 'boolean') return undefined;
+      if ((record.min !== undefined && !isFiniteNumber(record.min)) || (record.max !== undefined && !isFiniteNumber(record.max))) return undefined;
+      return withPosition({
+        kind: 'criterion',
+        name: record.name,
+        value: record.value,
+        unit: record.unit,
+        digits: record.digits,
+        ...(record.min !== undefined ? { min: record.min as number } : {}),
+        ...(record.max !== undefined ? { max: record.max as number } : {}),
+        passed: record.passed,
+        ...(optionalText(record.note) ? { note: record.note as string } : {}),
+      });
+    case 'caution':
+      return isText(record.text) ? withPosition({ kind: 'caution', text: record.text }) : undefined;
+    case 'text':
+      return isText(record.text) ? withPosition({ kind: 'text', text: record.text }) : undefined;
+    case 'table': {
+      if (!Array.isArray(record.columns) || !Array.isArray(record.rows)) return undefined;
+      const columns: TableColumn[] = [];
+      for (const column of record.columns as unknown[]) {
+        const c = column as Record<string, unknown>;
+        if (!c || !isText(c.key) || !isText(c.label) || !isText(c.unit) || !isDigits(c.digits)) return undefined;
+        columns.push({ key: c.key, label: c.label, unit: c.unit, digits: c.digits });
+      }
+      const rows: ScalarValue[][] = [];
+      for (const row of record.rows as unknown[]) {
+        if (!Array.isArray(row) || row.length !== columns.length || !row.every(isScalar)) return undefined;
+        rows.push(row as ScalarValue[]);
+      }
+      return withPosition({ kind: 'table', ...(optionalText(record.caption) ? { caption: record.caption as string } : {}), columns, rows });
+    }
+    case 'chart':
+      return isText(record.caption) && typeof record.spec === 'object' && record.spec !== null
+        ? withPosition({ kind: 'chart', caption: record.caption, spec: record.spec })
+        : undefined;
+    case 'solver-call':
+      return isText(record.functionName)
+        ? withPosition({ kind: 'solver-call', functionName: record.functionName, argumentsSummary: record.argumentsSummary, returnedSummary: record.returnedSummary })
+        : undefined;
+    default:
+      return undefined;
+  }
+}
+
+export function sanitizeRecords(raw: unknown, study: Study, at: SourceLocation): BlockRecord[] {
+  if (!Array.isArray(raw)) return [];
+  const out: BlockRecord[] = [];
+  const problems: Diagnostic[] = [];
+  for (const item of raw) {
+    const record = one(item);
+    if (record) out.push(record);
+    else {
+      problems.push({
+        code: 'record-malformed',
+        message: 'the calculation process sent a malformed record (a result, table or criterion with a missing or non-finite value)',
+        at,
+        hint: `this should not happen through the block API; check the block at line ${at.line} of ${study.file}`,
+      });
+    }
+  }
+  if (problems.length > 0) throw new StudyFailure(problems.slice(0, 1));
+  return out;
+}

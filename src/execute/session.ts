@@ -1,0 +1,251 @@
+// Execute stage: runs a study's blocks and inline values in a sandboxed child process and maps everything to study lines.
+import { fork, type ChildProcess } from 'node:child_process';
+import { dirname, resolve } from 'node:path';
+import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import type { Study } from '../study/model.ts';
+import type { EffectiveInput } from '../study/inputs.ts';
+import type { ChildMessage, InputData, ParentMessage } from './protocol.ts';
+import type { BlockErrorReport, BlockRecord } from './records.ts';
+import { type TranspiledBlock, type TranspiledInline, studyPositionOf } from './transpile.ts';
+import { childBundlePath } from './childBundle.ts';
+import { sanitizeRecords } from './sanitize.ts';
+import { DENIAL_MARK } from './child/lockDown.ts';
+
+export type LocatedRecord = Exclude<BlockRecord, never> & { at?: SourceLocation };
+
+export interface BlockOutcome {
+  blockIndex: number;
+  records: LocatedRecord[];
+}
+
+export interface ExecutionOutcome {
+  blocks: BlockOutcome[];
+  /** Formatted text of each `{{ }}` value, by inline id. */
+  inlineTexts: Map<number, string>;
+}
+
+export interface ExecutionHooks {
+  /** Told before each block runs, for a progress line. */
+  onBlockStart?: (block: TranspiledBlock, position: number, count: number) => void;
+}
+
+const HOST_FRAME_HINT = 'the error comes from the block at this line';
+
+/** Permission flags for the child: read only the study's folder and its own bundle; nothing else. */
+function childArguments(study: Study, bundlePath: string): string[] {
+  const studyFolder = dirname(resolve(study.file));
+  return [
+    '--experimental-permission',
+    `--allow-fs-read=${bundlePath}`,
+    `--allow-fs-read=${studyFolder}`,
+    `--max-old-space-size=${study.meta.limits.heapMb}`,
+    '--no-warnings',
+    '--disable-proto=throw',
+  ];
+}
+
+export async function executeStudy(
+  study: Study,
+  inputs: readonly EffectiveInput[],
+  blocks: readonly TranspiledBlock[],
+  inlines: readonly TranspiledInline[],
+  hooks: ExecutionHooks = {},
+): Promise<ExecutionOutcome> {
+  const bundlePath = childBundlePath();
+  const child = fork(bundlePath, [], { execArgv: childArguments(study, bundlePath), stdio: ['ignore', 'ignore', 'pipe', 'ipc'], serialization: 'json' });
+  const conversation = new Conversation(child);
+  const limits = study.meta.limits;
+  const studyDeadline = Date.now() + limits.studySeconds * 1000;
+  try {
+    await conversation.ask({ type: 'start', inputs: inputs.map(toInputData), blockMilliseconds: limits.blockSeconds * 1000 }, limits.blockSeconds * 1000 + 10_000, () => ({
+      code: 'child-start',
+      message: 'the calculation process did not start',
+      hint: 'run `npm ci` and try again',
+    }));
+    const ask = async (message: ParentMessage, at: SourceLocation, what: string): Promise<ChildMessage> => {
+      try {
+        return await conversation.ask(message, budget(limits.blockSeconds, studyDeadline), () => timeoutDiagnostic(study, at, what, limits.blockSeconds));
+      } catch (error) {
+        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(study, at, what, error)]);
+        throw error;
+      }
+    };
+    const outcome: ExecutionOutcome = { blocks: [], inlineTexts: new Map() };
+    const evaluateInlinesAfter = async (runnableCount: number) => {
+      for (const inline of inlines.filter((candidate) => candidate.inline.afterRunnableBlocks === runnableCount)) {
+        const reply = await ask({ type: 'evaluate-inline', inlineId: inline.inlineId, script: inline.script }, inline.inline.at, `the inline value {{ ${inline.inline.expression} }}`);
+        if (reply.type === 'inline-failed') throw new StudyFailure([inlineFailure(study, inline, reply.error)]);
+        if (reply.type === 'inline-done') outcome.inlineTexts.set(inline.inlineId, String(reply.text));
+      }
+    };
+    await evaluateInlinesAfter(0);
+    for (const [position, block] of blocks.entries()) {
+      hooks.onBlockStart?.(block, position, blocks.length);
+      const at = { file: study.file, line: block.block.fenceLine };
+      const reply = await ask({ type: 'run-block', blockIndex: block.blockIndex, script: block.script, declarations: block.declarations }, at, `the block at line ${block.block.fenceLine}`);
+      if (reply.type === 'block-failed') throw new StudyFailure([blockFailure(study, block, reply.error, limits.blockSeconds)]);
+      if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) {
+        throw new StudyFailure([{ code: 'child-protocol', message: 'the calculation process answered out of turn', at, hint: 'a block must not call process.send' }]);
+      }
+      outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at)) });
+      await evaluateInlinesAfter(position + 1);
+    }
+    return outcome;
+  } finally {
+    conversation.close();
+  }
+}
+
+function budget(blockSeconds: number, studyDeadline: number): number {
+  return Math.max(1, Math.min(blockSeconds * 1000 + 2000, studyDeadline - Date.now()));
+}
+
+function toInputData(input: EffectiveInput): InputData {
+  return {
+    name: input.name,
+    value: input.value,
+    unit: input.unit,
+    si: input.si,
+    ...(input.kind ? { kind: input.kind } : {}),
+    ...(input.description ? { description: input.description } : {}),
+  };
+}
+
+function locate(study: Study, block: TranspiledBlock, records: BlockRecord[]): LocatedRecord[] {
+  return records.map((record) => {
+    const { position, ...rest } = record;
+    if (!position || position.blockIndex !== block.blockIndex) return { ...rest, at: { file: study.file, line: block.block.fenceLine } } as LocatedRecord;
+    const mapped = studyPositionOf(block, position.line, position.column);
+    return { ...rest, at: { file: study.file, line: mapped.line, column: mapped.column } } as LocatedRecord;
+  });
+}
+
+function timeoutDiagnostic(study: Study, at: SourceLocation, what: string, blockSeconds: number): Diagnostic {
+  return {
+    code: 'time-limit',
+    message: `${what} ran longer than its time limit (${blockSeconds} s per block, ${study.meta.limits.studySeconds} s per study) and was stopped`,
+    at,
+    excerpt: excerptAround(study.source, at.line, at.column),
+    hint: 'look for a loop that never ends; a long calculation may raise limits.blockSeconds in the front matter',
+  };
+}
+
+function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: ChildExit): Diagnostic {
+  if (exit.outOfMemory) {
+    return {
+      code: 'memory-limit',
+      message: `${what} used more memory than its limit (${study.meta.limits.heapMb} MB heap) and was stopped`,
+      at,
+      excerpt: excerptAround(study.source, at.line),
+      hint: 'look for an array or string that grows without bound; a large study may raise limits.heapMb in the front matter',
+    };
+  }
+  return {
+    code: 'child-exit',
+    message: `${what} stopped the calculation process (exit code ${exit.exitCode ?? 'none'}${exit.signal ? `, signal ${exit.signal}` : ''})`,
+    at,
+    excerpt: excerptAround(study.source, at.line),
+    hint: 'a block must not end the process it runs in',
+  };
+}
+
+function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorReport, blockSeconds: number): Diagnostic {
+  const own = error.positions.find((position) => position.blockIndex === block.blockIndex);
+  const mapped = own ? studyPositionOf(block, own.line, own.column) : { line: block.block.fenceLine, column: 1 };
+  const at = { file: study.file, line: mapped.line, column: mapped.column };
+  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, blockSeconds);
+  return {
+    code: error.code === DENIAL_MARK ? 'block-denied' : error.code ? `block-${error.code}` : 'block-threw',
+    message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}`,
+    at,
+    excerpt: excerptAround(study.source, mapped.line, mapped.column),
+    hint: error.hint ?? (error.code === DENIAL_MARK ? 'a study may compute, and read files in its own folder, only' : HOST_FRAME_HINT),
+  };
+}
+
+function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
+  const notDefined = /(\w+) is not defined/.exec(error.message);
+  return {
+    code: notDefined ? 'inline-undefined' : 'inline-failed',
+    message: notDefined
+      ? `the inline value {{ ${inline.inline.expression} }} refers to "${notDefined[1]}", which no block above it defines`
+      : `the inline value {{ ${inline.inline.expression} }} failed: ${error.message}`,
+    at: inline.inline.at,
+    excerpt: excerptAround(study.source, inline.inline.at.line, inline.inline.at.column),
+    hint: error.hint ?? 'an inline value sees the names declared in the blocks above it, and the inputs as inputs.<name>',
+  };
+}
+
+/** One question at a time to the child, each with a deadline; the child is killed on a timeout or a crash. */
+class Conversation {
+  private readonly child: ChildProcess;
+  private stderr = '';
+  private waiting: { resolve: (message: ChildMessage) => void; reject: (error: unknown) => void } | undefined;
+  private exited: { code: number | null; signal: NodeJS.Signals | null } | undefined;
+
+  constructor(child: ChildProcess) {
+    this.child = child;
+    child.stderr?.setEncoding('utf8');
+    child.stderr?.on('data', (chunk: string) => {
+      if (this.stderr.length < 64_000) this.stderr += chunk;
+    });
+    child.on('message', (message: unknown) => {
+      const waiting = this.waiting;
+      if (!waiting || !isChildMessage(message)) return;
+      if (message.type === 'ready' || message.type === 'block-done' || message.type === 'block-failed' || message.type === 'inline-done' || message.type === 'inline-failed') {
+        this.waiting = undefined;
+        waiting.resolve(message);
+      }
+    });
+    child.on('exit', (code, signal) => {
+      this.exited = { code, signal };
+      const waiting = this.waiting;
+      this.waiting = undefined;
+      waiting?.reject(new ChildExit(code, signal, this.stderr));
+    });
+    child.on('error', () => undefined);
+  }
+
+  ask(message: ParentMessage, timeoutMs: number, onTimeout: () => Diagnostic): Promise<ChildMessage> {
+    if (this.exited) return Promise.reject(new ChildExit(this.exited.code, this.exited.signal, this.stderr));
+    return new Promise<ChildMessage>((resolvePromise, rejectPromise) => {
+      const timer = setTimeout(() => {
+        this.waiting = undefined;
+        this.child.kill('SIGKILL');
+        rejectPromise(new StudyFailure([onTimeout()]));
+      }, timeoutMs);
+      this.waiting = {
+        resolve: (reply) => {
+          clearTimeout(timer);
+          resolvePromise(reply);
+        },
+        reject: (error) => {
+          clearTimeout(timer);
+          rejectPromise(error);
+        },
+      };
+      this.child.send(message);
+    });
+  }
+
+  close(): void {
+    if (!this.exited) this.child.kill('SIGKILL');
+  }
+}
+
+function isChildMessage(message: unknown): message is ChildMessage {
+  return typeof message === 'object' && message !== null && typeof (message as { type?: unknown }).type === 'string';
+}
+
+/** The child ended by itself: out of memory, or killed from inside. */
+export class ChildExit extends Error {
+  readonly exitCode: number | null;
+  readonly signal: NodeJS.Signals | null;
+  readonly outOfMemory: boolean;
+  constructor(exitCode: number | null, signal: NodeJS.Signals | null, stderr: string) {
+    super(`the calculation process ended unexpectedly (exit code ${exitCode}, signal ${signal})`);
+    this.exitCode = exitCode;
+    this.signal = signal;
+    this.outOfMemory = /heap out of memory|Allocation failed/i.test(stderr);
+  }
+}

@@ -1,0 +1,83 @@
+// The run of one study, stage by stage: parse -> inputs -> transpile -> type-check -> execute -> charts -> render.
+import type { Diagnostic } from './diagnostics/diagnostic.ts';
+import { StudyFailure, excerptAround } from './diagnostics/diagnostic.ts';
+import { parseStudy } from './study/parse.ts';
+import { type InputOverride, effectiveInputs } from './study/inputs.ts';
+import { transpileBlocks, transpileInlines } from './execute/transpile.ts';
+import { typecheckStudy } from './execute/typecheck.ts';
+import { type ExecutionHooks, executeStudy } from './execute/session.ts';
+import { renderChartSvg } from './report/chart/render.ts';
+import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
+import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
+
+export interface RunRequest {
+  /** The study path as the user named it; used in every location shown. */
+  file: string;
+  source: string;
+  overrides: readonly InputOverride[];
+  typecheck: boolean;
+  /** Facts from the edge: versions and the lock-file hash, so this stage reads no files of its own. */
+  environment: { kvarbookVersion: string; nodeVersion: string; lockfileSha256: string };
+  hooks?: ExecutionHooks;
+}
+
+export interface RunProduct {
+  run: StudyRun;
+  report: ReportParts;
+  results: ResultsDocument;
+}
+
+export const ISOLATION_DESCRIPTION =
+  'separate Node.js process under the permission model: reads only the study folder, no writes, no child processes, workers or network modules';
+
+export async function runStudy(request: RunRequest): Promise<RunProduct> {
+  // 1. Parse: Markdown + front matter -> Study.
+  const study = parseStudy(request.file, request.source);
+  // 2. Inputs: front matter values with command-line overrides, unit- and range-checked.
+  const inputs = effectiveInputs(study.inputs, request.overrides);
+  // 3. Transpile every block and inline value; declarations found for the shared scope.
+  const blocks = transpileBlocks(study);
+  const inlines = transpileInlines(study);
+  // 4. Type-check against the block API, unless the author skipped it while drafting.
+  if (request.typecheck) typecheckStudy(study);
+  // 5. Execute in the sandboxed child.
+  const outcome = await executeStudy(study, inputs, blocks, inlines, request.hooks);
+  const run: StudyRun = {
+    study,
+    inputs,
+    outcome,
+    provenance: {
+      ...request.environment,
+      studyFile: request.file.split(/[\\/]/).pop() ?? request.file,
+      studySourceSha256: study.sourceSha256,
+      limits: study.meta.limits,
+      typeChecked: request.typecheck,
+      isolation: ISOLATION_DESCRIPTION,
+    },
+  };
+  // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
+  const charts = await renderCharts(run);
+  // 7. Render the report and the results document.
+  return { run, report: renderReportParts(run, charts), results: resultsDocument(run) };
+}
+
+async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
+  const rendered: RenderedCharts = new Map();
+  const problems: Diagnostic[] = [];
+  for (const record of recordsOf(run, 'chart')) {
+    try {
+      rendered.set(record, await renderChartSvg(record.spec));
+    } catch (error) {
+      const at = record.at ?? { file: run.study.file, line: 1 };
+      problems.push({
+        code: 'chart-spec',
+        message: `chart "${record.caption}" cannot be drawn: ${(error as Error).message}`,
+        at,
+        excerpt: excerptAround(run.study.source, at.line, at.column),
+        hint: 'the specification must be valid Vega-Lite with inline data (values); see the charts.* builders',
+      });
+    }
+  }
+  if (problems.length > 0) throw new StudyFailure(problems);
+  return rendered;
+}

@@ -1,0 +1,338 @@
+// Render stage: a finished run to one self-contained HTML report (inline CSS and SVG, no scripts, no fetches).
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Token } from 'markdown-it';
+import { createMarkdown, INLINE_VALUE_TOKEN } from '../study/markdown.ts';
+import type { SourceLocation } from '../diagnostics/diagnostic.ts';
+import type { LocatedRecord } from '../execute/session.ts';
+import type { CriterionRecord, TableRecord } from '../execute/records.ts';
+import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
+import { formatNumber, formatQuantity } from './format.ts';
+import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
+
+const md = createMarkdown();
+const escape = md.utils.escapeHtml;
+
+/** A chart already rendered to SVG by the render stage, keyed by the record it came from. */
+export type RenderedCharts = Map<LocatedRecord, string>;
+
+export interface ReportParts {
+  /** Everything before the seal slot. */
+  head: string;
+  /** Everything after the seal slot: the report body a seal's hash covers together with `head`. */
+  body: string;
+}
+
+export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
+export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
+
+function stylesheet(): string {
+  return readFileSync(join(KVARBOOK_ROOT, 'templates/report.css'), 'utf8');
+}
+
+function where(at: SourceLocation | undefined): string {
+  if (!at) return '';
+  return `<span class="where">line ${at.line}</span>`;
+}
+
+function slug(text: string, taken: Set<string>): string {
+  const base = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'section';
+  let candidate = base;
+  for (let n = 2; taken.has(candidate); n++) candidate = `${base}-${n}`;
+  taken.add(candidate);
+  return candidate;
+}
+
+function limitsText(record: Pick<CriterionRecord, 'min' | 'max' | 'unit' | 'digits'>): string {
+  const fmt = (value: number) => formatQuantity(value, record.unit, record.digits);
+  if (record.min !== undefined && record.max !== undefined) return `${fmt(record.min)} to ${fmt(record.max)}`;
+  if (record.min !== undefined) return `at least ${fmt(record.min)}`;
+  return `at most ${fmt(record.max as number)}`;
+}
+
+export { limitsText };
+
+function verdict(passed: boolean): string {
+  return passed ? '<span class="verdict pass">meets</span>' : '<span class="verdict fail">fails</span>';
+}
+
+function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], withNotes: boolean): string {
+  if (criteria.length === 0) return '<p class="quiet">This study states no design criteria.</p>';
+  const rows = criteria
+    .map(
+      (record) =>
+        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escape(record.name)}</td><td class="num">${escape(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escape(limitsText(record))}</td><td>${verdict(record.passed)}</td>${
+          withNotes ? `<td>${record.note ? escape(record.note) : ''} ${where(record.at)}</td>` : ''
+        }</tr>`,
+    )
+    .join('\n');
+  return `<table class="criteria"><thead><tr><th>Criterion</th><th>Value</th><th>Required</th><th>Outcome</th>${withNotes ? '<th>Note</th>' : ''}</tr></thead><tbody>\n${rows}\n</tbody></table>`;
+}
+
+function tableHtml(record: TableRecord, number: number): string {
+  const head = record.columns.map((column) => `<th>${escape(column.label)}${column.unit ? `<span class="unit">${escape(column.unit)}</span>` : ''}</th>`).join('');
+  const rows = record.rows
+    .map(
+      (row) =>
+        `<tr>${row
+          .map((cell, index) => {
+            const column = record.columns[index]!;
+            return typeof cell === 'number' ? `<td class="num">${escape(formatNumber(cell, column.digits))}</td>` : `<td>${escape(formatQuantity(cell))}</td>`;
+          })
+          .join('')}</tr>`,
+    )
+    .join('\n');
+  const caption = `<caption><span class="label">Table ${number}</span>${record.caption ? ` ${escape(record.caption)}` : ''}</caption>`;
+  return `<table class="data">${caption}<thead><tr>${head}</tr></thead><tbody>\n${rows}\n</tbody></table>`;
+}
+
+interface Counters {
+  table: number;
+  figure: number;
+}
+
+function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters: Counters): string {
+  const parts: string[] = [];
+  const results = records.filter((record) => record.kind === 'result');
+  if (results.length > 0) {
+    parts.push(
+      `<dl class="results">${results
+        .map((record) =>
+          record.kind === 'result'
+            ? `<div><dt>${escape(record.name)}</dt><dd>${escape(formatQuantity(record.value, record.unit, record.digits))}${record.note ? `<span class="note">${escape(record.note)}</span>` : ''}</dd></div>`
+            : '',
+        )
+        .join('')}</dl>`,
+    );
+  }
+  for (const record of records) {
+    switch (record.kind) {
+      case 'table':
+        counters.table += 1;
+        parts.push(tableHtml(record, counters.table));
+        break;
+      case 'criterion':
+        parts.push(criteriaTable([record], false));
+        break;
+      case 'chart': {
+        counters.figure += 1;
+        const svg = charts.get(record) ?? '';
+        parts.push(`<figure class="chart">${svg}<figcaption><span class="label">Figure ${counters.figure}</span> ${escape(record.caption)}</figcaption></figure>`);
+        break;
+      }
+      case 'text':
+        parts.push(`<pre class="printed">${escape(record.text)}</pre>`);
+        break;
+      case 'caution':
+        parts.push(`<p class="caution-inline"><span class="label">Caution</span> ${escape(record.text)}</p>`);
+        break;
+      default:
+        break;
+    }
+  }
+  return parts.length ? `<div class="outputs">${parts.join('\n')}</div>` : '';
+}
+
+function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
+  const blocksByFence = new Map(run.study.blocks.map((block) => [block.fenceLine, block]));
+  const outcomes = new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome]));
+  const taken = new Set<string>(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']);
+  const renderer = md.renderer;
+  const rules = { ...renderer.rules };
+  renderer.rules[INLINE_VALUE_TOKEN] = (tokens: Token[], index: number) => {
+    const id = (tokens[index]!.meta as { id?: number } | null)?.id;
+    const text = id === undefined ? undefined : run.outcome.inlineTexts.get(id);
+    return `<span class="value">${escape(text ?? '')}</span>`;
+  };
+  renderer.rules.heading_open = (tokens: Token[], index: number) => {
+    const token = tokens[index]!;
+    const text = tokens[index + 1]?.children?.map((child) => (child.type === INLINE_VALUE_TOKEN ? '' : child.content)).join('') ?? '';
+    const id = slug(text, taken);
+    const level = Number(token.tag.slice(1));
+    // The report's own h1 is the title; body headings move one level down.
+    const shifted = Math.min(6, level + 1);
+    headings.push({ level, id, text });
+    return `<h${shifted} id="${id}">`;
+  };
+  renderer.rules.heading_close = (tokens: Token[], index: number) => `</h${Math.min(6, Number(tokens[index]!.tag.slice(1)) + 1)}>\n`;
+  renderer.rules.fence = (tokens: Token[], index: number) => {
+    const token = tokens[index]!;
+    const fenceLine = (token.map?.[0] ?? 0) + run.study.bodyFirstLine;
+    const block = blocksByFence.get(fenceLine);
+    const language = token.info.trim().split(/\s+/)[0] ?? '';
+    if (!block) return `<pre class="listing"><code>${escape(token.content)}</code></pre>\n`;
+    const outcome = outcomes.get(block.index);
+    const code = block.options.hideCode ? '' : `<pre class="calc"><code>${escape(token.content)}</code></pre>`;
+    const badge = block.options.noRun ? '<span class="badge">shown, not run</span>' : `<span class="badge">calculation, line ${block.fenceLine}</span>`;
+    const outputs = outcome ? outputsHtml(outcome.records, charts, counters) : '';
+    return `<section class="block${block.options.hideCode ? ' code-hidden' : ''}" data-language="${escape(language)}">${badge}${code}${outputs}</section>\n`;
+  };
+  try {
+    return renderer.render(run.study.bodyTokens, md.options, {});
+  } finally {
+    renderer.rules = rules;
+  }
+}
+
+function inputsTable(run: StudyRun): string {
+  if (run.inputs.length === 0) return '<p class="quiet">This study declares no inputs.</p>';
+  const rows = run.inputs
+    .map((input) => {
+      const range = input.min || input.max ? `${input.min ? formatQuantity(input.min.value, input.min.unit, 6) : '−∞'} to ${input.max ? formatQuantity(input.max.value, input.max.unit, 6) : '+∞'}` : '';
+      const source = input.source === 'overridden' ? `<span class="overridden">overridden (study gives ${escape(input.givenText)})</span>` : 'as given';
+      return `<tr><td><code>${escape(input.name)}</code></td><td class="num">${escape(formatQuantity(input.value, input.unit, 6))}</td><td>${escape(range)}</td><td>${source}</td><td>${escape(input.description ?? '')}</td></tr>`;
+    })
+    .join('\n');
+  return `<table class="data inputs"><thead><tr><th>Input</th><th>Value</th><th>Allowed range</th><th>Source</th><th>Description</th></tr></thead><tbody>\n${rows}\n</tbody></table>`;
+}
+
+function compactJson(value: unknown): string {
+  const text = JSON.stringify(value, (_key, item: unknown) => (typeof item === 'number' ? Number(formatNumber(item, 6).replace(/×10\^/, 'e')) : item));
+  return text === undefined ? '' : text.length > 600 ? `${text.slice(0, 600)}…` : text;
+}
+
+function calculationLog(run: StudyRun): string {
+  const rows: string[] = [];
+  let step = 0;
+  for (const outcome of run.outcome.blocks) {
+    for (const record of outcome.records) {
+      let what: string;
+      let detail: string;
+      if (record.kind === 'result') {
+        what = `result <strong>${escape(record.name)}</strong>`;
+        detail = escape(formatQuantity(record.value, record.unit, record.digits));
+      } else if (record.kind === 'criterion') {
+        what = `criterion <strong>${escape(record.name)}</strong>`;
+        detail = `${escape(formatQuantity(record.value, record.unit, record.digits))}; required ${escape(limitsText(record))}; ${record.passed ? 'meets' : 'fails'}`;
+      } else if (record.kind === 'solver-call') {
+        what = `solver <code>${escape(record.functionName)}</code>`;
+        detail = `<div class="io"><span class="label">in</span> <code>${escape(compactJson(record.argumentsSummary))}</code></div><div class="io"><span class="label">out</span> <code>${escape(compactJson(record.returnedSummary))}</code></div>`;
+      } else continue;
+      step += 1;
+      rows.push(`<tr><td class="num">${step}</td><td>${record.at ? record.at.line : ''}</td><td>${what}</td><td>${detail}</td></tr>`);
+    }
+  }
+  if (rows.length === 0) return '<p class="quiet">No results, criteria or solver calls were recorded.</p>';
+  return `<table class="log"><thead><tr><th>#</th><th>Line</th><th>Entry</th><th>Values</th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
+}
+
+function provenanceList(run: StudyRun): string {
+  const p = run.provenance;
+  const item = (label: string, value: string) => `<div><dt>${escape(label)}</dt><dd>${value}</dd></div>`;
+  return `<dl class="provenance">${[
+    item('kvarbook', escape(p.kvarbookVersion)),
+    item('Node.js', escape(p.nodeVersion)),
+    item('Study file', `<code>${escape(p.studyFile)}</code>`),
+    item('SHA-256 of the study source', `<code class="hash">${escape(p.studySourceSha256)}</code>`),
+    item('SHA-256 of package-lock.json', `<code class="hash">${escape(p.lockfileSha256)}</code>`),
+    item('Type check of the blocks', p.typeChecked ? 'done' : 'skipped at the author’s request'),
+    item('Isolation of the blocks', escape(p.isolation)),
+    item('Limits', escape(`${p.limits.blockSeconds} s per block, ${p.limits.studySeconds} s per study, ${p.limits.heapMb} MB heap`)),
+  ].join('')}</dl>`;
+}
+
+function titleBlock(run: StudyRun, failed: number, total: number): string {
+  const { meta } = run.study;
+  const person = (p: { name: string; licence?: string; jurisdiction?: string } | undefined) =>
+    p ? `${escape(p.name)}${p.licence ? `, licence ${escape(p.licence)}` : ''}${p.jurisdiction ? ` (${escape(p.jurisdiction)})` : ''}` : 'not yet named';
+  const overridden = run.inputs.filter((input) => input.source === 'overridden');
+  const status =
+    total === 0 ? 'no criteria stated' : failed === 0 ? `all ${total} criteria met` : `${failed} of ${total} criteria not met`;
+  return `<header class="title-block">
+<p class="kicker">${escape(meta.project)}</p>
+<h1>${escape(meta.title)}</h1>
+<dl class="meta">
+<div><dt>Study</dt><dd>${escape(meta.id)}, revision ${meta.revision}</dd></div>
+<div><dt>Date</dt><dd>${escape(meta.date)}</dd></div>
+<div><dt>Engineer</dt><dd>${person(meta.engineer)}</dd></div>
+<div><dt>Checker</dt><dd>${person(meta.checker)}</dd></div>
+<div><dt>Status</dt><dd class="${failed > 0 ? 'fail' : 'pass'}">${escape(status)}</dd></div>
+${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escape(input.name)} = ${escape(formatQuantity(input.value, input.unit, 6))}`).join(', ')}</dd></div>` : ''}
+</dl>
+</header>`;
+}
+
+/** The report in two parts around the seal slot; `assembleReport` joins them with or without a seal. */
+export function renderReportParts(run: StudyRun, charts: RenderedCharts): ReportParts {
+  const criteria = recordsOf(run, 'criterion');
+  const failed = criteria.filter((criterion) => !criterion.passed).length;
+  const counters: Counters = { table: 0, figure: 0 };
+  const headings: { level: number; id: string; text: string }[] = [];
+  const body = bodyHtml(run, charts, counters, headings);
+  const contents = [
+    ...headings.filter((heading) => heading.level <= 2).map((heading) => `<li class="level-${heading.level}"><a href="#${heading.id}">${escape(heading.text)}</a></li>`),
+    '<li class="level-1"><a href="#criteria">Design criteria</a></li>',
+    '<li class="level-1"><a href="#cautions">Cautions</a></li>',
+    '<li class="level-1"><a href="#inputs">Appendix A. Inputs</a></li>',
+    '<li class="level-1"><a href="#calculation-log">Appendix B. Calculation log</a></li>',
+    '<li class="level-1"><a href="#provenance">Appendix C. Provenance</a></li>',
+  ].join('\n');
+  const cautions = cautionsOf(run)
+    .map((caution) => `<li class="${caution.standing ? 'standing' : 'study'}">${escape(caution.text)}${caution.at ? ` ${where(caution.at)}` : ''}</li>`)
+    .join('\n');
+  const { meta } = run.study;
+  const head = `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="generator" content="kvarbook ${escape(run.provenance.kvarbookVersion)}">
+<meta name="kvarbook-study" content="${escape(meta.id)}">
+<meta name="kvarbook-revision" content="${meta.revision}">
+<title>${escape(meta.title)} (${escape(meta.id)} rev ${meta.revision})</title>
+<style>
+${stylesheet()}</style>
+</head>
+<body>
+${titleBlock(run, failed, criteria.length)}
+`;
+  const rest = `
+<section class="summary" id="summary">
+<h2>Criteria at a glance</h2>
+${criteriaTable(criteria, false)}
+</section>
+<nav class="contents" id="contents">
+<h2>Contents</h2>
+<ol>
+${contents}
+</ol>
+</nav>
+<main class="study">
+${body}
+</main>
+<section class="criteria-full" id="criteria">
+<h2>Design criteria</h2>
+${criteriaTable(criteria, true)}
+</section>
+<section class="cautions" id="cautions">
+<h2>Cautions</h2>
+<ul>
+${cautions}
+</ul>
+</section>
+<section class="appendix" id="inputs">
+<h2>Appendix A. Inputs</h2>
+${inputsTable(run)}
+</section>
+<section class="appendix" id="calculation-log">
+<h2>Appendix B. Calculation log</h2>
+<p class="quiet">Every named result, criterion and solver call, in the order the study made them, with the study line it came from.</p>
+${calculationLog(run)}
+</section>
+<section class="appendix" id="provenance">
+<h2>Appendix C. Provenance</h2>
+${provenanceList(run)}
+</section>
+<footer class="colophon">Produced by kvarbook from ${escape(run.provenance.studyFile)}. Every figure above was computed by the study's own calculation blocks.</footer>
+</body>
+</html>
+`;
+  return { head, body: rest };
+}
+
+/** Join the parts with the seal section (empty for an unsealed report). */
+export function assembleReport(parts: ReportParts, sealSection: string): string {
+  return `${parts.head}${SEAL_SLOT_START}${sealSection}${SEAL_SLOT_END}${parts.body}`;
+}
+
+export const UNSEALED_NOTICE = '<section class="seal unsealed"><p><strong>Not sealed.</strong> This report has not been sealed by a licensed engineer; it is a working draft.</p></section>';

@@ -1,0 +1,82 @@
+// Everything a finished run knows, gathered for the render stage, and the machine-readable results document.
+import type { SourceLocation } from '../diagnostics/diagnostic.ts';
+import type { EffectiveInput } from '../study/inputs.ts';
+import type { Study } from '../study/model.ts';
+import type { ExecutionOutcome, LocatedRecord } from '../execute/session.ts';
+import type { CautionRecord, CriterionRecord, ResultRecord, SolverCallRecord } from '../execute/records.ts';
+import { STANDING_CAUTIONS } from './cautions.ts';
+import type { Provenance } from './provenance.ts';
+
+export interface StudyRun {
+  study: Study;
+  inputs: EffectiveInput[];
+  outcome: ExecutionOutcome;
+  provenance: Provenance;
+}
+
+type Located<T> = T & { at?: SourceLocation };
+
+export function recordsOf<K extends LocatedRecord['kind']>(run: StudyRun, kind: K): Located<Extract<LocatedRecord, { kind: K }>>[] {
+  return run.outcome.blocks.flatMap((block) => block.records.filter((record): record is Located<Extract<LocatedRecord, { kind: K }>> => record.kind === kind));
+}
+
+export interface CautionEntry {
+  text: string;
+  standing: boolean;
+  at?: SourceLocation;
+}
+
+export function cautionsOf(run: StudyRun): CautionEntry[] {
+  const fromStudy = recordsOf(run, 'caution').map((record: Located<CautionRecord>) => ({ text: record.text, standing: false, ...(record.at ? { at: record.at } : {}) }));
+  return [...STANDING_CAUTIONS.map((caution) => ({ text: caution.text, standing: true })), ...fromStudy];
+}
+
+export interface ResultsDocument {
+  format: 'kvarbook-results/1';
+  study: {
+    id: string;
+    revision: number;
+    title: string;
+    project: string;
+    date: string;
+    engineer: Study['meta']['engineer'];
+    checker?: Study['meta']['checker'];
+  };
+  inputs: { name: string; value: number; unit: string; source: 'given' | 'overridden'; given: string; description?: string }[];
+  results: Located<Omit<ResultRecord, 'position'>>[];
+  criteria: Located<Omit<CriterionRecord, 'position'>>[];
+  cautions: CautionEntry[];
+  solverCalls: number;
+  provenance: Provenance;
+}
+
+export function resultsDocument(run: StudyRun): ResultsDocument {
+  const { meta } = run.study;
+  return {
+    format: 'kvarbook-results/1',
+    study: {
+      id: meta.id,
+      revision: meta.revision,
+      title: meta.title,
+      project: meta.project,
+      date: meta.date,
+      engineer: meta.engineer,
+      ...(meta.checker ? { checker: meta.checker } : {}),
+    },
+    inputs: run.inputs.map((input) => ({
+      name: input.name,
+      value: input.value,
+      unit: input.unit,
+      source: input.source,
+      given: input.givenText,
+      ...(input.description ? { description: input.description } : {}),
+    })),
+    results: recordsOf(run, 'result'),
+    criteria: recordsOf(run, 'criterion'),
+    cautions: cautionsOf(run),
+    solverCalls: recordsOf(run, 'solver-call').length as number,
+    provenance: run.provenance,
+  };
+}
+
+export type { SolverCallRecord };

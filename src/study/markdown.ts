@@ -1,0 +1,27 @@
+// The one markdown-it configuration of kvarbook: CommonMark plus tables and the `{{ expression }}` inline value.
+import MarkdownIt, { type StateInline } from 'markdown-it';
+
+export const INLINE_VALUE_TOKEN = 'kvarbook_inline_value';
+
+/** Parse `{{ expression }}` as one token before emphasis or code can split it. */
+function inlineValueRule(state: StateInline, silent: boolean): boolean {
+  const start = state.pos;
+  if (state.src.charCodeAt(start) !== 0x7b || state.src.charCodeAt(start + 1) !== 0x7b) return false;
+  const end = state.src.indexOf('}}', start + 2);
+  if (end < 0) return false;
+  if (!silent) {
+    const token = state.push(INLINE_VALUE_TOKEN, '', 0);
+    token.content = state.src.slice(start + 2, end).trim();
+    // Offset inside the paragraph text, so the parser can turn it into a study line.
+    token.meta = { offset: start };
+  }
+  state.pos = end + 2;
+  return true;
+}
+
+export function createMarkdown(): MarkdownIt {
+  const md = new MarkdownIt('commonmark', { html: false });
+  md.enable('table');
+  md.inline.ruler.before('emphasis', 'kvarbook_inline_value', inlineValueRule);
+  return md;
+}

@@ -1,0 +1,92 @@
+// The study as kvarbook understands it after parsing: metadata, typed inputs, calculation blocks, inline values.
+import type { Token } from 'markdown-it';
+import type { SourceLocation } from '../diagnostics/diagnostic.ts';
+import type { ParsedQuantity, QuantityKind } from './units.ts';
+
+export interface Person {
+  name: string;
+  licence?: string;
+  jurisdiction?: string;
+}
+
+export interface RunLimits {
+  /** Wall time one calculation block may take. */
+  blockSeconds: number;
+  /** Wall time the whole study may take. */
+  studySeconds: number;
+  /** Heap the calculation process may use. */
+  heapMb: number;
+}
+
+export const DEFAULT_LIMITS: RunLimits = { blockSeconds: 10, studySeconds: 120, heapMb: 512 };
+
+export interface ReportOptions {
+  pdf: boolean;
+  paper: 'A4' | 'Letter';
+}
+
+export interface StudyMeta {
+  title: string;
+  project: string;
+  id: string;
+  revision: number;
+  /** ISO date (YYYY-MM-DD) of the study; the report never uses the wall clock. */
+  date: string;
+  engineer: Person;
+  checker?: Person;
+  limits: RunLimits;
+  report: ReportOptions;
+}
+
+export interface InputSpec {
+  name: string;
+  given: ParsedQuantity;
+  /** The text as written in the front matter, e.g. "320 km". */
+  givenText: string;
+  kind?: QuantityKind;
+  min?: ParsedQuantity;
+  max?: ParsedQuantity;
+  description?: string;
+  at: SourceLocation;
+}
+
+export interface BlockOptions {
+  /** Run the block but show only its outputs in the report. */
+  hideCode: boolean;
+  /** Show the code in the report but never run it. */
+  noRun: boolean;
+}
+
+export interface CalcBlock {
+  /** 0-based position among all `ts` blocks of the study. */
+  index: number;
+  code: string;
+  /** 1-based study line of the opening fence. */
+  fenceLine: number;
+  /** 1-based study line of the first code line. */
+  firstCodeLine: number;
+  options: BlockOptions;
+}
+
+export interface InlineExpression {
+  id: number;
+  expression: string;
+  at: SourceLocation;
+  /** How many runnable blocks precede it: it is evaluated after that many have run. */
+  afterRunnableBlocks: number;
+}
+
+export interface Study {
+  /** The path as the user named it, used in every location. */
+  file: string;
+  source: string;
+  sourceSha256: string;
+  meta: StudyMeta;
+  inputs: InputSpec[];
+  blocks: CalcBlock[];
+  inlines: InlineExpression[];
+  /** markdown-it tokens of the body, kept for rendering. */
+  bodyTokens: Token[];
+  /** 1-based study line where the Markdown body starts. */
+  bodyFirstLine: number;
+}

@@ -1,0 +1,179 @@
+// Parse stage: study source text -> Study (front matter, inputs, calculation blocks, inline values), or located diagnostics.
+import { createHash } from 'node:crypto';
+import type { Token } from 'markdown-it';
+import { LineCounter, parseDocument, isMap, type Node as YamlNode, type Document } from 'yaml';
+import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { createMarkdown, INLINE_VALUE_TOKEN } from './markdown.ts';
+import { readInputs } from './inputs.ts';
+import { readMeta } from './meta.ts';
+import type { CalcBlock, InlineExpression, Study } from './model.ts';
+
+const FENCE_LINE = /^---\s*$/;
+const CALC_LANGUAGE = 'ts';
+const BLOCK_OPTION_WORDS = { 'hide-code': 'hideCode', 'no-run': 'noRun' } as const;
+
+/** Where a YAML node sits in the study file. */
+export interface YamlPlace {
+  at(node: YamlNode | null | undefined, fallbackLine?: number): SourceLocation;
+}
+
+export function parseStudy(file: string, source: string): Study {
+  const diagnostics: Diagnostic[] = [];
+  const lines = source.split('\n');
+  if (!FENCE_LINE.test(lines[0] ?? '')) {
+    throw new StudyFailure([{
+      code: 'front-matter-missing',
+      message: 'the study must start with YAML front matter between two "---" lines',
+      at: { file, line: 1, column: 1 },
+      hint: 'begin the file with ---, the title, id, revision, date, engineer and inputs, then --- (see `kvarbook new blank`)',
+    }]);
+  }
+  const closing = lines.findIndex((line, index) => index > 0 && FENCE_LINE.test(line));
+  if (closing < 0) {
+    throw new StudyFailure([{
+      code: 'front-matter-unclosed',
+      message: 'the front matter is never closed with a "---" line',
+      at: { file, line: 1, column: 1 },
+      hint: 'add a line with only --- after the last front-matter key',
+    }]);
+  }
+  const yamlText = lines.slice(1, closing).join('\n');
+  const yamlFirstLine = 2;
+  const lineCounter = new LineCounter();
+  const document = parseDocument(yamlText, { lineCounter, prettyErrors: false, uniqueKeys: true });
+  const place: YamlPlace = {
+    at(node, fallbackLine = yamlFirstLine) {
+      const offset = node?.range?.[0];
+      if (offset === undefined) return { file, line: fallbackLine };
+      const { line, col } = lineCounter.linePos(offset);
+      return { file, line: line + yamlFirstLine - 1, column: col };
+    },
+  };
+  for (const error of document.errors) {
+    const { line, col } = lineCounter.linePos(error.pos[0]);
+    const studyLine = line + yamlFirstLine - 1;
+    diagnostics.push({
+      code: 'front-matter-yaml',
+      message: `the front matter is not valid YAML: ${error.message.split('\n')[0]}`,
+      at: { file, line: studyLine, column: col },
+      excerpt: excerptAround(source, studyLine, col),
+      hint: 'check indentation and quoting; a value with a colon needs quotes',
+    });
+  }
+  if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
+  if (!isMap(document.contents)) {
+    throw new StudyFailure([{
+      code: 'front-matter-shape',
+      message: 'the front matter must be a YAML mapping of keys to values',
+      at: { file, line: yamlFirstLine },
+      hint: 'write one key per line, e.g. "title: Reactive compensation of ..."',
+    }]);
+  }
+
+  const meta = readMeta(document as Document.Parsed, place, diagnostics);
+  const inputs = readInputs(document as Document.Parsed, place, diagnostics);
+
+  const bodyFirstLine = closing + 2;
+  const body = lines.slice(closing + 1).join('\n');
+  const md = createMarkdown();
+  const bodyTokens = md.parse(body, {});
+  const { blocks, inlines } = collectBlocksAndInlines(file, source, lines, bodyTokens, bodyFirstLine, diagnostics);
+
+  if (diagnostics.length > 0 || !meta) throw new StudyFailure(diagnostics);
+  return {
+    file,
+    source,
+    sourceSha256: createHash('sha256').update(source, 'utf8').digest('hex'),
+    meta,
+    inputs,
+    blocks,
+    inlines,
+    bodyTokens,
+    bodyFirstLine,
+  };
+}
+
+function collectBlocksAndInlines(
+  file: string,
+  source: string,
+  lines: string[],
+  tokens: Token[],
+  bodyFirstLine: number,
+  diagnostics: Diagnostic[],
+): { blocks: CalcBlock[]; inlines: InlineExpression[] } {
+  const blocks: CalcBlock[] = [];
+  const inlines: InlineExpression[] = [];
+  let runnableSoFar = 0;
+  for (const token of tokens) {
+    if (token.type === 'fence' && token.map) {
+      const fenceLine = token.map[0] + bodyFirstLine;
+      const [language, ...words] = token.info.trim().split(/\s+/);
+      if (language !== CALC_LANGUAGE) continue;
+      checkFenceClosed(file, source, lines, token, fenceLine, bodyFirstLine, diagnostics);
+      const options = { hideCode: false, noRun: false };
+      for (const word of words) {
+        const key = BLOCK_OPTION_WORDS[word as keyof typeof BLOCK_OPTION_WORDS];
+        if (key) options[key] = true;
+        else {
+          diagnostics.push({
+            code: 'block-option-unknown',
+            message: `unknown calculation block option "${word}"`,
+            at: { file, line: fenceLine, column: 1 },
+            excerpt: excerptAround(source, fenceLine),
+            hint: `the options after \`ts\` are: ${Object.keys(BLOCK_OPTION_WORDS).join(', ')}`,
+          });
+        }
+      }
+      blocks.push({ index: blocks.length, code: token.content, fenceLine, firstCodeLine: fenceLine + 1, options });
+      if (!options.noRun) runnableSoFar += 1;
+    } else if (token.type === 'inline' && token.map && token.children) {
+      const paragraphLine = token.map[0] + bodyFirstLine;
+      for (const child of token.children) {
+        if (child.type !== INLINE_VALUE_TOKEN) continue;
+        const before = token.content.slice(0, (child.meta as { offset: number }).offset);
+        const lineInParagraph = before.split('\n').length - 1;
+        const line = paragraphLine + lineInParagraph;
+        const lineText = lines[line - 1] ?? '';
+        const column = lineText.indexOf('{{') + 1 || 1;
+        const at = { file, line, column };
+        if (child.content === '') {
+          diagnostics.push({
+            code: 'inline-empty',
+            message: 'an inline value {{ }} has no expression',
+            at,
+            excerpt: excerptAround(source, line, column),
+            hint: 'write the expression to show between the braces, e.g. {{ chargingMvar }}',
+          });
+          continue;
+        }
+        child.meta = { ...(child.meta as object), id: inlines.length };
+        inlines.push({ id: inlines.length, expression: child.content, at, afterRunnableBlocks: runnableSoFar });
+      }
+    }
+  }
+  return { blocks, inlines };
+}
+
+/** markdown-it lets an unclosed fence run to the end of the document; a study must not. */
+function checkFenceClosed(
+  file: string,
+  source: string,
+  lines: string[],
+  token: Token,
+  fenceLine: number,
+  bodyFirstLine: number,
+  diagnostics: Diagnostic[],
+): void {
+  const lastLine = lines[(token.map as [number, number])[1] + bodyFirstLine - 2] ?? '';
+  const marker = token.markup;
+  if (!lastLine.trim().startsWith(marker) || (token.map as [number, number])[1] - (token.map as [number, number])[0] < 2) {
+    diagnostics.push({
+      code: 'fence-unclosed',
+      message: `the calculation block opened at line ${fenceLine} is never closed`,
+      at: { file, line: fenceLine, column: 1 },
+      excerpt: excerptAround(source, fenceLine),
+      hint: `end the block with a line holding only ${marker}`,
+    });
+  }
+}
+

@@ -1,0 +1,131 @@
+// Physical quantities with units: one mathjs instance that knows the units of the trade (var, pu), dimension checks.
+import { create, all, type Unit } from 'mathjs';
+
+const math = create(all, {});
+// Reactive power is written in var/kvar/Mvar in the trade; dimensionally it is a volt-ampere.
+math.createUnit('var', { definition: '1 VA', prefixes: 'short', aliases: ['VAr'] });
+// A per-unit value has no fixed base, so pu is its own dimension: it cannot silently become kV.
+math.createUnit('pu');
+
+/** The quantity kinds an input may declare; each maps to a unit whose dimension it must have. */
+export const QUANTITY_KINDS = {
+  voltage: 'V',
+  current: 'A',
+  length: 'm',
+  frequency: 'Hz',
+  'active power': 'W',
+  'reactive power': 'var',
+  'apparent power': 'VA',
+  impedance: 'ohm',
+  admittance: 'S',
+  'impedance per length': 'ohm/m',
+  'admittance per length': 'S/m',
+  'inductance per length': 'H/m',
+  'capacitance per length': 'F/m',
+  inductance: 'H',
+  capacitance: 'F',
+  angle: 'rad',
+  time: 's',
+  'per unit': 'pu',
+  ratio: '1',
+} as const;
+
+export type QuantityKind = keyof typeof QUANTITY_KINDS;
+
+export interface ParsedQuantity {
+  /** The number as written, in `unit`. */
+  value: number;
+  /** The unit as written (normalised spacing), '' for a plain number. */
+  unit: string;
+  /** The value in coherent SI units (V, A, m, Hz, W, var, ohm, S, rad, s). */
+  si: number;
+}
+
+export class UnitProblem extends Error {
+  readonly hint: string;
+  constructor(message: string, hint: string) {
+    super(message);
+    this.name = 'UnitProblem';
+    this.hint = hint;
+  }
+}
+
+function toUnit(text: string): Unit | number {
+  const trimmed = text.trim();
+  if (trimmed === '') throw new UnitProblem('the quantity is empty', 'write a number and a unit, e.g. "400 kV"');
+  let parsed: unknown;
+  try {
+    parsed = math.evaluate(trimmed.replace(/(\d)\s*([A-Za-zµΩ])/u, '$1 $2').replace(/µ/g, 'u').replace(/Ω/g, 'ohm'));
+  } catch (error) {
+    throw new UnitProblem(`"${trimmed}" is not a number with a unit (${(error as Error).message})`, 'write a number and a unit, e.g. "400 kV", "0.031 ohm/km", "3.9 uS/km"');
+  }
+  if (typeof parsed === 'number') return parsed;
+  if (math.isUnit(parsed)) return parsed as Unit;
+  throw new UnitProblem(`"${trimmed}" is not a number with a unit`, 'write a number and a unit, e.g. "400 kV"');
+}
+
+/** Parse "400 kV", "3.9 uS/km" or a bare number; throws UnitProblem for anything else. */
+export function parseQuantity(text: string | number): ParsedQuantity {
+  if (typeof text === 'number') {
+    if (!Number.isFinite(text)) throw new UnitProblem(`${text} is not a finite number`, 'give a finite number');
+    return { value: text, unit: '', si: text };
+  }
+  const parsed = toUnit(text);
+  if (typeof parsed === 'number') {
+    if (!Number.isFinite(parsed)) throw new UnitProblem(`"${text}" is not a finite number`, 'give a finite number');
+    return { value: parsed, unit: '', si: parsed };
+  }
+  const value = parsed.toNumeric(parsed.formatUnits()) as number;
+  // SI for a per-unit value is the per-unit number itself: pu has no SI base.
+  const si = parsed.equalBase(math.unit('1 pu')) ? value : (parsed.toSI().toNumeric() as number);
+  if (!Number.isFinite(value) || !Number.isFinite(si)) {
+    throw new UnitProblem(`"${text}" is not a finite quantity`, 'give a finite number');
+  }
+  return { value: cleanFloat(value), unit: parsed.formatUnits().replace(/ /g, ''), si };
+}
+
+/** mathjs stores prefixed values scaled, so 3.9 uS reads back as 3.9000000000000004; 15 significant digits undo that. */
+function cleanFloat(value: number): number {
+  return Number(value.toPrecision(15));
+}
+
+/** True when `unit` (text) has the same physical dimension as the quantity kind. */
+export function dimensionMatches(quantity: ParsedQuantity, kind: QuantityKind): boolean {
+  return sameDimension(quantity.unit, QUANTITY_KINDS[kind]);
+}
+
+export function sameDimension(unitA: string, unitB: string): boolean {
+  const a = unitA === '' || unitA === '1' ? null : toUnit(`1 ${unitA}`);
+  const b = unitB === '' || unitB === '1' ? null : toUnit(`1 ${unitB}`);
+  const aIsNumber = a === null || typeof a === 'number';
+  const bIsNumber = b === null || typeof b === 'number';
+  if (aIsNumber || bIsNumber) return aIsNumber && bIsNumber;
+  return (a as Unit).equalBase(b as Unit);
+}
+
+/** Express `value` given in `fromUnit` in `toUnit`; throws UnitProblem when the dimensions differ. */
+export function convertQuantity(value: number, fromUnit: string, toUnitText: string): number {
+  if (!sameDimension(fromUnit, toUnitText)) {
+    throw new UnitProblem(
+      `cannot express ${fromUnit || 'a plain number'} as ${toUnitText || 'a plain number'}: the dimensions differ`,
+      `ask for a unit of the same dimension as ${fromUnit || 'a plain number'}`,
+    );
+  }
+  if (fromUnit === '' || fromUnit === '1') return value;
+  return cleanFloat(math.unit(value, fromUnit).toNumeric(toUnitText) as number);
+}
+
+/** Check that a unit text is one mathjs knows (for result and table units); returns a problem or null. */
+export function unitProblem(unit: string): string | null {
+  if (unit === '' || unit === '%' || unit === 'pu' || unit === 'p.u.') return null;
+  try {
+    toUnit(`1 ${unit}`);
+    return null;
+  } catch (error) {
+    return (error as Error).message;
+  }
+}
+
+export function describeKinds(): string {
+  return Object.keys(QUANTITY_KINDS).join(', ');
+}
