@@ -6,7 +6,6 @@ import { type InputOverride, effectiveInputs } from './study/inputs.ts';
 import { transpileBlocks, transpileInlines } from './execute/transpile.ts';
 import { typecheckStudy } from './execute/typecheck.ts';
 import { type ExecutionHooks, executeStudy } from './execute/session.ts';
-import { renderChartSvg } from './report/chart/render.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
 
@@ -39,7 +38,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   const blocks = transpileBlocks(study);
   const inlines = transpileInlines(study);
   // 4. Type-check against the block API, unless the author skipped it while drafting.
-  if (request.typecheck) typecheckStudy(study);
+  if (request.typecheck) await typecheckStudy(study);
   // 5. Execute in the sandboxed child.
   const outcome = await executeStudy(study, inputs, blocks, inlines, request.hooks);
   const run: StudyRun = {
@@ -64,7 +63,11 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
 async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
   const rendered: RenderedCharts = new Map();
   const problems: Diagnostic[] = [];
-  for (const record of recordsOf(run, 'chart')) {
+  const chartRecords = recordsOf(run, 'chart');
+  if (chartRecords.length === 0) return rendered;
+  // Vega is large; load it only for a study that draws.
+  const { renderChartSvg } = await import('./report/chart/render.ts');
+  for (const record of chartRecords) {
     try {
       rendered.set(record, await renderChartSvg(record.spec));
     } catch (error) {

@@ -2,7 +2,6 @@
 import { Command, CommanderError, Option } from 'commander';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { installationFacts } from './environment.ts';
-import { runCommand } from './runCommand.ts';
 import { newCommand, templateNames } from './newCommand.ts';
 import { processTerminal, type Terminal } from './terminal.ts';
 
@@ -28,6 +27,8 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .option('-s, --set <name=value>', 'override an input for this run, e.g. --set lineLength=280km (repeatable)', collect, [])
     .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)'))
     .action(async (study: string, options: { out: string; set: string[]; typecheck: boolean }) => {
+      // Loaded on demand so that --help and usage errors answer at once.
+      const { runCommand } = await import('./runCommand.ts');
       setExit(await runCommand(study, options, terminal));
     });
 

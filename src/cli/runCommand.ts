@@ -2,7 +2,7 @@
 import { join } from 'node:path';
 import { parseOverrideArguments } from '../study/inputs.ts';
 import { runStudy, type RunProduct } from '../pipeline.ts';
-import { UNSEALED_NOTICE, assembleReport } from '../report/html.ts';
+import { UNSEALED_NOTICE, assembleReport, criteriaStatus } from '../report/html.ts';
 import { writeFilesAtomically, type PendingFile } from '../output/atomicWrite.ts';
 import { installationFacts } from './environment.ts';
 import { readStudyFile } from './readStudy.ts';
@@ -51,6 +51,6 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   const failed = criteria.filter((criterion) => !criterion.passed).length;
   terminal.say(`report: ${base}.html`);
   terminal.say(`results: ${base}.results.json`);
-  terminal.say(criteria.length === 0 ? 'criteria: none stated' : failed === 0 ? `criteria: all ${criteria.length} met` : `criteria: ${failed} of ${criteria.length} NOT met`);
+  terminal.say(`criteria: ${criteriaStatus(failed, criteria.length)}`);
   return 0;
 }

@@ -22,7 +22,7 @@ function one(raw: unknown): BlockRecord | undefined {
   if (typeof raw !== 'object' || raw === null) return undefined;
   const record = raw as Record<string, unknown>;
   const position = positionOf(record.position);
-  const withPosition = <T extends object>(value: T): T => (position ? { ...value, position } : value);
+  const withPosition = (value: BlockRecord): BlockRecord => (position ? { ...value, position } : value);
   switch (record.kind) {
     case 'result':
       if (!isText(record.name) || !isScalar(record.value) || !isText(record.unit) || !isDigits(record.digits)) return undefined;

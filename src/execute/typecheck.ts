@@ -1,6 +1,6 @@
 // Type-checks all calculation blocks together against the block API, with every error mapped to its study line.
 import { join } from 'node:path';
-import ts from 'typescript';
+import type ts from 'typescript';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
 import { KVARBOOK_ROOT } from './childBundle.ts';
@@ -18,18 +18,20 @@ interface Segment {
   prefixLength: number;
 }
 
-const COMPILER_OPTIONS: ts.CompilerOptions = {
-  target: ts.ScriptTarget.ES2022,
-  module: ts.ModuleKind.ESNext,
-  moduleResolution: ts.ModuleResolutionKind.Bundler,
-  lib: ['lib.es2022.d.ts'],
-  types: [],
-  strict: true,
-  noEmit: true,
-  skipLibCheck: true,
-  allowImportingTsExtensions: true,
-  noUnusedLocals: false,
-};
+function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
+  return {
+    target: typescript.ScriptTarget.ES2022,
+    module: typescript.ModuleKind.ESNext,
+    moduleResolution: typescript.ModuleResolutionKind.Bundler,
+    lib: ['lib.es2022.d.ts'],
+    types: [],
+    strict: true,
+    noEmit: true,
+    skipLibCheck: true,
+    allowImportingTsExtensions: true,
+    noUnusedLocals: false,
+  };
+}
 
 function preamble(study: Study): string {
   const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/child/blockApi.ts'));
@@ -54,7 +56,10 @@ function preamble(study: Study): string {
 }
 
 /** Inline values are checked too, each as an expression after the blocks it follows. */
-export function typecheckStudy(study: Study): void {
+export async function typecheckStudy(study: Study): Promise<void> {
+  // The compiler is large; load it only when a study is checked.
+  const { default: typescript } = await import('typescript');
+  const options = compilerOptions(typescript);
   const segments: Segment[] = [];
   const parts: string[] = [preamble(study)];
   let line = parts[0]!.split('\n').length;
@@ -81,14 +86,14 @@ export function typecheckStudy(study: Study): void {
   parts.push('export {};');
   const text = parts.join('\n');
 
-  const host = ts.createCompilerHost(COMPILER_OPTIONS, true);
+  const host = typescript.createCompilerHost(options, true);
   const readFile = host.readFile.bind(host);
   const getSourceFile = host.getSourceFile.bind(host);
   host.readFile = (fileName) => (fileName === VIRTUAL_FILE ? text : readFile(fileName));
   host.fileExists = ((original) => (fileName: string) => fileName === VIRTUAL_FILE || original(fileName))(host.fileExists.bind(host));
   host.getSourceFile = (fileName, languageVersion, onError, shouldCreate) =>
-    fileName === VIRTUAL_FILE ? ts.createSourceFile(fileName, text, languageVersion, true) : getSourceFile(fileName, languageVersion, onError, shouldCreate);
-  const program = ts.createProgram([VIRTUAL_FILE], COMPILER_OPTIONS, host);
+    fileName === VIRTUAL_FILE ? typescript.createSourceFile(fileName, text, languageVersion, true) : getSourceFile(fileName, languageVersion, onError, shouldCreate);
+  const program = typescript.createProgram([VIRTUAL_FILE], options, host);
   const sourceFile = program.getSourceFile(VIRTUAL_FILE)!;
   const found = [...program.getSyntacticDiagnostics(sourceFile), ...program.getSemanticDiagnostics(sourceFile)];
   const diagnostics: Diagnostic[] = [];
@@ -101,7 +106,7 @@ export function typecheckStudy(study: Study): void {
     const column = position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
     diagnostics.push({
       code: `type-${problem.code}`,
-      message: ts.flattenDiagnosticMessageText(problem.messageText, '\n  '),
+      message: typescript.flattenDiagnosticMessageText(problem.messageText, '\n  '),
       at: { file: study.file, line: studyLine, column },
       excerpt: excerptAround(study.source, studyLine, column),
       hint: 'the block API and solver are typed; run with --no-typecheck to skip this step while drafting',

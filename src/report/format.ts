@@ -23,3 +23,14 @@ export function formatQuantity(value: number | string | boolean, unit = '', digi
   if (!unit) return text;
   return unit === '%' ? `${text} %` : `${text} ${unit}`;
 }
+
+/** A stated number (a limit, a setting) at most `digits` significant figures, without padding zeros: "1 km", "0.95 pu". */
+export function formatStated(value: number, digits = DEFAULT_DIGITS): string {
+  if (!Number.isFinite(value)) throw new RangeError(`cannot format the non-finite number ${value}`);
+  const magnitude = Math.abs(value);
+  if (value !== 0 && (magnitude < 1e-4 || magnitude >= 1e9)) {
+    const [mantissa, exponent] = Number(value.toPrecision(digits)).toExponential().split('e');
+    return `${mantissa}×10^${Number(exponent)}`;
+  }
+  return String(Number(value.toPrecision(digits)));
+}

@@ -7,7 +7,7 @@ import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
 import type { CriterionRecord, TableRecord } from '../execute/records.ts';
 import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
-import { formatNumber, formatQuantity } from './format.ts';
+import { formatNumber, formatQuantity, formatStated } from './format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 
 const md = createMarkdown();
@@ -43,8 +43,16 @@ function slug(text: string, taken: Set<string>): string {
   return candidate;
 }
 
+/** One phrase for the title block and the command line: how the criteria came out. */
+export function criteriaStatus(failed: number, total: number): string {
+  if (total === 0) return 'no criteria stated';
+  if (failed === 0) return total === 1 ? 'the one criterion is met' : `all ${total} criteria met`;
+  return `${failed} of ${total} ${total === 1 ? 'criterion' : 'criteria'} not met`;
+}
+
 function limitsText(record: Pick<CriterionRecord, 'min' | 'max' | 'unit' | 'digits'>): string {
-  const fmt = (value: number) => formatQuantity(value, record.unit, record.digits);
+  // Limits are stated numbers, not computed ones: no padding zeros ("1 km", not "1.000 km").
+  const fmt = (value: number) => formatQuantity(formatStated(value, record.digits), record.unit);
   if (record.min !== undefined && record.max !== undefined) return `${fmt(record.min)} to ${fmt(record.max)}`;
   if (record.min !== undefined) return `at least ${fmt(record.min)}`;
   return `at most ${fmt(record.max as number)}`;
@@ -178,9 +186,9 @@ function inputsTable(run: StudyRun): string {
   if (run.inputs.length === 0) return '<p class="quiet">This study declares no inputs.</p>';
   const rows = run.inputs
     .map((input) => {
-      const range = input.min || input.max ? `${input.min ? formatQuantity(input.min.value, input.min.unit, 6) : '−∞'} to ${input.max ? formatQuantity(input.max.value, input.max.unit, 6) : '+∞'}` : '';
+      const range = input.min || input.max ? `${input.min ? formatQuantity(formatStated(input.min.value, 15), input.min.unit) : '−∞'} to ${input.max ? formatQuantity(formatStated(input.max.value, 15), input.max.unit) : '+∞'}` : '';
       const source = input.source === 'overridden' ? `<span class="overridden">overridden (study gives ${escape(input.givenText)})</span>` : 'as given';
-      return `<tr><td><code>${escape(input.name)}</code></td><td class="num">${escape(formatQuantity(input.value, input.unit, 6))}</td><td>${escape(range)}</td><td>${source}</td><td>${escape(input.description ?? '')}</td></tr>`;
+      return `<tr><td><code>${escape(input.name)}</code></td><td class="num">${escape(formatQuantity(formatStated(input.value, 15), input.unit))}</td><td>${escape(range)}</td><td>${source}</td><td>${escape(input.description ?? '')}</td></tr>`;
     })
     .join('\n');
   return `<table class="data inputs"><thead><tr><th>Input</th><th>Value</th><th>Allowed range</th><th>Source</th><th>Description</th></tr></thead><tbody>\n${rows}\n</tbody></table>`;
@@ -236,8 +244,7 @@ function titleBlock(run: StudyRun, failed: number, total: number): string {
   const person = (p: { name: string; licence?: string; jurisdiction?: string } | undefined) =>
     p ? `${escape(p.name)}${p.licence ? `, licence ${escape(p.licence)}` : ''}${p.jurisdiction ? ` (${escape(p.jurisdiction)})` : ''}` : 'not yet named';
   const overridden = run.inputs.filter((input) => input.source === 'overridden');
-  const status =
-    total === 0 ? 'no criteria stated' : failed === 0 ? `all ${total} criteria met` : `${failed} of ${total} criteria not met`;
+  const status = criteriaStatus(failed, total);
   return `<header class="title-block">
 <p class="kicker">${escape(meta.project)}</p>
 <h1>${escape(meta.title)}</h1>
@@ -247,7 +254,7 @@ function titleBlock(run: StudyRun, failed: number, total: number): string {
 <div><dt>Engineer</dt><dd>${person(meta.engineer)}</dd></div>
 <div><dt>Checker</dt><dd>${person(meta.checker)}</dd></div>
 <div><dt>Status</dt><dd class="${failed > 0 ? 'fail' : 'pass'}">${escape(status)}</dd></div>
-${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escape(input.name)} = ${escape(formatQuantity(input.value, input.unit, 6))}`).join(', ')}</dd></div>` : ''}
+${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escape(input.name)} = ${escape(formatQuantity(formatStated(input.value, 15), input.unit))}`).join(', ')}</dd></div>` : ''}
 </dl>
 </header>`;
 }

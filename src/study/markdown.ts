@@ -1,5 +1,5 @@
 // The one markdown-it configuration of kvarbook: CommonMark plus tables and the `{{ expression }}` inline value.
-import MarkdownIt, { type StateInline } from 'markdown-it';
+import MarkdownIt, { type MarkdownIt as MarkdownItInstance, type StateInline } from 'markdown-it';
 
 export const INLINE_VALUE_TOKEN = 'kvarbook_inline_value';
 
@@ -19,7 +19,7 @@ function inlineValueRule(state: StateInline, silent: boolean): boolean {
   return true;
 }
 
-export function createMarkdown(): MarkdownIt {
+export function createMarkdown(): MarkdownItInstance {
   const md = new MarkdownIt('commonmark', { html: false });
   md.enable('table');
   md.inline.ruler.before('emphasis', 'kvarbook_inline_value', inlineValueRule);

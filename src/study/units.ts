@@ -1,7 +1,7 @@
 // Physical quantities with units: one mathjs instance that knows the units of the trade (var, pu), dimension checks.
 import { create, all, type Unit } from 'mathjs';
 
-const math = create(all, {});
+const math = create(all!, {});
 // Reactive power is written in var/kvar/Mvar in the trade; dimensionally it is a volt-ampere.
 math.createUnit('var', { definition: '1 VA', prefixes: 'short', aliases: ['VAr'] });
 // A per-unit value has no fixed base, so pu is its own dimension: it cannot silently become kV.

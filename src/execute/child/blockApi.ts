@@ -1,7 +1,7 @@
 // The block API: the globals a calculation block calls (inputs, result, table, criterion, caution, chart, figure, solver).
 import type { InputData } from '../protocol.ts';
 import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../records.ts';
-import { DEFAULT_DIGITS, formatQuantity } from '../../report/format.ts';
+import { DEFAULT_DIGITS, formatQuantity, formatStated } from '../../report/format.ts';
 import { UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
 import { summarise } from './summarise.ts';
 
@@ -60,7 +60,8 @@ export class InputValue {
     }
   }
   toString(): string {
-    return formatQuantity(this.value, this.unit, 6);
+    // An input is a stated number: shown as given, without padding zeros.
+    return formatQuantity(formatStated(this.value, 15), this.unit);
   }
 }
 
