@@ -1,5 +1,9 @@
 // The kvarbook command line: parses arguments, calls one command, renders problems once, and picks the exit code.
-import { Command, CommanderError, Option } from 'commander';
+import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
+import type { RunOptions } from './runCommand.ts';
+import type { CheckOptions } from './checkCommand.ts';
+import type { KeyNewOptions } from './keyCommand.ts';
+import { homeFolders } from './homeFolders.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { installationFacts } from './environment.ts';
 import { newCommand, templateNames } from './newCommand.ts';
@@ -11,7 +15,14 @@ function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
 }
 
+function parseTolerance(text: string): number {
+  const value = Number(text);
+  if (!(value > 0 && value < 1)) throw new InvalidArgumentError(`${text} is outside the allowed range (0, 1)`);
+  return value;
+}
+
 export function buildProgram(terminal: Terminal, setExit: (code: number) => void): Command {
+  const folders = homeFolders();
   const program = new Command('kvarbook')
     .description('Executable reactive-compensation studies: Markdown with TypeScript calculation blocks to a sealed, re-checkable report.')
     .version(installationFacts().kvarbookVersion, '-v, --version')
@@ -26,10 +37,51 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .option('-o, --out <dir>', 'folder for the report files', 'build')
     .option('-s, --set <name=value>', 'override an input for this run, e.g. --set lineLength=280km (repeatable)', collect, [])
     .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)'))
-    .action(async (study: string, options: { out: string; set: string[]; typecheck: boolean }) => {
+    .option('--pdf', 'also print the report to PDF with the system Chromium (or set report.pdf in the front matter)')
+    .option('--seal', "seal the report with the engineer's signing key")
+    .option('--replace-sealed', 'move an existing sealed report of the same id and revision to superseded/ instead of refusing')
+    .option('--keys <dir>', 'folder of signing keys', folders.keys)
+    .action(async (study: string, options: RunOptions) => {
       // Loaded on demand so that --help and usage errors answer at once.
       const { runCommand } = await import('./runCommand.ts');
       setExit(await runCommand(study, options, terminal));
+    });
+
+  program
+    .command('check')
+    .description('verify a sealed report: signature, unchanged body, study source, re-run of every figure')
+    .argument('<report>', 'the sealed report (.html, or the .pdf that carries it)')
+    .option('--source <study>', 'the study file, when the report should be checked against a copy the checker holds')
+    .option('--trust <dir>', 'folder of trusted public identities', folders.trusted)
+    .option('--tolerance <relative>', 'relative tolerance for re-computed figures without their own', parseTolerance, 1e-9)
+    .option('--json', 'print the outcome as JSON for machines')
+    .option('--sign', "counter-sign the outcome with the checker's key (writes .check.json and .checked.html)")
+    .option('--keys <dir>', 'folder of signing keys', folders.keys)
+    .action(async (report: string, options: CheckOptions) => {
+      const { checkCommand } = await import('./checkCommand.ts');
+      setExit(await checkCommand(report, options, terminal));
+    });
+
+  const key = program.command('key').description('signing keys of licensed engineers');
+  key
+    .command('new')
+    .description('make a signing key (the private key is stored encrypted; the passphrase comes from KVARBOOK_PASSPHRASE or the terminal)')
+    .requiredOption('--name <name>', "the engineer's name as the studies give it")
+    .requiredOption('--licence <number>', 'licence number')
+    .requiredOption('--jurisdiction <place>', 'licensing jurisdiction')
+    .option('--keys <dir>', 'folder of signing keys', folders.keys)
+    .action(async (options: KeyNewOptions) => {
+      const { keyNewCommand } = await import('./keyCommand.ts');
+      setExit(await keyNewCommand(options, terminal));
+    });
+  key
+    .command('show')
+    .description('print the public identity of the default key (to share with checkers)')
+    .option('--keys <dir>', 'folder of signing keys', folders.keys)
+    .option('--out <file>', 'write it to a new file instead of printing it')
+    .action(async (options: { keys: string; out?: string }) => {
+      const { keyShowCommand } = await import('./keyCommand.ts');
+      setExit(await keyShowCommand(options, terminal));
     });
 
   program

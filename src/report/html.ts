@@ -9,6 +9,7 @@ import type { CriterionRecord, TableRecord } from '../execute/records.ts';
 import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
 import { formatNumber, formatQuantity, formatStated } from './format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
+import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
 
 const md = createMarkdown();
 const escape = md.utils.escapeHtml;
@@ -330,6 +331,7 @@ ${calculationLog(run)}
 <h2>Appendix C. Provenance</h2>
 ${provenanceList(run)}
 </section>
+${jsonScript(STUDY_SOURCE_SCRIPT, JSON.stringify(run.study.source))}
 <footer class="colophon">Produced by kvarbook from ${escape(run.provenance.studyFile)}. Every figure above was computed by the study's own calculation blocks.</footer>
 </body>
 </html>

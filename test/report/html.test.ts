@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { STANDING_CAUTIONS } from '../../src/report/cautions.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
+import { embeddedStudySource } from '../../src/report/embed.ts';
 import { runSource, studyText } from '../support/studies.ts';
 
 const source = studyText({
@@ -31,10 +32,17 @@ const source = studyText({
 describe('the HTML report', async () => {
   const product = await runSource(source, { overrides: [{ name: 'lineLength', text: '280 km' }] });
   const html = assembleReport(product.report, UNSEALED_NOTICE);
+  // What a reader sees: the report without the study source it carries for checkers.
+  const visible = html.replace(/<script[\s\S]*?<\/script>/g, '');
 
-  it('is self-contained: no scripts, no external stylesheets, no fetched resources', () => {
-    expect(html).not.toMatch(/<script|<link |src=["']http|url\(http|@import/);
+  it('is self-contained: no executable scripts, no external stylesheets, no fetched resources', () => {
+    expect(html.match(/<script[^>]*>/g)).toEqual(['<script type="application/json" id="kvarbook-study-source">']);
+    expect(html).not.toMatch(/<link |src=["']http|url\(http|@import/);
     expect(html).toContain('<style>');
+  });
+
+  it('carries its own study source, byte for byte', () => {
+    expect(embeddedStudySource(html)).toBe(source);
   });
 
   it('opens with the title block and the criteria summary before the study body', () => {
@@ -50,7 +58,7 @@ describe('the HTML report', async () => {
 
   it('shows a block’s code and outputs, but hides the code of a hide-code block', () => {
     expect(html).toContain('const lengthKm = inputs.lineLength.in(&quot;km&quot;);');
-    expect(html).not.toContain('hidden code');
+    expect(visible).not.toContain('hidden code');
     expect(html).toContain('Shown anyway');
   });
 
