@@ -97,12 +97,16 @@ export async function typecheckStudy(study: Study): Promise<void> {
   const sourceFile = program.getSourceFile(VIRTUAL_FILE)!;
   const found = [...program.getSyntacticDiagnostics(sourceFile), ...program.getSemanticDiagnostics(sourceFile)];
   const diagnostics: Diagnostic[] = [];
+  const seen = new Set<string>();
   for (const problem of found) {
     if (problem.start === undefined) continue;
     const position = sourceFile.getLineAndCharacterOfPosition(problem.start);
     const segment = segments.find((candidate) => position.line >= candidate.virtualStart && position.line < candidate.virtualStart + candidate.lineCount);
     if (!segment) continue;
     const studyLine = segment.studyLine + (position.line - segment.virtualStart);
+    const key = `${problem.code}:${position.line}:${position.character}`;
+    if (seen.has(key)) continue;
+    seen.add(key);
     const column = position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
     diagnostics.push({
       code: `type-${problem.code}`,

@@ -108,20 +108,28 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
       `<dl class="results">${results
         .map((record) =>
           record.kind === 'result'
-            ? `<div><dt>${escape(record.name)}</dt><dd>${escape(formatQuantity(record.value, record.unit, record.digits))}${record.note ? `<span class="note">${escape(record.note)}</span>` : ''}</dd></div>`
+            ? `<div><dt>${escape(record.name)}</dt><dd>${escape(formatQuantity(record.value, record.unit, record.digits))}</dd>${record.note ? `<p class="note">${escape(record.note)}</p>` : ''}</div>`
             : '',
         )
         .join('')}</dl>`,
     );
   }
+  let pendingCriteria: (CriterionRecord & { at?: SourceLocation })[] = [];
+  const flushCriteria = () => {
+    // Consecutive criteria read as one table, not a column of one-row tables.
+    if (pendingCriteria.length > 0) parts.push(criteriaTable(pendingCriteria, false));
+    pendingCriteria = [];
+  };
   for (const record of records) {
+    if (record.kind === 'criterion') {
+      pendingCriteria.push(record);
+      continue;
+    }
+    flushCriteria();
     switch (record.kind) {
       case 'table':
         counters.table += 1;
         parts.push(tableHtml(record, counters.table));
-        break;
-      case 'criterion':
-        parts.push(criteriaTable([record], false));
         break;
       case 'chart': {
         counters.figure += 1;
@@ -139,6 +147,7 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
         break;
     }
   }
+  flushCriteria();
   return parts.length ? `<div class="outputs">${parts.join('\n')}</div>` : '';
 }
 
@@ -172,7 +181,9 @@ function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, hea
     if (!block) return `<pre class="listing"><code>${escape(token.content)}</code></pre>\n`;
     const outcome = outcomes.get(block.index);
     const code = block.options.hideCode ? '' : `<pre class="calc"><code>${escape(token.content)}</code></pre>`;
-    const badge = block.options.noRun ? '<span class="badge">shown, not run</span>' : `<span class="badge">calculation, line ${block.fenceLine}</span>`;
+    const badge = block.options.noRun
+      ? '<span class="badge">shown, not run</span>'
+      : `<span class="badge">calculation, line ${block.fenceLine}${block.options.hideCode ? ' (code in the study source)' : ''}</span>`;
     const outputs = outcome ? outputsHtml(outcome.records, charts, counters) : '';
     return `<section class="block${block.options.hideCode ? ' code-hidden' : ''}" data-language="${escape(language)}">${badge}${code}${outputs}</section>\n`;
   };
@@ -195,9 +206,32 @@ function inputsTable(run: StudyRun): string {
   return `<table class="data inputs"><thead><tr><th>Input</th><th>Value</th><th>Allowed range</th><th>Source</th><th>Description</th></tr></thead><tbody>\n${rows}\n</tbody></table>`;
 }
 
-function compactJson(value: unknown): string {
-  const text = JSON.stringify(value, (_key, item: unknown) => (typeof item === 'number' ? Number(formatNumber(item, 6).replace(/×10\^/, 'e')) : item));
-  return text === undefined ? '' : text.length > 600 ? `${text.slice(0, 600)}…` : text;
+const LOG_TEXT_LIMIT = 420;
+
+/** A solver argument or result as a reader scans it: names and values, two-ports by their label, long arrays by their ends. */
+function logText(value: unknown, depth = 0): string {
+  if (value === null || value === undefined) return '—';
+  if (typeof value === 'number') return formatStated(value, 5);
+  if (typeof value === 'boolean') return value ? 'yes' : 'no';
+  if (typeof value === 'string') return value;
+  if (Array.isArray(value)) return `[${value.map((item) => logText(item, depth + 1)).join(', ')}]`;
+  if (typeof value !== 'object') return String(value);
+  const record = value as Record<string, unknown>;
+  if (typeof record.kind === 'string' && 'A' in record && 'B' in record) return `${record.kind}${typeof record.label === 'string' ? ` “${record.label}”` : ''}`;
+  if (typeof record.re === 'number' && typeof record.im === 'number' && Object.keys(record).length === 2) {
+    return `${formatStated(record.re, 5)} ${record.im < 0 ? '−' : '+'} j${formatStated(Math.abs(record.im), 5)}`;
+  }
+  if (typeof record.items === 'number' && Array.isArray(record.first) && Array.isArray(record.last)) {
+    return `${record.items} values: ${(record.first as unknown[]).map((item) => logText(item, depth + 1)).join(', ')} … ${(record.last as unknown[]).map((item) => logText(item, depth + 1)).join(', ')}`;
+  }
+  if (depth >= 2) return '{…}';
+  const fields = Object.entries(record).map(([key, item]) => `${key} ${logText(item, depth + 1)}`);
+  return depth === 0 ? fields.join('; ') : `{${fields.join(', ')}}`;
+}
+
+function compactLogText(value: unknown): string {
+  const text = logText(value);
+  return text.length > LOG_TEXT_LIMIT ? `${text.slice(0, LOG_TEXT_LIMIT)}…` : text;
 }
 
 function calculationLog(run: StudyRun): string {
@@ -215,7 +249,9 @@ function calculationLog(run: StudyRun): string {
         detail = `${escape(formatQuantity(record.value, record.unit, record.digits))}; required ${escape(limitsText(record))}; ${record.passed ? 'meets' : 'fails'}`;
       } else if (record.kind === 'solver-call') {
         what = `solver <code>${escape(record.functionName)}</code>`;
-        detail = `<div class="io"><span class="label">in</span> <code>${escape(compactJson(record.argumentsSummary))}</code></div><div class="io"><span class="label">out</span> <code>${escape(compactJson(record.returnedSummary))}</code></div>`;
+        // Solver functions take one options object; show it, not a one-element argument list.
+        const args = Array.isArray(record.argumentsSummary) && record.argumentsSummary.length === 1 ? record.argumentsSummary[0] : record.argumentsSummary;
+        detail = `<div class="io"><span class="label">in</span> ${escape(compactLogText(args))}</div><div class="io"><span class="label">out</span> ${escape(compactLogText(record.returnedSummary))}</div>`;
       } else continue;
       step += 1;
       rows.push(`<tr><td class="num">${step}</td><td>${record.at ? record.at.line : ''}</td><td>${what}</td><td>${detail}</td></tr>`);

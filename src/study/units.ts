@@ -6,6 +6,8 @@ const math = create(all!, {});
 math.createUnit('var', { definition: '1 VA', prefixes: 'short', aliases: ['VAr'] });
 // A per-unit value has no fixed base, so pu is its own dimension: it cannot silently become kV.
 math.createUnit('pu');
+// Loadability is stated in multiples of the line's surge impedance loading: a dimension of its own, like pu.
+math.createUnit('SIL');
 
 /** The quantity kinds an input may declare; each maps to a unit whose dimension it must have. */
 export const QUANTITY_KINDS = {

@@ -1,0 +1,201 @@
+// Transfer curves of a two-port: P-V curve up to the nose, P-delta curve, steady-state limit and the angle for a given transfer.
+import { Complex } from './complex.ts';
+import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
+import { VOLTAGE_RANGE_KV } from './lineModels.ts';
+import { beyondNoseError, lineModelsOf, noseLoadMultiple, readNetwork, receivingVoltageRoots, requireSeriesPath, twoEndPhasors } from './solutions.ts';
+import { labelOf, type AbcdMatrix, type TwoPort } from './twoPort.ts';
+import { degToRad, kvToV, radToDeg } from './units.ts';
+
+const POINT_COUNT_RANGE = { min: 2, max: 100_000 } as const;
+
+export interface PvPoint {
+  pMw: number;
+  qMvar: number;
+  receivingVoltageKv: number;
+}
+
+export interface PvCurve {
+  networkLabel: string;
+  lineModels: string[];
+  sendingVoltageKv: number;
+  powerFactor: number;
+  powerFactorSense: 'lagging' | 'leading';
+  /** Normal operating branch from no load up to the nose. */
+  upperBranch: PvPoint[];
+  /** Low-voltage branch from the nose back to no load. */
+  lowerBranch: PvPoint[];
+  nose: PvPoint;
+}
+
+/** Receiving voltage versus load at a fixed power factor with a fixed sending voltage, both branches, up to the collapse point. */
+export function pvCurve(options: {
+  network: TwoPort;
+  sendingVoltageKv: number;
+  powerFactor: number;
+  powerFactorSense: 'lagging' | 'leading';
+  pointCount?: number;
+}): PvCurve {
+  const hint = "Pass { network, sendingVoltageKv, powerFactor, powerFactorSense: 'lagging' | 'leading', pointCount? }.";
+  const record = requireObject('options', options, hint);
+  const { network, abcd } = readNetwork(record);
+  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const powerFactor = requireNumber('powerFactor', record.powerFactor, { min: 0, max: 1, minInclusive: false }, hint);
+  const powerFactorSense = requireChoice('powerFactorSense', record.powerFactorSense, ['lagging', 'leading'] as const, hint);
+  const pointCount = Math.round(optionalNumber('pointCount', record.pointCount, 101, POINT_COUNT_RANGE, 'Points on each branch.'));
+  requireSeriesPath(abcd, network);
+  const tangent = Math.tan(Math.acos(powerFactor)) * (powerFactorSense === 'lagging' ? 1 : -1);
+  const unitLoad = new Complex(1e6, tangent * 1e6);
+  const sendingLineV = kvToV(sendingVoltageKv);
+  const noseMultiple = noseLoadMultiple(abcd, sendingLineV, unitLoad);
+  if (!Number.isFinite(noseMultiple)) {
+    throw new SolverDomainError({
+      code: 'DEGENERATE_NETWORK',
+      quantity: 'powerFactor',
+      value: powerFactor,
+      allowedRange: 'a power factor for which this network has a finite maximum loadability',
+      hint: 'With this leading power factor the load supplies enough vars that no voltage collapse point exists.',
+    });
+  }
+  const voltagesAt = (pMw: number) => {
+    const roots = receivingVoltageRoots(abcd, sendingLineV, unitLoad.mul(pMw));
+    if (roots === null) throw beyondNoseError(abcd, sendingVoltageKv, unitLoad.mul(pMw));
+    return roots;
+  };
+  const upperBranch: PvPoint[] = [];
+  const lowerBranch: PvPoint[] = [];
+  for (let index = 0; index < pointCount; index += 1) {
+    // The last sample stays a hair below the nose, where the two branches meet.
+    const pMw = (noseMultiple * index) / (pointCount - 1) * (index === pointCount - 1 ? 1 - 1e-12 : 1);
+    const roots = voltagesAt(pMw);
+    upperBranch.push({ pMw, qMvar: pMw * tangent, receivingVoltageKv: roots.upper / 1e3 });
+    lowerBranch.unshift({ pMw, qMvar: pMw * tangent, receivingVoltageKv: roots.lower / 1e3 });
+  }
+  // At the nose the quadratic's two roots coincide: u = -b / (2 |A|^2).
+  const noseB = 2 * noseMultiple * abcd.A.mul(abcd.B.conjugate()).mul(unitLoad).re - sendingLineV * sendingLineV;
+  const noseVoltageKv = Math.sqrt(-noseB / (2 * abcd.A.abs() ** 2)) / 1e3;
+  const nose = { pMw: noseMultiple, qMvar: noseMultiple * tangent, receivingVoltageKv: noseVoltageKv };
+  return assertFiniteResult('pvCurve', {
+    networkLabel: labelOf(network),
+    lineModels: lineModelsOf(network),
+    sendingVoltageKv,
+    powerFactor,
+    powerFactorSense,
+    upperBranch,
+    lowerBranch,
+    nose,
+  });
+}
+
+function receivingPowerMw(abcd: AbcdMatrix, sendingVoltageKv: number, receivingVoltageKv: number, angleRad: number) {
+  const phasors = twoEndPhasors(abcd, sendingVoltageKv, receivingVoltageKv, angleRad);
+  const receiving = phasors.receivingVoltage.mul(phasors.receivingCurrent.conjugate()).mul(3);
+  const sending = phasors.sendingVoltage.mul(phasors.sendingCurrent.conjugate()).mul(3);
+  return { receivingPMw: receiving.re / 1e6, receivingQMvar: receiving.im / 1e6, sendingPMw: sending.re / 1e6, sendingQMvar: sending.im / 1e6 };
+}
+
+/** Angle (rad) of maximum receiving-end power: P_r = Vs Vr/|B| cos(beta - delta) - |A| Vr^2/|B| cos(beta - alpha) peaks at delta = beta = arg B. */
+export function steadyStateLimitAngleRad(abcd: AbcdMatrix): number {
+  return abcd.B.arg();
+}
+
+export interface PowerAnglePoint {
+  angleDeg: number;
+  sendingPMw: number;
+  receivingPMw: number;
+  receivingQMvar: number;
+}
+
+export interface PowerAngleCurve {
+  networkLabel: string;
+  lineModels: string[];
+  sendingVoltageKv: number;
+  receivingVoltageKv: number;
+  points: PowerAnglePoint[];
+  steadyStateLimit: { receivingPMw: number; angleDeg: number };
+}
+
+/** Active power versus the angle between fixed end voltages, and the steady-state transfer limit. */
+export function powerAngleCurve(options: {
+  network: TwoPort;
+  sendingVoltageKv: number;
+  receivingVoltageKv: number;
+  pointCount?: number;
+  maxAngleDeg?: number;
+}): PowerAngleCurve {
+  const hint = 'Pass { network, sendingVoltageKv, receivingVoltageKv, pointCount?, maxAngleDeg? }.';
+  const record = requireObject('options', options, hint);
+  const { network, abcd } = readNetwork(record);
+  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const pointCount = Math.round(optionalNumber('pointCount', record.pointCount, 181, POINT_COUNT_RANGE, 'Points on the curve.'));
+  const maxAngleDeg = optionalNumber('maxAngleDeg', record.maxAngleDeg, 180, { min: 0, max: 180, minInclusive: false, unit: 'deg' }, hint);
+  requireSeriesPath(abcd, network);
+  const points: PowerAnglePoint[] = [];
+  for (let index = 0; index < pointCount; index += 1) {
+    const angleDeg = (maxAngleDeg * index) / (pointCount - 1);
+    const powers = receivingPowerMw(abcd, sendingVoltageKv, receivingVoltageKv, degToRad(angleDeg));
+    points.push({ angleDeg, sendingPMw: powers.sendingPMw, receivingPMw: powers.receivingPMw, receivingQMvar: powers.receivingQMvar });
+  }
+  const limitAngle = steadyStateLimitAngleRad(abcd);
+  return assertFiniteResult('powerAngleCurve', {
+    networkLabel: labelOf(network),
+    lineModels: lineModelsOf(network),
+    sendingVoltageKv,
+    receivingVoltageKv,
+    points,
+    steadyStateLimit: {
+      receivingPMw: receivingPowerMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle).receivingPMw,
+      angleDeg: radToDeg(limitAngle),
+    },
+  });
+}
+
+/** Receiving-end power (MW) at a given angle; exported for the sizing and loadability modules. */
+export function receivingPowerAtAngleMw(abcd: AbcdMatrix, sendingVoltageKv: number, receivingVoltageKv: number, angleRad: number): number {
+  return receivingPowerMw(abcd, sendingVoltageKv, receivingVoltageKv, angleRad).receivingPMw;
+}
+
+/**
+ * Stable-side angle (rad) at which the receiving end gets pMw, for a power not above the steady-state limit.
+ * P_r(delta) = k1 cos(beta - delta) - k0 rises monotonically on [beta - pi, beta], so the angle has a closed form.
+ */
+export function stableAngleForPowerRad(abcd: AbcdMatrix, sendingVoltageKv: number, receivingVoltageKv: number, pMw: number): number {
+  const limitAngle = steadyStateLimitAngleRad(abcd);
+  const limitMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle);
+  const voltageProduct = kvToV(sendingVoltageKv) * kvToV(receivingVoltageKv);
+  const offsetMw = limitMw - voltageProduct / abcd.B.abs() / 1e6;
+  const cosine = ((pMw - offsetMw) * 1e6 * abcd.B.abs()) / voltageProduct;
+  return limitAngle - Math.acos(Math.max(-1, Math.min(1, cosine)));
+}
+
+/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit it throws TRANSFER_LIMIT_EXCEEDED. */
+export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: number; receivingVoltageKv: number; receivingPMw: number }): {
+  angleDeg: number;
+  steadyStateLimitMw: number;
+  marginPercent: number;
+} {
+  const hint = 'Pass { network, sendingVoltageKv, receivingVoltageKv, receivingPMw }.';
+  const record = requireObject('options', options, hint);
+  const { network, abcd } = readNetwork(record);
+  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const receivingPMw = requireNumber('receivingPMw', record.receivingPMw, { min: -1e5, max: 1e5, unit: 'MW' }, hint);
+  requireSeriesPath(abcd, network);
+  const limitAngle = steadyStateLimitAngleRad(abcd);
+  const limitMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle);
+  if (receivingPMw > limitMw) {
+    throw new SolverDomainError({
+      code: 'TRANSFER_LIMIT_EXCEEDED',
+      quantity: 'receivingPMw',
+      value: receivingPMw,
+      allowedRange: `(-∞, ${forMessage(limitMw)}] MW (steady-state limit at ${sendingVoltageKv} kV / ${receivingVoltageKv} kV)`,
+      hint: 'The transfer exceeds the steady-state limit of this network; add series compensation, raise the voltages or add a parallel path.',
+    });
+  }
+  const angleRad = stableAngleForPowerRad(abcd, sendingVoltageKv, receivingVoltageKv, receivingPMw);
+  return assertFiniteResult('angleForTransfer', {
+    angleDeg: radToDeg(angleRad),
+    steadyStateLimitMw: limitMw,
+    marginPercent: ((limitMw - receivingPMw) / limitMw) * 100,
+  });
+}

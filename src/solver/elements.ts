@@ -1,0 +1,186 @@
+// Lumped compensation and system elements as two-ports: series capacitor/reactor, shunt reactor/capacitor, source equivalents.
+import { Complex, requireComplex, toPlain } from './complex.ts';
+import { SolverDomainError, assertFiniteResult, requireChoice, requireNumber, requireObject } from './errors.ts';
+import { VOLTAGE_RANGE_KV } from './lineModels.ts';
+import {
+  abcdToPlain,
+  elementsOf,
+  readTwoPort,
+  seriesImpedanceAbcd,
+  shuntAdmittanceAbcd,
+  type SeriesElementTwoPort,
+  type ShuntElementTwoPort,
+  type SourceEquivalentTwoPort,
+  type TwoPort,
+} from './twoPort.ts';
+import { kvToV } from './units.ts';
+
+const REACTANCE_RANGE_OHM = { min: 0, max: 1e5, minInclusive: false, unit: 'ohm' } as const;
+const MVAR_RANGE = { min: 0, max: 1e5, minInclusive: false, unit: 'Mvar' } as const;
+
+function labelFrom(record: Record<string, unknown>, fallback: string): string {
+  return typeof record.label === 'string' && record.label !== '' ? record.label : fallback;
+}
+
+/** Total series reactance (ohm) of the line sections in a network, at their own frequency. */
+export function lineSeriesReactanceOhm(network: TwoPort): number {
+  return elementsOf(network)
+    .filter((element) => element.kind === 'line-section')
+    .reduce((sum, section) => sum + (section.kind === 'line-section' ? section.perKm.seriesReactanceOhmPerKm * section.lengthKm : 0), 0);
+}
+
+/** Total shunt susceptance (S) of the line sections in a network. */
+export function lineShuntSusceptanceS(network: TwoPort): number {
+  return elementsOf(network)
+    .filter((element) => element.kind === 'line-section')
+    .reduce((sum, section) => sum + (section.kind === 'line-section' ? section.perKm.shuntSusceptanceUsPerKm * 1e-6 * section.lengthKm : 0), 0);
+}
+
+export const DEGREE_OF_COMPENSATION_RANGE = { min: 0, max: 1, minInclusive: false, maxInclusive: false } as const;
+const DEGREE_HINT =
+  "A degree of 1 or more would cancel or reverse the line's series reactance (series resonance at power frequency); practical banks are well below 1.";
+
+export interface SeriesCapacitorOptions {
+  label?: string;
+  /** Capacitive reactance per phase. Give this, or degreeOfCompensation with compensatedLine. */
+  reactanceOhm?: number;
+  degreeOfCompensation?: number;
+  /** The line (section or cascade) whose series reactance the degree refers to. */
+  compensatedLine?: TwoPort;
+}
+
+/** Series capacitor bank: B = -jXc. Sized in ohms or as a degree of a line's series reactance. */
+export function seriesCapacitor(options: SeriesCapacitorOptions): SeriesElementTwoPort {
+  const hint = 'Pass { reactanceOhm } or { degreeOfCompensation, compensatedLine }.';
+  const record = requireObject('options', options, hint);
+  let reactanceOhm: number;
+  let degreeOfCompensation: number | null = null;
+  if (record.reactanceOhm !== undefined) {
+    reactanceOhm = requireNumber('reactanceOhm', record.reactanceOhm, REACTANCE_RANGE_OHM, hint);
+  } else {
+    degreeOfCompensation = requireNumber('degreeOfCompensation', record.degreeOfCompensation, DEGREE_OF_COMPENSATION_RANGE, DEGREE_HINT);
+    const line = readTwoPort('compensatedLine', record.compensatedLine);
+    const lineReactance = lineSeriesReactanceOhm(line);
+    if (!(lineReactance > 0)) {
+      throw new SolverDomainError({
+        code: 'OUT_OF_RANGE',
+        quantity: 'compensatedLine',
+        value: line.kind,
+        allowedRange: 'a line section or a cascade containing line sections',
+        hint: 'The degree of compensation refers to the series reactance of line sections built with lineModel.',
+      });
+    }
+    reactanceOhm = degreeOfCompensation * lineReactance;
+  }
+  return assertFiniteResult('seriesCapacitor', {
+    kind: 'series-capacitor' as const,
+    label: labelFrom(record, `series capacitor ${reactanceOhm.toPrecision(4)} ohm`),
+    reactanceOhm,
+    degreeOfCompensation,
+    ...abcdToPlain(seriesImpedanceAbcd(new Complex(0, -reactanceOhm))),
+  });
+}
+
+/** Series reactor: B = +jX. */
+export function seriesReactor(options: { reactanceOhm: number; label?: string }): SeriesElementTwoPort {
+  const hint = 'Pass { reactanceOhm }.';
+  const record = requireObject('options', options, hint);
+  const reactanceOhm = requireNumber('reactanceOhm', record.reactanceOhm, REACTANCE_RANGE_OHM, hint);
+  return assertFiniteResult('seriesReactor', {
+    kind: 'series-reactor' as const,
+    label: labelFrom(record, `series reactor ${reactanceOhm.toPrecision(4)} ohm`),
+    reactanceOhm,
+    degreeOfCompensation: null,
+    ...abcdToPlain(seriesImpedanceAbcd(new Complex(0, reactanceOhm))),
+  });
+}
+
+export interface ShuntElementOptions {
+  label?: string;
+  /** Three-phase rating at ratedVoltageKv (a positive magnitude). Give this, or admittanceS. */
+  qMvar?: number;
+  ratedVoltageKv?: number;
+  /** Per-phase admittance; a reactor's imaginary part is negative, a capacitor's positive. */
+  admittanceS?: { re: number; im: number };
+}
+
+function shuntElement(kind: 'shunt-reactor' | 'shunt-capacitor', options: ShuntElementOptions): ShuntElementTwoPort {
+  const hint = 'Pass { qMvar, ratedVoltageKv } (three-phase Mvar at rated line-to-line kV) or { admittanceS: { re, im } }.';
+  const record = requireObject('options', options, hint);
+  const sign = kind === 'shunt-reactor' ? -1 : 1;
+  let admittance: Complex;
+  let qMvarAtRatedVoltage: number | null = null;
+  let ratedVoltageKv: number | null = null;
+  if (record.admittanceS !== undefined) {
+    admittance = requireComplex('admittanceS', record.admittanceS, hint);
+    if (!(admittance.im * sign > 0) || admittance.re < 0) {
+      throw new SolverDomainError({
+        code: 'OUT_OF_RANGE',
+        quantity: 'admittanceS.im',
+        value: admittance.im,
+        allowedRange: kind === 'shunt-reactor' ? '(-∞, 0) S (inductive) with re >= 0' : '(0, ∞) S (capacitive) with re >= 0',
+        hint: 'A reactor absorbs reactive power (negative susceptance); a capacitor supplies it (positive susceptance).',
+      });
+    }
+  } else {
+    qMvarAtRatedVoltage = requireNumber('qMvar', record.qMvar, MVAR_RANGE, hint);
+    ratedVoltageKv = requireNumber('ratedVoltageKv', record.ratedVoltageKv, VOLTAGE_RANGE_KV, hint);
+    const ratedVoltageV = kvToV(ratedVoltageKv);
+    admittance = new Complex(0, (sign * qMvarAtRatedVoltage * 1e6) / (ratedVoltageV * ratedVoltageV));
+  }
+  const noun = kind === 'shunt-reactor' ? 'shunt reactor' : 'shunt capacitor';
+  const fallbackLabel = qMvarAtRatedVoltage === null ? noun : `${noun} ${qMvarAtRatedVoltage} Mvar`;
+  return assertFiniteResult(kind === 'shunt-reactor' ? 'shuntReactor' : 'shuntCapacitor', {
+    kind,
+    label: labelFrom(record, fallbackLabel),
+    admittanceS: toPlain(admittance),
+    qMvarAtRatedVoltage,
+    ratedVoltageKv,
+    ...abcdToPlain(shuntAdmittanceAbcd(admittance)),
+  });
+}
+
+/** Shunt reactor: C = Y with an inductive (negative) susceptance. */
+export function shuntReactor(options: ShuntElementOptions): ShuntElementTwoPort {
+  return shuntElement('shunt-reactor', options);
+}
+
+/** Shunt capacitor bank: C = Y with a capacitive (positive) susceptance. */
+export function shuntCapacitor(options: ShuntElementOptions): ShuntElementTwoPort {
+  return shuntElement('shunt-capacitor', options);
+}
+
+export interface SourceEquivalentOptions {
+  label?: string;
+  end: 'sending' | 'receiving';
+  shortCircuitMva: number;
+  xOverR: number;
+  nominalVoltageKv: number;
+}
+
+/**
+ * Thevenin impedance of a system behind a line end, |Z| = V^2 / S_sc at angle atan(X/R).
+ * Placed first (sending system) or last (receiving system) in a cascade; its far terminal is the system EMF.
+ */
+export function sourceEquivalent(options: SourceEquivalentOptions): SourceEquivalentTwoPort {
+  const hint = 'Pass { end, shortCircuitMva, xOverR, nominalVoltageKv }.';
+  const record = requireObject('options', options, hint);
+  const end = requireChoice('end', record.end, ['sending', 'receiving'] as const, hint);
+  const shortCircuitMva = requireNumber('shortCircuitMva', record.shortCircuitMva, { min: 0, max: 1e6, minInclusive: false, unit: 'MVA' }, hint);
+  const xOverR = requireNumber('xOverR', record.xOverR, { min: 0, max: 1e4, minInclusive: false }, 'Ratio of Thevenin reactance to resistance; transmission systems are typically 10 to 30.');
+  const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const voltageV = kvToV(nominalVoltageKv);
+  const magnitudeOhm = (voltageV * voltageV) / (shortCircuitMva * 1e6);
+  const angleRad = Math.atan(xOverR);
+  const impedance = new Complex(magnitudeOhm * Math.cos(angleRad), magnitudeOhm * Math.sin(angleRad));
+  return assertFiniteResult('sourceEquivalent', {
+    kind: 'source-equivalent' as const,
+    label: labelFrom(record, `${end} system ${shortCircuitMva} MVA`),
+    end,
+    impedanceOhm: toPlain(impedance),
+    shortCircuitMva,
+    xOverR,
+    nominalVoltageKv,
+    ...abcdToPlain(seriesImpedanceAbcd(impedance)),
+  });
+}

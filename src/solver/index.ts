@@ -1,0 +1,38 @@
+// Public surface of the solver: every function a study block may call as solver.<name>(options), and the shared types.
+export { SolverDomainError } from './errors.ts';
+export type { SolverErrorCode } from './errors.ts';
+export { polarForm } from './complex.ts';
+export type { ComplexValue, PolarForm } from './complex.ts';
+export { lineConstantsFromGeometry } from './lineConstants.ts';
+export type { ConductorData, GeometryOptions, LineConstantsFromGeometry } from './lineConstants.ts';
+export { lineModel, lineCharacteristics } from './lineModels.ts';
+export type { LineCharacteristics, LineModelOptions, LinePerKmInput } from './lineModels.ts';
+export { cascade, checkReciprocity } from './twoPort.ts';
+export type {
+  CascadeTwoPort,
+  ElementTwoPort,
+  LineModelName,
+  LineSectionTwoPort,
+  PerKmConstants,
+  ReciprocityCheck,
+  SeriesElementTwoPort,
+  ShuntElementTwoPort,
+  SourceEquivalentTwoPort,
+  TwoPort,
+} from './twoPort.ts';
+export { seriesCapacitor, seriesReactor, shuntCapacitor, shuntReactor, sourceEquivalent } from './elements.ts';
+export type { SeriesCapacitorOptions, ShuntElementOptions, SourceEquivalentOptions } from './elements.ts';
+export { solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, solveTwoEndVoltages } from './solutions.ts';
+export type { EndQuantities, LoadInput, OperatingCase, OperatingPoint } from './solutions.ts';
+export { voltageProfile } from './profile.ts';
+export type { VoltageProfile } from './profile.ts';
+export { angleForTransfer, powerAngleCurve, pvCurve } from './curves.ts';
+export type { PowerAngleCurve, PowerAnglePoint, PvCurve, PvPoint } from './curves.ts';
+export { shuntCapacitorForLoadVoltage, shuntReactorForNoLoad, svcRange } from './sizing.ts';
+export type { ReactorPlacement, ShuntCapacitorSizing, ShuntReactorSizing, SvcCaseResult, SvcRange } from './sizing.ts';
+export { seriesCompensationDesign } from './seriesCompensation.ts';
+export type { CapacitorLocation, SeriesCompensationDesign } from './seriesCompensation.ts';
+export { ssrScreening } from './ssr.ts';
+export type { SsrScreening } from './ssr.ts';
+export { lineLoadability } from './loadability.ts';
+export type { LoadabilityCurve, LoadabilityLimit, LoadabilityPoint } from './loadability.ts';

@@ -1,0 +1,257 @@
+// Line models from per-km constants: short, nominal pi and exact distributed two-ports, and the line's wave characteristics.
+import { Complex, toPlain, type ComplexValue } from './complex.ts';
+import {
+  SolverDomainError,
+  assertFiniteResult,
+  optionalNumber,
+  requireChoice,
+  requireNumber,
+  requireObject,
+} from './errors.ts';
+import {
+  abcdToPlain,
+  type AbcdMatrix,
+  type LineModelName,
+  type LineSectionTwoPort,
+  type PerKmConstants,
+} from './twoPort.ts';
+import { angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
+
+/** Per-km line constants as a study gives them; reactance or inductance, susceptance or capacitance. */
+export interface LinePerKmInput {
+  frequencyHz: number;
+  seriesResistanceOhmPerKm: number;
+  seriesReactanceOhmPerKm?: number;
+  seriesInductanceMhPerKm?: number;
+  shuntConductanceUsPerKm?: number;
+  shuntSusceptanceUsPerKm?: number;
+  shuntCapacitanceNfPerKm?: number;
+}
+
+export const LENGTH_RANGE_KM = { min: 0, max: 5000, minInclusive: false, unit: 'km' } as const;
+export const FREQUENCY_RANGE_HZ = { min: 0, max: 1000, minInclusive: false, unit: 'Hz' } as const;
+export const VOLTAGE_RANGE_KV = { min: 0, max: 2000, minInclusive: false, unit: 'kV' } as const;
+
+const PER_KM_HINT =
+  'Give frequencyHz, seriesResistanceOhmPerKm, seriesReactanceOhmPerKm (or seriesInductanceMhPerKm) and shuntSusceptanceUsPerKm (or shuntCapacitanceNfPerKm) for one phase, positive sequence.';
+
+/** Picks one of two equivalent inputs; when both are given they must describe the same quantity. */
+function eitherOf(
+  names: [string, string],
+  values: [unknown, unknown],
+  toFirstUnit: (second: number) => number,
+  range: { min: number; max: number; minInclusive?: boolean; unit: string },
+  secondUnit: string,
+): number {
+  const [firstName, secondName] = names;
+  const [firstValue, secondValue] = values;
+  if (firstValue === undefined && secondValue === undefined) {
+    throw new SolverDomainError({
+      code: 'MISSING_QUANTITY',
+      quantity: `${firstName} (or ${secondName})`,
+      value: null,
+      allowedRange: `[${range.min}, ${range.max}] ${range.unit}`,
+      hint: PER_KM_HINT,
+    });
+  }
+  const first = firstValue === undefined ? undefined : requireNumber(firstName, firstValue, range, PER_KM_HINT);
+  const second =
+    secondValue === undefined
+      ? undefined
+      : toFirstUnit(requireNumber(secondName, secondValue, { min: 0, max: Number.MAX_VALUE, unit: secondUnit }, PER_KM_HINT));
+  if (first !== undefined && second !== undefined) {
+    if (Math.abs(first - second) > 1e-9 * Math.max(Math.abs(first), Math.abs(second))) {
+      throw new SolverDomainError({
+        code: 'INCONSISTENT_QUANTITIES',
+        quantity: firstName,
+        value: first,
+        allowedRange: `${second} ${range.unit} (the value implied by ${secondName} at this frequency)`,
+        hint: `Give either ${firstName} or ${secondName}, or make them agree.`,
+      });
+    }
+  }
+  const resolved = first ?? second;
+  return requireNumber(firstName, resolved, range, PER_KM_HINT);
+}
+
+/** Validated per-km constants in practitioner units plus the SI per-metre impedance and admittance. */
+export interface ResolvedLineConstants {
+  frequencyHz: number;
+  perKm: PerKmConstants;
+  seriesImpedanceOhmPerM: Complex;
+  shuntAdmittanceSPerM: Complex;
+}
+
+export function resolveLineConstants(input: Record<string, unknown>): ResolvedLineConstants {
+  const frequencyHz = requireNumber('frequencyHz', input.frequencyHz, FREQUENCY_RANGE_HZ, 'Power frequency, usually 50 or 60 Hz.');
+  const omega = angularFrequency(frequencyHz);
+  const seriesResistanceOhmPerKm = requireNumber('seriesResistanceOhmPerKm', input.seriesResistanceOhmPerKm, { min: 0, max: 100, unit: 'ohm/km' }, PER_KM_HINT);
+  const seriesReactanceOhmPerKm = eitherOf(
+    ['seriesReactanceOhmPerKm', 'seriesInductanceMhPerKm'],
+    [input.seriesReactanceOhmPerKm, input.seriesInductanceMhPerKm],
+    (mhPerKm) => omega * mhPerKm * 1e-3,
+    { min: 0, max: 100, minInclusive: false, unit: 'ohm/km' },
+    'mH/km',
+  );
+  const shuntSusceptanceUsPerKm = eitherOf(
+    ['shuntSusceptanceUsPerKm', 'shuntCapacitanceNfPerKm'],
+    [input.shuntSusceptanceUsPerKm, input.shuntCapacitanceNfPerKm],
+    (nfPerKm) => omega * nfPerKm * 1e-9 * 1e6,
+    { min: 0, max: 1000, unit: 'uS/km' },
+    'nF/km',
+  );
+  const shuntConductanceUsPerKm = optionalNumber('shuntConductanceUsPerKm', input.shuntConductanceUsPerKm, 0, { min: 0, max: 100, unit: 'uS/km' }, PER_KM_HINT);
+  return {
+    frequencyHz,
+    perKm: { seriesResistanceOhmPerKm, seriesReactanceOhmPerKm, shuntConductanceUsPerKm, shuntSusceptanceUsPerKm },
+    seriesImpedanceOhmPerM: new Complex(seriesResistanceOhmPerKm / 1e3, seriesReactanceOhmPerKm / 1e3),
+    shuntAdmittanceSPerM: new Complex(shuntConductanceUsPerKm * 1e-9, shuntSusceptanceUsPerKm * 1e-9),
+  };
+}
+
+export function perKmToSi(perKm: PerKmConstants): { z: Complex; y: Complex } {
+  return {
+    z: new Complex(perKm.seriesResistanceOhmPerKm / 1e3, perKm.seriesReactanceOhmPerKm / 1e3),
+    y: new Complex(perKm.shuntConductanceUsPerKm * 1e-9, perKm.shuntSusceptanceUsPerKm * 1e-9),
+  };
+}
+
+function requirePositiveSusceptance(model: LineModelName, perKm: PerKmConstants): void {
+  if (model === 'distributed' && !(perKm.shuntSusceptanceUsPerKm > 0)) {
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: 'shuntSusceptanceUsPerKm',
+      value: perKm.shuntSusceptanceUsPerKm,
+      allowedRange: '(0, 1000] uS/km for the distributed model',
+      hint: "The distributed model needs the line's shunt susceptance; use model 'short' to neglect it.",
+    });
+  }
+}
+
+/** ABCD of a uniform line of the given length (metres) under one model; used for whole sections and for points inside them. */
+export function lineAbcd(model: LineModelName, z: Complex, y: Complex, lengthM: number): AbcdMatrix {
+  const seriesImpedance = z.mul(lengthM);
+  const shuntAdmittance = y.mul(lengthM);
+  if (model === 'short') {
+    return { A: new Complex(1, 0), B: seriesImpedance, C: new Complex(0, 0), D: new Complex(1, 0) };
+  }
+  if (model === 'nominal-pi') {
+    const halfZy = seriesImpedance.mul(shuntAdmittance).div(2);
+    const A = halfZy.add(1);
+    return { A, B: seriesImpedance, C: shuntAdmittance.mul(halfZy.div(2).add(1)), D: A };
+  }
+  const gammaLength = z.mul(y).sqrt().mul(lengthM);
+  const surgeImpedance = z.div(y).sqrt();
+  const cosh = gammaLength.cosh();
+  const sinh = gammaLength.sinh();
+  return { A: cosh, B: surgeImpedance.mul(sinh), C: sinh.div(surgeImpedance), D: cosh };
+}
+
+export interface LineModelOptions extends LinePerKmInput {
+  lengthKm: number;
+  model?: LineModelName;
+  label?: string;
+}
+
+const MODELS: readonly LineModelName[] = ['distributed', 'nominal-pi', 'short'];
+
+/** A line section as a two-port under the chosen model (default: exact distributed). */
+export function lineModel(options: LineModelOptions): LineSectionTwoPort {
+  const record = requireObject('options', options, PER_KM_HINT);
+  const constants = resolveLineConstants(record);
+  const lengthKm = requireNumber('lengthKm', record.lengthKm, LENGTH_RANGE_KM, 'Route length of this section.');
+  const model = record.model === undefined ? 'distributed' : requireChoice('model', record.model, MODELS, 'Choose the line model.');
+  requirePositiveSusceptance(model, constants.perKm);
+  const matrix = lineAbcd(model, constants.seriesImpedanceOhmPerM, constants.shuntAdmittanceSPerM, lengthKm * 1e3);
+  const label = typeof record.label === 'string' && record.label !== '' ? record.label : `line ${lengthKm} km`;
+  return assertFiniteResult('lineModel', {
+    kind: 'line-section' as const,
+    model,
+    label,
+    lengthKm,
+    frequencyHz: constants.frequencyHz,
+    perKm: constants.perKm,
+    ...abcdToPlain(matrix),
+  });
+}
+
+/** The same line cut to another length, e.g. halves around a mid-line series capacitor. */
+export function resizedSection(section: LineSectionTwoPort, lengthKm: number, label: string): LineSectionTwoPort {
+  const { z, y } = perKmToSi(section.perKm);
+  return {
+    ...section,
+    label,
+    lengthKm,
+    ...abcdToPlain(lineAbcd(section.model, z, y, lengthKm * 1e3)),
+  };
+}
+
+export interface LineCharacteristics {
+  model: 'distributed';
+  lengthKm: number;
+  frequencyHz: number;
+  propagationConstantPerKm: ComplexValue;
+  attenuationNeperPerKm: number;
+  phaseConstantRadPerKm: number;
+  phaseConstantDegPerKm: number;
+  surgeImpedanceOhm: ComplexValue;
+  surgeImpedanceMagnitudeOhm: number;
+  /** sqrt(x / b): the surge impedance with losses neglected, the basis of the surge impedance loading. */
+  losslessSurgeImpedanceOhm: number;
+  wavelengthKm: number;
+  propagationVelocityKmPerS: number;
+  electricalLengthDeg: number;
+  nominalVoltageKv: number;
+  surgeImpedanceLoadingMw: number;
+  /** Charging current drawn by the whole line's capacitance at nominal phase voltage. */
+  chargingCurrentA: number;
+  /** Three-phase charging reactive power V^2 * omega * C * length at nominal voltage. */
+  chargingMvar: number;
+  equivalentPi: { seriesImpedanceOhm: ComplexValue; shuntAdmittanceEachEndS: ComplexValue };
+  nominalPi: { seriesImpedanceOhm: ComplexValue; shuntAdmittanceEachEndS: ComplexValue };
+}
+
+/** Propagation constant, surge impedance, wavelength, electrical length, SIL, charging and the pi equivalents of a line. */
+export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number; nominalVoltageKv: number }): LineCharacteristics {
+  const record = requireObject('options', options, PER_KM_HINT);
+  const constants = resolveLineConstants(record);
+  const lengthKm = requireNumber('lengthKm', record.lengthKm, LENGTH_RANGE_KM, 'Route length of the line.');
+  const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line nominal voltage.');
+  requirePositiveSusceptance('distributed', constants.perKm);
+  const z = constants.seriesImpedanceOhmPerM;
+  const y = constants.shuntAdmittanceSPerM;
+  const lengthM = lengthKm * 1e3;
+  const gammaPerM = z.mul(y).sqrt();
+  const surgeImpedance = z.div(y).sqrt();
+  const gammaLength = gammaPerM.mul(lengthM);
+  const phaseRadPerKm = gammaPerM.im * 1e3;
+  const losslessSurgeImpedanceOhm = Math.sqrt(constants.perKm.seriesReactanceOhmPerKm / (constants.perKm.shuntSusceptanceUsPerKm * 1e-6));
+  const susceptanceTotalS = constants.perKm.shuntSusceptanceUsPerKm * 1e-6 * lengthKm;
+  const voltageV = kvToV(nominalVoltageKv);
+  const seriesTotal = z.mul(lengthM);
+  const shuntTotal = y.mul(lengthM);
+  const equivalentSeries = seriesTotal.mul(gammaLength.sinh().div(gammaLength));
+  const equivalentShuntHalf = shuntTotal.div(2).mul(gammaLength.div(2).tanh().div(gammaLength.div(2)));
+  return assertFiniteResult('lineCharacteristics', {
+    model: 'distributed' as const,
+    lengthKm,
+    frequencyHz: constants.frequencyHz,
+    propagationConstantPerKm: toPlain(gammaPerM.mul(1e3)),
+    attenuationNeperPerKm: gammaPerM.re * 1e3,
+    phaseConstantRadPerKm: phaseRadPerKm,
+    phaseConstantDegPerKm: radToDeg(phaseRadPerKm),
+    surgeImpedanceOhm: toPlain(surgeImpedance),
+    surgeImpedanceMagnitudeOhm: surgeImpedance.abs(),
+    losslessSurgeImpedanceOhm,
+    wavelengthKm: (2 * Math.PI) / phaseRadPerKm,
+    propagationVelocityKmPerS: (angularFrequency(constants.frequencyHz) / phaseRadPerKm),
+    electricalLengthDeg: radToDeg(gammaLength.im),
+    nominalVoltageKv,
+    surgeImpedanceLoadingMw: (voltageV * voltageV) / losslessSurgeImpedanceOhm / 1e6,
+    chargingCurrentA: phaseVoltsFromLineKv(nominalVoltageKv) * susceptanceTotalS,
+    chargingMvar: (voltageV * voltageV * susceptanceTotalS) / 1e6,
+    equivalentPi: { seriesImpedanceOhm: toPlain(equivalentSeries), shuntAdmittanceEachEndS: toPlain(equivalentShuntHalf) },
+    nominalPi: { seriesImpedanceOhm: toPlain(seriesTotal), shuntAdmittanceEachEndS: toPlain(shuntTotal.div(2)) },
+  });
+}
+

@@ -1,0 +1,138 @@
+import { execFileSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { studyText } from '../support/studies.ts';
+import { readPdfAttachments } from '../../src/report/pdf/index.ts';
+
+const PASSPHRASE = 'a long enough passphrase';
+const study = studyText({
+  inputs: '  lineLength: 320 km',
+  body: '# Charging\n\n```ts\nconst chargingMvar = 0.4 * inputs.lineLength.in("km");\nresult("Charging", chargingMvar, { unit: "Mvar" });\n```\n\nThe line charges {{ chargingMvar }} Mvar.\n',
+});
+
+/** One engineer with a key, and a checker's trust folder holding the engineer's identity. */
+function workspace() {
+  const folder = scratchFolder('kvarbook-seal-');
+  const env = { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE };
+  writeFileSync(join(folder, 'line.study.md'), study);
+  expect(kvarbook(['key', 'new', '--name', 'Test Engineer', '--licence', 'T-0', '--jurisdiction', 'Testland'], folder, env).status).toBe(0);
+  mkdirSync(join(folder, 'home', 'trusted'), { recursive: true });
+  expect(kvarbook(['key', 'show', '--out', join(folder, 'home', 'trusted', 'engineer.json')], folder, env).status).toBe(0);
+  return { folder, env };
+}
+
+describe('sealing and checking from the command line', () => {
+  let space: ReturnType<typeof workspace>;
+  beforeAll(() => {
+    space = workspace();
+    const sealed = kvarbook(['run', 'line.study.md', '--seal', '--pdf'], space.folder, space.env);
+    expect(sealed.stderr).toBe('');
+    expect(sealed.status).toBe(0);
+  });
+
+  it('writes the sealed report, its seal file and a PDF, and the check verifies them', () => {
+    expect(readdirSync(join(space.folder, 'build')).sort()).toEqual(['TEST-1-r1.html', 'TEST-1-r1.pdf', 'TEST-1-r1.results.json', 'TEST-1-r1.seal.json']);
+    const check = kvarbook(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
+    expect(check.stdout).toContain('verdict: VERIFIED');
+    expect(check.status).toBe(0);
+  });
+
+  it('verifies from the PDF alone', () => {
+    const check = kvarbook(['check', 'build/TEST-1-r1.pdf', '--json'], space.folder, space.env);
+    expect(JSON.parse(check.stdout).verdict).toBe('verified');
+    expect(check.status).toBe(0);
+  });
+
+  it('prints the title and the spliced value in the PDF, and carries the results JSON as an attachment', async () => {
+    const text = execFileSync('pdftotext', [join(space.folder, 'build/TEST-1-r1.pdf'), '-'], { encoding: 'utf8' });
+    expect(text).toContain('Test study');
+    expect(text).toContain('128.0');
+    const attachments = await readPdfAttachments(readFileSync(join(space.folder, 'build/TEST-1-r1.pdf')));
+    const results = attachments.find((attachment) => attachment.fileName === 'TEST-1-r1.results.json');
+    expect(Buffer.from(results!.content).equals(readFileSync(join(space.folder, 'build/TEST-1-r1.results.json')))).toBe(true);
+    const seal = attachments.find((attachment) => attachment.fileName === 'TEST-1-r1.seal.json');
+    expect(Buffer.from(seal!.content).equals(readFileSync(join(space.folder, 'build/TEST-1-r1.seal.json')))).toBe(true);
+  });
+
+  it('refuses to overwrite the sealed report, and leaves it as it was', () => {
+    const before = readFileSync(join(space.folder, 'build/TEST-1-r1.html'));
+    const again = kvarbook(['run', 'line.study.md'], space.folder, space.env);
+    expect(again.status).toBe(1);
+    expect(again.stderr).toContain('sealed report');
+    expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
+  });
+
+  it('fails the check, exit 1, when a figure in the report is edited', () => {
+    const html = readFileSync(join(space.folder, 'build/TEST-1-r1.html'), 'utf8');
+    writeFileSync(join(space.folder, 'edited.html'), html.replace('<dd>128.0 Mvar</dd>', '<dd>118.0 Mvar</dd>'));
+    const check = kvarbook(['check', 'edited.html'], space.folder, space.env);
+    expect(check.status).toBe(1);
+    expect(check.stdout).toContain('report unchanged   FAIL');
+  });
+
+  it('fails the check against an edited copy of the study source', () => {
+    writeFileSync(join(space.folder, 'edited.study.md'), study.replace('0.4 *', '0.41 *'));
+    const check = kvarbook(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md'], space.folder, space.env);
+    expect(check.status).toBe(1);
+    expect(check.stdout).toContain('study source       FAIL');
+  });
+
+  it('fails the check when the signer is not trusted', () => {
+    const check = kvarbook(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
+    expect(check.status).toBe(1);
+    expect(check.stdout).toContain('NOT in the trust folder');
+  });
+
+  it('counter-signs a verified report: a check record and a report showing both signatures', () => {
+    const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign'], space.folder, space.env);
+    expect(signed.status).toBe(0);
+    const checked = readFileSync(join(space.folder, 'build/TEST-1-r1.checked.html'), 'utf8');
+    expect(checked).toContain('<strong>Sealed</strong> by Test Engineer');
+    expect(checked).toContain('<strong>Checked</strong> by Test Engineer');
+    const recheck = kvarbook(['check', 'build/TEST-1-r1.checked.html'], space.folder, space.env);
+    expect(recheck.stdout).toContain('counter-signatures');
+    expect(recheck.status).toBe(0);
+  });
+
+  it('moves the sealed set aside, never deleting it, when asked to replace it', () => {
+    const replaced = kvarbook(['run', 'line.study.md', '--seal', '--replace-sealed'], space.folder, space.env);
+    expect(replaced.status).toBe(0);
+    const superseded = readdirSync(join(space.folder, 'build', 'superseded'));
+    expect(superseded).toHaveLength(1);
+    expect(readdirSync(join(space.folder, 'build', 'superseded', superseded[0]!))).toContain('TEST-1-r1.seal.json');
+  });
+
+  it('never writes private key material into any output file', () => {
+    const keysFolder = join(space.folder, 'home', 'keys');
+    const keyFile = readdirSync(keysFolder).find((name) => name.endsWith('.key.pem'))!;
+    const pemLines = readFileSync(join(keysFolder, keyFile), 'utf8').split('\n').filter((line) => line && !line.startsWith('-----'));
+    const outputs = readdirSync(join(space.folder, 'build')).filter((name) => existsSync(join(space.folder, 'build', name)) && !name.startsWith('superseded'));
+    for (const name of outputs) {
+      const content = readFileSync(join(space.folder, 'build', name)).toString('latin1');
+      expect(content).not.toMatch(/PRIVATE KEY/);
+      for (const line of pemLines) expect(content).not.toContain(line);
+    }
+  });
+});
+
+describe('keys', () => {
+  it('refuses to seal with a wrong passphrase, and writes nothing', () => {
+    const { folder, env } = workspace();
+    const run = kvarbook(['run', 'line.study.md', '--seal'], folder, { ...env, KVARBOOK_PASSPHRASE: 'not the right passphrase' });
+    expect(run.status).toBe(1);
+    expect(run.stderr).toContain('wrong-passphrase');
+    expect(existsSync(join(folder, 'build'))).toBe(false);
+  });
+
+  it('refuses to seal with the key of someone other than the engineer the study names', () => {
+    const folder = scratchFolder('kvarbook-seal-');
+    const env = { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE };
+    writeFileSync(join(folder, 'line.study.md'), study);
+    kvarbook(['key', 'new', '--name', 'Other Person', '--licence', 'O-9', '--jurisdiction', 'Testland'], folder, env);
+    const run = kvarbook(['run', 'line.study.md', '--seal'], folder, env);
+    expect(run.status).toBe(1);
+    expect(run.stderr).toContain('seal-not-the-engineer');
+  });
+});

@@ -1,0 +1,64 @@
+import { describe, expect, test } from 'vitest';
+import fc from 'fast-check';
+import { SolverDomainError, angleForTransfer, cascade, lineModel, powerAngleCurve, pvCurve, seriesCapacitor, solveFixedSendingVoltage } from '../../src/solver/index.ts';
+
+const shortLossless = (reactanceOhm: number) => lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: reactanceOhm / 100, shuntSusceptanceUsPerKm: 0, lengthKm: 100, model: 'short' });
+
+describe('pvCurve', () => {
+  // Radial lossless reactance at unity power factor: Pmax = E^2 / (2X) at V = E / sqrt(2)
+  // (Van Cutsem & Vournas, "Voltage Stability of Electric Power Systems", 1998, ch. 2; from memory).
+  test('puts the nose of a lossless radial line at E^2/(2X) and E/sqrt(2) for unity power factor', () => {
+    const curve = pvCurve({ network: shortLossless(50), sendingVoltageKv: 400, powerFactor: 1, powerFactorSense: 'lagging' });
+    expect(curve.nose.pMw).toBeCloseTo(400 ** 2 / (2 * 50), 9);
+    expect(curve.nose.receivingVoltageKv).toBeCloseTo(400 / Math.SQRT2, 6);
+  });
+
+  test('starts the upper branch at the open-circuit voltage and the lower branch ends at zero', () => {
+    const curve = pvCurve({ network: shortLossless(50), sendingVoltageKv: 400, powerFactor: 0.95, powerFactorSense: 'lagging', pointCount: 11 });
+    expect(curve.upperBranch[0]?.receivingVoltageKv).toBeCloseTo(400, 9);
+    expect(curve.lowerBranch[curve.lowerBranch.length - 1]?.receivingVoltageKv).toBeCloseTo(0, 9);
+  });
+
+  test('agrees with the Newton solution on the upper branch', () => {
+    const line = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 });
+    const curve = pvCurve({ network: line, sendingVoltageKv: 765, powerFactor: 0.97, powerFactorSense: 'lagging', pointCount: 11 });
+    const sample = curve.upperBranch[6]!;
+    const newton = solveFixedSendingVoltage({ network: line, sendingVoltageKv: 765, load: { pMw: sample.pMw, qMvar: sample.qMvar } });
+    expect(newton.receivingEnd.voltageKv).toBeCloseTo(sample.receivingVoltageKv, 6);
+  });
+});
+
+describe('powerAngleCurve', () => {
+  // Lossless reactance: P = Vs Vr sin(delta) / X, maximum Vs Vr / X at 90 deg.
+  test('peaks at Vs Vr / X at 90 degrees for a lossless reactance', () => {
+    const curve = powerAngleCurve({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400 });
+    expect(curve.steadyStateLimit.receivingPMw).toBeCloseTo(400 ** 2 / 80, 9);
+    expect(curve.steadyStateLimit.angleDeg).toBeCloseTo(90, 9);
+  });
+
+  // Identity from the brief: series compensation of degree k raises the maximum transfer by 1 / (1 - k).
+  test('raises the maximum transfer by 1/(1 - k) with series compensation k', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 10, max: 200, noNaN: true }), fc.double({ min: 0.05, max: 0.8, noNaN: true }), (reactanceOhm, degree) => {
+        const line = shortLossless(reactanceOhm);
+        const compensated = cascade({ elements: [line, seriesCapacitor({ degreeOfCompensation: degree, compensatedLine: line })] });
+        const plain = powerAngleCurve({ network: line, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw;
+        const raised = powerAngleCurve({ network: compensated, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw;
+        expect(raised / plain).toBeCloseTo(1 / (1 - degree), 9);
+      }),
+    );
+  });
+});
+
+describe('angleForTransfer', () => {
+  test('inverts the power-angle relation on the stable side', () => {
+    const result = angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 1000 });
+    expect(result.angleDeg).toBeCloseTo((Math.asin((1000 * 80) / 400 ** 2) * 180) / Math.PI, 9);
+  });
+
+  test('throws TRANSFER_LIMIT_EXCEEDED above the steady-state limit', () => {
+    const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 2500 });
+    expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(/receivingPMw = 2500 is outside the allowed range \(-∞, 2000\] MW/);
+  });
+});

@@ -1,0 +1,115 @@
+import { describe, expect, test } from 'vitest';
+import fc from 'fast-check';
+import { lineCharacteristics, lineModel, polarForm, solveNoLoad } from '../../src/solver/index.ts';
+import type { ComplexValue } from '../../src/solver/index.ts';
+
+const polar = (value: ComplexValue) => polarForm({ value });
+
+// Glover, Sarma & Overbye, "Power System Analysis and Design", Example 5.2 (values from memory):
+// 765 kV, 60 Hz, 300 km, z = 0.0165 + j0.3306 ohm/km, y = j4.674e-6 S/km.
+const glover = { frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 };
+// Saadat, "Power System Analysis" (2nd ed.), Example 5.6 (values from memory): 500 kV, 60 Hz, 300 km, lossless,
+// L = 0.97 mH/km, C = 0.0115 uF/km.
+const saadat = { frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesInductanceMhPerKm: 0.97, shuntCapacitanceNfPerKm: 11.5, lengthKm: 300 };
+
+describe('lineModel', () => {
+  test('gives the exact ABCD parameters of the Glover example 765 kV line', () => {
+    const line = lineModel(glover);
+    expect(polar(line.A).magnitude).toBeCloseTo(0.9313, 4);
+    expect(Math.abs(polar(line.A).angleDeg - 0.209)).toBeLessThanOrEqual(0.0005);
+    expect(Math.abs(polar(line.B).magnitude - 97.0)).toBeLessThanOrEqual(0.05);
+    expect(Math.abs(polar(line.B).angleDeg - 87.2)).toBeLessThanOrEqual(0.05);
+    expect(Math.abs(polar(line.C).magnitude - 1.37e-3)).toBeLessThanOrEqual(0.005e-3);
+    expect(line.A).toEqual(line.D);
+  });
+
+  test('gives the nominal-pi B parameter of the same example, 99.3 ohm at 87.14 deg', () => {
+    const line = lineModel({ ...glover, model: 'nominal-pi' });
+    expect(Math.abs(polar(line.B).magnitude - 99.3)).toBeLessThanOrEqual(0.05);
+    expect(Math.abs(polar(line.B).angleDeg - 87.14)).toBeLessThanOrEqual(0.005);
+  });
+
+  test('states the model used on the two-port', () => {
+    expect(lineModel({ ...glover, model: 'short' }).model).toBe('short');
+    expect(lineModel(glover).model).toBe('distributed');
+  });
+
+  // Series expansions: exact A = cosh(gl) = 1 + (gl)^2/2 + (gl)^4/24 + ..., nominal-pi A = 1 + ZY/2, so they differ by about (gl)^4/24;
+  // exact B = Z sinh(gl)/(gl) = Z (1 + (gl)^2/6 + ...), so B differs by a relative (gl)^2/6.
+  test('differs from the nominal pi by the leading terms of the series expansion', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 1, max: 100, noNaN: true }), (lengthKm) => {
+        const exact = lineModel({ ...glover, lengthKm });
+        const pi = lineModel({ ...glover, lengthKm, model: 'nominal-pi' });
+        const gammaLengthSquared = Math.hypot(0.0165, 0.3306) * 4.674e-6 * lengthKm ** 2;
+        expect(Math.hypot(exact.A.re - pi.A.re, exact.A.im - pi.A.im)).toBeLessThanOrEqual((gammaLengthSquared ** 2 / 24) * 1.05);
+        expect(Math.hypot(exact.B.re - pi.B.re, exact.B.im - pi.B.im) / Math.hypot(pi.B.re, pi.B.im)).toBeLessThanOrEqual((gammaLengthSquared / 6) * 1.05);
+      }),
+    );
+  });
+
+  // Identity from the brief: a lossless open line raises the voltage by 1 / cos(beta l) (Ferranti effect).
+  test('raises the open-end voltage of a lossless line by 1/cos(beta l)', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 10, max: 1000, noNaN: true }), fc.double({ min: 0.2, max: 0.5, noNaN: true }), fc.double({ min: 2.5, max: 5, noNaN: true }), (lengthKm, x, b) => {
+        const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: x, shuntSusceptanceUsPerKm: b, lengthKm });
+        const betaLength = Math.sqrt(x * b * 1e-6) * lengthKm;
+        const noLoad = solveNoLoad({ network: line, sendingVoltageKv: 400 });
+        // Compared as a relative error: near a quarter wavelength the ratio itself grows without bound.
+        expect(Math.abs((noLoad.receivingEnd.voltageKv / 400) * Math.cos(betaLength) - 1)).toBeLessThan(1e-9);
+      }),
+    );
+  });
+});
+
+describe('lineCharacteristics', () => {
+  test('gives the surge impedance of the Glover example, 266.1 ohm at -1.43 deg', () => {
+    const result = lineCharacteristics({ ...glover, nominalVoltageKv: 765 });
+    expect(Math.abs(result.surgeImpedanceMagnitudeOhm - 266.1)).toBeLessThanOrEqual(0.05);
+    expect(Math.abs(polar(result.surgeImpedanceOhm).angleDeg - -1.43)).toBeLessThanOrEqual(0.005);
+  });
+
+  test('gives the phase constant, surge impedance, velocity and wavelength of the Saadat example', () => {
+    const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
+    expect(Math.abs(result.phaseConstantRadPerKm - 0.001259)).toBeLessThanOrEqual(0.0000005);
+    expect(Math.abs(result.losslessSurgeImpedanceOhm - 290.43)).toBeLessThanOrEqual(0.005);
+    expect(Math.abs(result.propagationVelocityKmPerS - 2.994e5)).toBeLessThanOrEqual(50);
+    expect(Math.abs(result.wavelengthKm - 4990)).toBeLessThanOrEqual(0.5);
+  });
+
+  // Identity: SIL = V^2 / Zc (lossless).
+  test('computes the surge impedance loading as V squared over the lossless surge impedance', () => {
+    const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
+    expect(result.surgeImpedanceLoadingMw).toBeCloseTo(500 ** 2 / result.losslessSurgeImpedanceOhm, 9);
+  });
+
+  // Brief: an overhead line's phase constant is close to that of light, about 0.06 deg/km at 50 Hz and 0.072 at 60 Hz (common practice).
+  test('gives a phase constant near 0.06 deg/km at 50 Hz and 0.072 deg/km at 60 Hz for overhead-line constants', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 0.95, max: 1.0, noNaN: true }), fc.constantFrom(50, 60), (velocityShare, frequencyHz) => {
+        // Overhead lines propagate at 95-100 % of the speed of light; pick L and C accordingly.
+        const inductanceMhPerKm = 1.0;
+        const speedKmPerS = 299_792.458 * velocityShare;
+        const capacitanceNfPerKm = 1 / (speedKmPerS ** 2 * inductanceMhPerKm * 1e-3) * 1e9;
+        const result = lineCharacteristics({ frequencyHz, seriesResistanceOhmPerKm: 0.02, seriesInductanceMhPerKm: inductanceMhPerKm, shuntCapacitanceNfPerKm: capacitanceNfPerKm, lengthKm: 100, nominalVoltageKv: 400 });
+        const lightDegPerKm = (360 * frequencyHz) / 299_792.458;
+        expect(result.phaseConstantDegPerKm).toBeGreaterThanOrEqual(lightDegPerKm * 0.999);
+        expect(result.phaseConstantDegPerKm).toBeLessThanOrEqual(lightDegPerKm / 0.95 * 1.001);
+        expect(Math.abs(result.phaseConstantDegPerKm - (frequencyHz === 50 ? 0.06 : 0.072))).toBeLessThan(0.004);
+      }),
+    );
+  });
+
+  // Identity from the brief: charging Mvar = V^2 omega C length.
+  test('reports total charging Mvar as V squared times omega C times length', () => {
+    const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
+    expect(result.chargingMvar).toBeCloseTo(((500e3) ** 2 * 2 * Math.PI * 60 * 11.5e-9 * 300) / 1e6, 9);
+  });
+
+  test('gives the equivalent-pi series impedance equal to the exact B parameter', () => {
+    const result = lineCharacteristics({ ...glover, nominalVoltageKv: 765 });
+    const exact = lineModel(glover);
+    expect(result.equivalentPi.seriesImpedanceOhm.re).toBeCloseTo(exact.B.re, 9);
+    expect(result.equivalentPi.seriesImpedanceOhm.im).toBeCloseTo(exact.B.im, 9);
+  });
+});

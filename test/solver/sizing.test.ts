@@ -1,0 +1,108 @@
+import { describe, expect, test } from 'vitest';
+import fc from 'fast-check';
+import { lineModel, shuntCapacitorForLoadVoltage, shuntReactorForNoLoad, solveNoLoad, sourceEquivalent, svcRange } from '../../src/solver/index.ts';
+
+// Saadat, "Power System Analysis" (2nd ed.), Example 5.7 data: 500 kV, 60 Hz, 300 km lossless, L = 0.97 mH/km, C = 0.0115 uF/km.
+const saadatLine = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesInductanceMhPerKm: 0.97, shuntCapacitanceNfPerKm: 11.5, lengthKm: 300 });
+const zc = Math.sqrt(0.97e-3 / 11.5e-9);
+const betaLength = 2 * Math.PI * 60 * Math.sqrt(0.97e-3 * 11.5e-9) * 300;
+
+describe('shuntReactorForNoLoad', () => {
+  // Closed form for a lossless line, receiving-end reactor holding Vr = Vs: X = Zc sin(beta l) / (1 - cos(beta l));
+  // for the Saadat example data this is about 1519 ohm, 164.5 Mvar at 500 kV.
+  test('sizes the receiving-end reactor of the Saadat example line by the closed-form expression', () => {
+    const sizing = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500 });
+    const reactanceOhm = (zc * Math.sin(betaLength)) / (1 - Math.cos(betaLength));
+    expect(sizing.reactorReactanceEachOhm).toBeCloseTo(reactanceOhm, 6);
+    expect(sizing.reactorMvarEach).toBeCloseTo(500 ** 2 / reactanceOhm, 6);
+    expect(sizing.receivingVoltageKv).toBeCloseTo(500, 9);
+  });
+
+  // Identity from the brief, over random lossless lines.
+  test('matches X = Zc sin(beta l)/(1 - cos(beta l)) for any lossless line held at Vr = Vs', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 50, max: 900, noNaN: true }), fc.double({ min: 0.25, max: 0.45, noNaN: true }), fc.double({ min: 3, max: 5, noNaN: true }), (lengthKm, x, b) => {
+        const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: x, shuntSusceptanceUsPerKm: b, lengthKm });
+        const theta = Math.sqrt(x * b * 1e-6) * lengthKm;
+        const expectedOhm = (Math.sqrt(x / (b * 1e-6)) * Math.sin(theta)) / (1 - Math.cos(theta));
+        const sizing = shuntReactorForNoLoad({ line, sendingVoltageKv: 400, targetReceivingVoltageKv: 400, ratedVoltageKv: 400 });
+        expect(Math.abs((sizing.reactorReactanceEachOhm as number) / expectedOhm - 1)).toBeLessThan(1e-9);
+      }),
+    );
+  });
+
+  test('reports the degree of shunt compensation as reactor over line susceptance', () => {
+    const sizing = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500 });
+    const lineSusceptance = 2 * Math.PI * 60 * 11.5e-9 * 300;
+    expect(sizing.degreeOfShuntCompensation).toBeCloseTo(sizing.reactorSusceptanceEachS / lineSusceptance, 12);
+  });
+
+  test('lets the sending-end reactor of a pair act through the source impedance', () => {
+    const sendingSystem = sourceEquivalent({ end: 'sending', shortCircuitMva: 5000, xOverR: 20, nominalVoltageKv: 500 });
+    const single = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500, sendingSystem });
+    const pair = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500, sendingSystem, placement: 'both-ends' });
+    expect(pair.reactorCount).toBe(2);
+    expect(pair.reactorMvarEach).toBeLessThan(single.reactorMvarEach);
+    expect(solveNoLoad({ network: pair.compensatedNetwork, sendingVoltageKv: 500 }).receivingEnd.voltageKv).toBeCloseTo(500, 6);
+  });
+
+  test('needs no reactor when the open-end voltage is already below the target', () => {
+    expect(shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 560, ratedVoltageKv: 500 }).reactorNeeded).toBe(false);
+  });
+});
+
+describe('shuntCapacitorForLoadVoltage', () => {
+  // Consistency by substitution: with the bank in place the sending voltage is the given one and the receiving voltage is
+  // the target; without a bank the receiving voltage is at or above the target.
+  test('holds the target receiving voltage with the computed bank', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 400, max: 3200, noNaN: true }), fc.double({ min: 0.8, max: 0.99, noNaN: true }), (pMw, powerFactor) => {
+        const line = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 });
+        const sizing = shuntCapacitorForLoadVoltage({ network: line, sendingVoltageKv: 765, targetReceivingVoltageKv: 765, load: { pMw, powerFactor, powerFactorSense: 'lagging' }, ratedVoltageKv: 765 });
+        expect(sizing.operatingPoint.sendingEnd.voltageKv).toBeCloseTo(765, 6);
+        if (sizing.capacitorNeeded) expect(sizing.operatingPoint.receivingEnd.voltageKv).toBeCloseTo(765, 9);
+        else expect(sizing.operatingPoint.receivingEnd.voltageKv).toBeGreaterThanOrEqual(765);
+      }),
+    );
+  });
+
+  test('matches the closed form for a short lossless line with a unity-power-factor load', () => {
+    const reactanceOhm = 60;
+    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.6, shuntSusceptanceUsPerKm: 0, lengthKm: 100, model: 'short' });
+    const volts = 400e3;
+    const pW = 1000e6;
+    // Vs = V + X (Qnet / V) + j X P / V with Qnet = -Qc; |Vs| = V gives Qc = (V - sqrt(V^2 - (X P / V)^2)) V / X (smaller root).
+    const expectedMvar = ((volts - Math.sqrt(volts ** 2 - ((reactanceOhm * pW) / volts) ** 2)) * volts) / reactanceOhm / 1e6;
+    const sizing = shuntCapacitorForLoadVoltage({ network: line, sendingVoltageKv: 400, targetReceivingVoltageKv: 400, load: { pMw: 1000, qMvar: 0 }, ratedVoltageKv: 400 });
+    expect(sizing.capacitorMvar).toBeCloseTo(expectedMvar, 6);
+  });
+});
+
+describe('svcRange', () => {
+  const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 250 });
+  const loadCases = [
+    { label: 'light', load: { pMw: 50, qMvar: 0 } },
+    { label: 'heavy', load: { pMw: 900, powerFactor: 0.95, powerFactorSense: 'lagging' as const } },
+  ];
+
+  test('holds the bus exactly at the reference voltage with zero slope', () => {
+    const result = svcRange({ network: line, sendingVoltageKv: 400, referenceVoltageKv: 400, nominalVoltageKv: 400, slopePercent: 0, slopeBaseMva: 300, loadCases });
+    for (const item of result.cases) expect(item.busVoltageKv).toBeCloseTo(400, 9);
+    expect(result.cases[0]?.mode).toBe('inductive');
+    expect(result.cases[1]?.mode).toBe('capacitive');
+    expect(result.capacitiveRatingMvarAtNominalVoltage).toBeGreaterThan(0);
+    expect(result.inductiveRatingMvarAtNominalVoltage).toBeGreaterThan(0);
+  });
+
+  // V-I characteristic: V = Vref - slope * Vnom^2 * Q / (V * Sbase); checked by substitution.
+  test('places each case on the sloped V-I characteristic', () => {
+    const result = svcRange({ network: line, sendingVoltageKv: 400, referenceVoltageKv: 400, nominalVoltageKv: 400, slopePercent: 3, slopeBaseMva: 300, loadCases });
+    for (const item of result.cases) {
+      const expected = 400 - (0.03 * 400 ** 2 * item.svcOutputMvar) / (item.busVoltageKv * 300);
+      expect(item.busVoltageKv).toBeCloseTo(expected, 6);
+    }
+    // A slope lets the voltage sag under capacitive output, so less output is needed than with a flat characteristic.
+    const flat = svcRange({ network: line, sendingVoltageKv: 400, referenceVoltageKv: 400, nominalVoltageKv: 400, slopePercent: 0, slopeBaseMva: 300, loadCases });
+    expect(result.maxCapacitiveOutputMvar).toBeLessThan(flat.maxCapacitiveOutputMvar);
+  });
+});
