@@ -95,6 +95,13 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
   if (!envelope || !reading.ok) throw new StudyFailure([{ code: 'check-unsignable', message: 'there is no readable seal to counter-sign', hint: 'only a sealed report can be counter-signed' }]);
   await withSealErrors(async () => {
     const stored = loadDefaultKey(options.keys);
+    if (stored.identity.fingerprint === envelope.manifest.signer.fingerprint) {
+      throw new StudyFailure([{
+        code: 'check-own-seal',
+        message: `the checking key is the key that sealed the report (${envelope.manifest.signer.name}); a check is a second engineer's`,
+        hint: "counter-sign with the checker's own key (--keys <folder of the checker's keys>)",
+      }]);
+    }
     const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${stored.identity.name}: `));
     const record = signCheckRecord(
       {

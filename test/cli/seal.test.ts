@@ -85,12 +85,22 @@ describe('sealing and checking from the command line', () => {
     expect(check.stdout).toContain('NOT in the trust folder');
   });
 
-  it('counter-signs a verified report: a check record and a report showing both signatures', () => {
+  it('refuses to counter-sign with the key that sealed the report', () => {
     const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign'], space.folder, space.env);
+    expect(signed.status).toBe(1);
+    expect(signed.stderr).toContain('check-own-seal');
+    expect(existsSync(join(space.folder, 'build/TEST-1-r1.check.json'))).toBe(false);
+  });
+
+  it("counter-signs a verified report with the checker's key: a check record and a report showing both signatures", () => {
+    const checkerKeys = join(space.folder, 'checker-keys');
+    expect(kvarbook(['key', 'new', '--name', 'Second Checker', '--licence', 'C-2', '--jurisdiction', 'Testland', '--keys', checkerKeys], space.folder, space.env).status).toBe(0);
+    expect(kvarbook(['key', 'show', '--keys', checkerKeys, '--out', join(space.folder, 'home', 'trusted', 'checker.json')], space.folder, space.env).status).toBe(0);
+    const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign', '--keys', checkerKeys], space.folder, space.env);
     expect(signed.status).toBe(0);
     const checked = readFileSync(join(space.folder, 'build/TEST-1-r1.checked.html'), 'utf8');
     expect(checked).toContain('<strong>Sealed</strong> by Test Engineer');
-    expect(checked).toContain('<strong>Checked</strong> by Test Engineer');
+    expect(checked).toContain('<strong>Checked</strong> by Second Checker');
     const recheck = kvarbook(['check', 'build/TEST-1-r1.checked.html'], space.folder, space.env);
     expect(recheck.stdout).toContain('counter-signatures');
     expect(recheck.status).toBe(0);
