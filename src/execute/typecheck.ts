@@ -33,25 +33,15 @@ function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
   };
 }
 
+/** The block API's globals from blockGlobals.d.ts, and this study's inputs added to them. */
 function preamble(study: Study): string {
+  const globals = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/blockGlobals.d.ts'));
   const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/child/blockApi.ts'));
-  const solver = JSON.stringify(join(KVARBOOK_ROOT, 'src/solver/index.ts'));
-  const charts = JSON.stringify(join(KVARBOOK_ROOT, 'src/report/chart/builders.ts'));
-  const inputFields = study.inputs.map((input) => `  readonly ${input.name}: Api.InputValue;`).join('\n');
+  const inputFields = study.inputs.map((input) => `    readonly ${input.name}: InputValue;`).join('\n');
   return [
-    `import type * as Api from ${api};`,
-    `import type * as SolverModule from ${solver};`,
-    `import type * as ChartModule from ${charts};`,
-    `declare const inputs: {\n${inputFields}\n};`,
-    `declare const result: Api.BlockApi['result'];`,
-    `declare const criterion: Api.BlockApi['criterion'];`,
-    `declare const caution: Api.BlockApi['caution'];`,
-    `declare const table: Api.BlockApi['table'];`,
-    `declare const chart: Api.BlockApi['chart'];`,
-    `declare const figure: Api.BlockApi['figure'];`,
-    `declare const solver: typeof SolverModule;`,
-    `declare const charts: typeof ChartModule;`,
-    `declare const console: { log(...parts: unknown[]): void };`,
+    `/// <reference path=${globals} />`,
+    `import type { InputValue } from ${api};`,
+    `declare global {\n  interface KvarbookStudyInputs {\n${inputFields}\n  }\n}`,
   ].join('\n');
 }
 
