@@ -37,7 +37,7 @@ async function readReportHtml(reportPath: string): Promise<string> {
   return bytes.toString('utf8');
 }
 
-async function rerunFrom(sourcePath: string | undefined, html: string) {
+function rerunFrom(sourcePath: string | undefined) {
   return async (source: string, overrides: { name: string; text: string }[]) => {
     // An embedded source runs from an empty scratch folder: it may read nothing of the checker's.
     const scratch = sourcePath ? undefined : mkdtempSync(join(tmpdir(), 'kvarbook-check-'));
@@ -81,7 +81,7 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
     sourceOrigin: options.source ? options.source : 'carried in the report',
     trusted: trust.identities,
     defaultRelativeTolerance: options.tolerance,
-    rerun: await rerunFrom(options.source, html),
+    rerun: rerunFrom(options.source),
   });
   if (options.json) process.stdout.write(`${JSON.stringify({ report: reportPath, ...outcome, trustProblems: trust.problems }, null, 2)}\n`);
   else describeOutcome(outcome, terminal, Boolean(process.stdout.isTTY) && !process.env.NO_COLOR);

@@ -84,8 +84,6 @@ export function lineModelsOf(network: TwoPort): string[] {
   return elementsOf(network).flatMap((element) => (element.kind === 'line-section' ? [element.model] : []));
 }
 
-const NETWORK_HINT = 'Pass the network as a two-port from lineModel, cascade or an element function.';
-
 export function readNetwork(record: Record<string, unknown>): { network: TwoPort; abcd: AbcdMatrix } {
   const network = readTwoPort('network', record.network);
   return { network, abcd: abcdOf(network) };

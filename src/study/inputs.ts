@@ -9,20 +9,12 @@ import { QUANTITY_KINDS, type ParsedQuantity, type QuantityKind, UnitProblem, de
 const INPUT_KEYS = ['value', 'quantity', 'min', 'max', 'description'] as const;
 const INPUT_NAME = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
-/** An input as the blocks see it: its value, where it came from, and what it was declared as. */
-export interface EffectiveInput {
-  name: string;
+/** An input as the blocks see it: its value and where it came from, with what it was declared as. */
+export interface EffectiveInput extends Omit<InputSpec, 'given'> {
   value: number;
   unit: string;
   si: number;
   source: 'given' | 'overridden';
-  /** The front-matter text, kept to show what an override replaced. */
-  givenText: string;
-  kind?: QuantityKind;
-  min?: ParsedQuantity;
-  max?: ParsedQuantity;
-  description?: string;
-  at: SourceLocation;
 }
 
 export interface InputOverride {
