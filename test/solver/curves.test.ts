@@ -36,7 +36,7 @@ describe('powerAngleCurve', () => {
     expect(curve.steadyStateLimit.angleDeg).toBeCloseTo(90, 9);
   });
 
-  // Identity from the brief: series compensation of degree k raises the maximum transfer by 1 / (1 - k).
+  // Physical identity (lossless line, two-machine transfer P = V1 V2 sin(delta) / X): series compensation of degree k raises the maximum transfer by 1 / (1 - k).
   test('raises the maximum transfer by 1/(1 - k) with series compensation k', () => {
     fc.assert(
       fc.property(fc.double({ min: 10, max: 200, noNaN: true }), fc.double({ min: 0.05, max: 0.8, noNaN: true }), (reactanceOhm, degree) => {

@@ -66,7 +66,7 @@ describe('lineConstantsFromGeometry', () => {
     );
   });
 
-  // Identity from the brief: charging Mvar per km = V^2 omega C.
+  // Physical identity: charging Mvar per km = V^2 omega C.
   test('reports charging Mvar per km as V squared times omega C', () => {
     const constants = lineConstantsFromGeometry({ ...bundledLine, voltageKv: 345 });
     const expected = (345e3 ** 2 * 2 * Math.PI * 60 * constants.shuntCapacitanceNfPerKm * 1e-9) / 1e6;

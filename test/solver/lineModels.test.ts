@@ -48,7 +48,7 @@ describe('lineModel', () => {
     );
   });
 
-  // Identity from the brief: a lossless open line raises the voltage by 1 / cos(beta l) (Ferranti effect).
+  // Physical identity (lossless distributed line): an open line raises the voltage by 1 / cos(beta l) (Ferranti effect).
   test('raises the open-end voltage of a lossless line by 1/cos(beta l)', () => {
     fc.assert(
       fc.property(fc.double({ min: 10, max: 1000, noNaN: true }), fc.double({ min: 0.2, max: 0.5, noNaN: true }), fc.double({ min: 2.5, max: 5, noNaN: true }), (lengthKm, x, b) => {
@@ -83,7 +83,7 @@ describe('lineCharacteristics', () => {
     expect(result.surgeImpedanceLoadingMw).toBeCloseTo(500 ** 2 / result.losslessSurgeImpedanceOhm, 9);
   });
 
-  // Brief: an overhead line's phase constant is close to that of light, about 0.06 deg/km at 50 Hz and 0.072 at 60 Hz (common practice).
+  // Physical check: an overhead line's phase constant is close to that of light, about 0.06 deg/km at 50 Hz and 0.072 at 60 Hz (common practice).
   test('gives a phase constant near 0.06 deg/km at 50 Hz and 0.072 deg/km at 60 Hz for overhead-line constants', () => {
     fc.assert(
       fc.property(fc.double({ min: 0.95, max: 1.0, noNaN: true }), fc.constantFrom(50, 60), (velocityShare, frequencyHz) => {
@@ -100,7 +100,7 @@ describe('lineCharacteristics', () => {
     );
   });
 
-  // Identity from the brief: charging Mvar = V^2 omega C length.
+  // Physical identity: charging Mvar = V^2 omega C length.
   test('reports total charging Mvar as V squared times omega C times length', () => {
     const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
     expect(result.chargingMvar).toBeCloseTo(((500e3) ** 2 * 2 * Math.PI * 60 * 11.5e-9 * 300) / 1e6, 9);

@@ -18,7 +18,7 @@ describe('shuntReactorForNoLoad', () => {
     expect(sizing.receivingVoltageKv).toBeCloseTo(500, 9);
   });
 
-  // Identity from the brief, over random lossless lines.
+  // Physical identity of the lossless line, over random lossless lines.
   test('matches X = Zc sin(beta l)/(1 - cos(beta l)) for any lossless line held at Vr = Vs', () => {
     fc.assert(
       fc.property(fc.double({ min: 50, max: 900, noNaN: true }), fc.double({ min: 0.25, max: 0.45, noNaN: true }), fc.double({ min: 3, max: 5, noNaN: true }), (lengthKm, x, b) => {
