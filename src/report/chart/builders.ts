@@ -303,6 +303,23 @@ function frame(title: string, layers: ChartSpec[], subtitle?: string): ChartSpec
   };
 }
 
+/** Markers on every vertex of a long series would merge into a thick band; about this many per series stay legible. */
+const MARKERS_PER_SERIES = 12;
+
+/** Flags the vertices that carry a marker: evenly spaced, always including both ends of each series. */
+function withMarkers(values: Record<string, unknown>[]): Record<string, unknown>[] {
+  const counts = new Map<unknown, number>();
+  for (const value of values) counts.set(value.series, (counts.get(value.series) ?? 0) + 1);
+  const seen = new Map<unknown, number>();
+  return values.map((value) => {
+    const count = counts.get(value.series) ?? 1;
+    const index = seen.get(value.series) ?? 0;
+    seen.set(value.series, index + 1);
+    const step = Math.max(1, Math.ceil(count / MARKERS_PER_SERIES));
+    return { ...value, marker: index % step === 0 || index === count - 1 };
+  });
+}
+
 /** One line plus point layer per series, told apart by colour, dash pattern and point shape. */
 function seriesLayer(
   values: Record<string, unknown>[],
@@ -313,7 +330,7 @@ function seriesLayer(
 ): ChartSpec {
   const color = { field: 'series', type: 'nominal', title: legendTitle, scale: { domain: labels, range: [...seriesColours] } };
   return {
-    data: { values },
+    data: { values: withMarkers(values) },
     layer: [
       {
         mark: { type: 'line' },
@@ -327,6 +344,7 @@ function seriesLayer(
       },
       {
         mark: { type: 'point' },
+        transform: [{ filter: { field: 'marker', equal: true } }],
         encoding: {
           x,
           y,

@@ -60,6 +60,15 @@ describe('voltageProfileChart', () => {
     expect(new Set(shapes).size).toBeGreaterThanOrEqual(3);
   });
 
+  it('keeps markers legible on a long series: about a dozen, spaced evenly, with both ends marked', async () => {
+    const dense = [{ label: 'dense', points: Array.from({ length: 200 }, (_, index) => ({ distanceKm: index * 2, voltagePu: 1 + index * 1e-4 })) }];
+    const svg = await renderChartSvg(voltageProfileChart({ cases: dense }));
+    const markers = pointShapes(svg);
+    expect(markers.length).toBeGreaterThanOrEqual(10);
+    expect(markers.length).toBeLessThanOrEqual(14);
+    expect(linePaths(svg)[0]?.vertices).toHaveLength(200);
+  });
+
   it('plots the open-end voltage rise where the axes put it', async () => {
     const svg = await renderChartSvg(voltageProfileChart({ cases }));
     const [firstCase] = linePaths(svg);
