@@ -1,17 +1,59 @@
 // Records from the calculation child are untrusted data: keep only well-formed ones, and refuse non-finite numbers.
 import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
-import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
+import type { BlockErrorReport, BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
 
 const isText = (value: unknown): value is string => typeof value === 'string';
 const isFiniteNumber = (value: unknown): value is number => typeof value === 'number' && Number.isFinite(value);
 const isScalar = (value: unknown): value is ScalarValue => isText(value) || isFiniteNumber(value) || typeof value === 'boolean';
 const isDigits = (value: unknown): value is number => isFiniteNumber(value) && Number.isInteger(value) && value >= 1 && value <= 15;
 
+const isWholeNumber = (value: unknown): value is number => Number.isSafeInteger(value);
+const isCountingNumber = (value: unknown): value is number => isWholeNumber(value) && value >= 1;
+
+/** Keys that would reach an object's prototype if host code ever merged the data into another object. */
+const PROTOTYPE_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
+const MAX_PLAIN_DEPTH = 64;
+const MAX_ERROR_TEXT = 4000;
+
 function positionOf(value: unknown): BlockPosition | undefined {
   if (typeof value !== 'object' || value === null) return undefined;
   const { blockIndex, line, column } = value as Record<string, unknown>;
-  return isFiniteNumber(blockIndex) && isFiniteNumber(line) && isFiniteNumber(column) ? { blockIndex, line, column } : undefined;
+  return isWholeNumber(blockIndex) && isCountingNumber(line) && isCountingNumber(column) ? { blockIndex, line, column } : undefined;
+}
+
+/**
+ * A copy of JSON-shaped data with every prototype-reaching key dropped, so that a chart specification or a
+ * solver summary from the child can be handed to libraries that merge objects without polluting the host.
+ */
+export function plainData(value: unknown, depth = 0): unknown {
+  if (value === null || typeof value === 'string' || typeof value === 'boolean') return value;
+  if (typeof value === 'number') return Number.isFinite(value) ? value : null;
+  if (typeof value !== 'object' || depth >= MAX_PLAIN_DEPTH) return null;
+  if (Array.isArray(value)) return value.map((item) => plainData(item, depth + 1));
+  const copy: Record<string, unknown> = {};
+  for (const key of Object.keys(value)) {
+    if (!PROTOTYPE_KEYS.has(key)) copy[key] = plainData((value as Record<string, unknown>)[key], depth + 1);
+  }
+  return copy;
+}
+
+function boundedText(value: unknown, fallback: string): string {
+  const text = isText(value) ? value : fallback;
+  return text.length > MAX_ERROR_TEXT ? `${text.slice(0, MAX_ERROR_TEXT)}…` : text;
+}
+
+/** An error report from the child, reduced to well-formed fields: text is text, positions are whole numbers. */
+export function sanitizeErrorReport(raw: unknown): BlockErrorReport {
+  const report = typeof raw === 'object' && raw !== null ? (raw as Record<string, unknown>) : {};
+  const positions = Array.isArray(report.positions) ? report.positions.map(positionOf).filter((position) => position !== undefined) : [];
+  return {
+    name: boundedText(report.name, 'Error'),
+    message: boundedText(report.message, 'the calculation process reported a failure without a message'),
+    ...(isText(report.code) ? { code: boundedText(report.code, '') } : {}),
+    ...(isText(report.hint) ? { hint: boundedText(report.hint, '') } : {}),
+    positions,
+  };
 }
 
 function optionalText(value: unknown): string | undefined {
@@ -70,11 +112,11 @@ function one(raw: unknown): BlockRecord | undefined {
     }
     case 'chart':
       return isText(record.caption) && typeof record.spec === 'object' && record.spec !== null
-        ? withPosition({ kind: 'chart', caption: record.caption, spec: record.spec })
+        ? withPosition({ kind: 'chart', caption: record.caption, spec: plainData(record.spec) })
         : undefined;
     case 'solver-call':
       return isText(record.functionName)
-        ? withPosition({ kind: 'solver-call', functionName: record.functionName, argumentsSummary: record.argumentsSummary, returnedSummary: record.returnedSummary })
+        ? withPosition({ kind: 'solver-call', functionName: record.functionName, argumentsSummary: plainData(record.argumentsSummary), returnedSummary: plainData(record.returnedSummary) })
         : undefined;
     default:
       return undefined;

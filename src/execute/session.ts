@@ -1,5 +1,6 @@
 // Execute stage: runs a study's blocks and inline values in a sandboxed child process and maps everything to study lines.
 import { fork, type ChildProcess } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
@@ -8,7 +9,7 @@ import type { ChildMessage, InputData, ParentMessage } from './protocol.ts';
 import type { BlockErrorReport, BlockRecord } from './records.ts';
 import { type TranspiledBlock, type TranspiledInline, studyPositionOf } from './transpile.ts';
 import { childBundlePath } from './childBundle.ts';
-import { sanitizeRecords } from './sanitize.ts';
+import { sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
 import { DENIAL_MARK } from './child/lockDown.ts';
 
 export type LocatedRecord = Exclude<BlockRecord, never> & { at?: SourceLocation };
@@ -30,18 +31,35 @@ export interface ExecutionHooks {
 }
 
 const HOST_FRAME_HINT = 'the error comes from the block at this line';
+const DENIED_HINT = 'a study may only compute, with its inputs, the solver and the block API';
 
-/** Permission flags for the child: read only the study's folder and its own bundle; nothing else. */
-function childArguments(study: Study, bundlePath: string): string[] {
-  const studyFolder = dirname(resolve(study.file));
+/** Node flags for the child: read only the study's folder and its own bundle; nothing else. */
+export function childExecArguments(studyFolder: string, bundlePath: string, heapMb: number): string[] {
   return [
     '--experimental-permission',
     `--allow-fs-read=${bundlePath}`,
     `--allow-fs-read=${studyFolder}`,
-    `--max-old-space-size=${study.meta.limits.heapMb}`,
+    `--max-old-space-size=${heapMb}`,
     '--no-warnings',
     '--disable-proto=throw',
+    // Every host function a block can touch has the host's Function constructor one step away; without
+    // code generation from strings that constructor cannot compile anything, so it cannot reach `process`.
+    '--disallow-code-generation-from-strings',
+    // Host prototypes a block can reach (through API functions and solver results) cannot be changed,
+    // so a block can neither plant getters that host code would call nor set Error.prepareStackTrace.
+    '--frozen-intrinsics',
+    // Deep enough to find a block's own frame under solver calls; set here because Error is frozen in the child.
+    '--stack-trace-limit=64',
   ];
+}
+
+/** The child's environment: locale and time zone only, so no token or NODE_OPTIONS of the checker's reaches a study. */
+export function childEnvironment(): NodeJS.ProcessEnv {
+  const kept: NodeJS.ProcessEnv = {};
+  for (const name of ['LANG', 'LC_ALL', 'TZ']) {
+    if (process.env[name] !== undefined) kept[name] = process.env[name];
+  }
+  return kept;
 }
 
 export async function executeStudy(
@@ -52,16 +70,23 @@ export async function executeStudy(
   hooks: ExecutionHooks = {},
 ): Promise<ExecutionOutcome> {
   const bundlePath = childBundlePath();
-  const child = fork(bundlePath, [], { execArgv: childArguments(study, bundlePath), stdio: ['ignore', 'ignore', 'pipe', 'ipc'], serialization: 'json' });
-  const conversation = new Conversation(child);
+  const child = fork(bundlePath, [], {
+    execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, study.meta.limits.heapMb),
+    env: childEnvironment(),
+    stdio: ['ignore', 'ignore', 'pipe', 'ipc'],
+    serialization: 'json',
+  });
+  const conversation = new Conversation(child, residentLimitBytes(study.meta.limits.heapMb));
   const limits = study.meta.limits;
   const studyDeadline = Date.now() + limits.studySeconds * 1000;
   try {
-    await conversation.ask({ type: 'start', inputs: inputs.map(toInputData), blockMilliseconds: limits.blockSeconds * 1000 }, limits.blockSeconds * 1000 + 10_000, () => ({
-      code: 'child-start',
-      message: 'the calculation process did not start',
-      hint: 'run `npm ci` and try again',
-    }));
+    const notStarted = (): Diagnostic => ({ code: 'child-start', message: 'the calculation process did not start', hint: 'run `npm ci` and try again' });
+    try {
+      await conversation.ask({ type: 'start', inputs: inputs.map(toInputData), blockMilliseconds: limits.blockSeconds * 1000 }, limits.blockSeconds * 1000 + 10_000, notStarted);
+    } catch (error) {
+      if (error instanceof ChildExit) throw new StudyFailure([notStarted()]);
+      throw error;
+    }
     const ask = async (message: ParentMessage, at: SourceLocation, what: string): Promise<ChildMessage> => {
       try {
         return await conversation.ask(message, budget(limits.blockSeconds, studyDeadline), () => timeoutDiagnostic(study, at, what, limits.blockSeconds));
@@ -74,8 +99,9 @@ export async function executeStudy(
     const evaluateInlinesAfter = async (runnableCount: number) => {
       for (const inline of inlines.filter((candidate) => candidate.inline.afterRunnableBlocks === runnableCount)) {
         const reply = await ask({ type: 'evaluate-inline', inlineId: inline.inlineId, script: inline.script }, inline.inline.at, `the inline value {{ ${inline.inline.expression} }}`);
-        if (reply.type === 'inline-failed') throw new StudyFailure([inlineFailure(study, inline, reply.error)]);
-        if (reply.type === 'inline-done') outcome.inlineTexts.set(inline.inlineId, String(reply.text));
+        if (reply.type === 'inline-failed' && reply.inlineId === inline.inlineId) throw new StudyFailure([inlineFailure(study, inline, sanitizeErrorReport(reply.error))]);
+        if (reply.type !== 'inline-done' || reply.inlineId !== inline.inlineId || typeof reply.text !== 'string') throw new StudyFailure([outOfTurn(inline.inline.at)]);
+        outcome.inlineTexts.set(inline.inlineId, reply.text);
       }
     };
     await evaluateInlinesAfter(0);
@@ -83,10 +109,8 @@ export async function executeStudy(
       hooks.onBlockStart?.(block, position, blocks.length);
       const at = { file: study.file, line: block.block.fenceLine };
       const reply = await ask({ type: 'run-block', blockIndex: block.blockIndex, script: block.script, declarations: block.declarations }, at, `the block at line ${block.block.fenceLine}`);
-      if (reply.type === 'block-failed') throw new StudyFailure([blockFailure(study, block, reply.error, limits.blockSeconds)]);
-      if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) {
-        throw new StudyFailure([{ code: 'child-protocol', message: 'the calculation process answered out of turn', at, hint: 'a block must not call process.send' }]);
-      }
+      if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex) throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), limits.blockSeconds)]);
+      if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) throw new StudyFailure([outOfTurn(at)]);
       outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at)) });
       await evaluateInlinesAfter(position + 1);
     }
@@ -94,6 +118,10 @@ export async function executeStudy(
   } finally {
     conversation.close();
   }
+}
+
+function outOfTurn(at: SourceLocation): Diagnostic {
+  return { code: 'child-protocol', message: 'the calculation process answered out of turn', at, hint: 'a block must not call process.send' };
 }
 
 function budget(blockSeconds: number, studyDeadline: number): number {
@@ -134,7 +162,7 @@ function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: Ch
   if (exit.outOfMemory) {
     return {
       code: 'memory-limit',
-      message: `${what} used more memory than its limit (${study.meta.limits.heapMb} MB heap) and was stopped`,
+      message: `${what} used more memory than its limits allow (${study.meta.limits.heapMb} MB heap, ${residentLimitBytes(study.meta.limits.heapMb) / 1024 / 1024} MB in all) and was stopped`,
       at,
       excerpt: excerptAround(study.source, at.line),
       hint: 'look for an array or string that grows without bound; a large study may raise limits.heapMb in the front matter',
@@ -154,13 +182,26 @@ function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorRep
   const mapped = own ? studyPositionOf(block, own.line, own.column) : { line: block.block.fenceLine, column: 1 };
   const at = { file: study.file, line: mapped.line, column: mapped.column };
   if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, blockSeconds);
+  const refused = refusedCapability(error);
+  if (refused) {
+    return { code: 'block-denied', message: `a calculation block may not ${refused}`, at, excerpt: excerptAround(study.source, mapped.line, mapped.column), hint: DENIED_HINT };
+  }
   return {
     code: error.code === DENIAL_MARK ? 'block-denied' : error.code ? `block-${error.code}` : 'block-threw',
     message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}`,
     at,
     excerpt: excerptAround(study.source, mapped.line, mapped.column),
-    hint: error.hint ?? (error.code === DENIAL_MARK ? 'a study may compute, and read files in its own folder, only' : HOST_FRAME_HINT),
+    hint: error.hint ?? (error.code === DENIAL_MARK ? DENIED_HINT : HOST_FRAME_HINT),
   };
+}
+
+/** What the child's own guards (no code from strings, no module loader in the sandbox) refused, in the reader's words. */
+function refusedCapability(error: BlockErrorReport): string | undefined {
+  if (error.name === 'EvalError' && /code generation from strings/i.test(error.message)) {
+    return 'compile code from text (eval, Function, or a constructor reached through an object)';
+  }
+  if (error.code === 'ERR_VM_DYNAMIC_IMPORT_CALLBACK_MISSING') return 'import modules: import() is refused';
+  return undefined;
 }
 
 function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
@@ -182,9 +223,19 @@ class Conversation {
   private stderr = '';
   private waiting: { resolve: (message: ChildMessage) => void; reject: (error: unknown) => void } | undefined;
   private exited: { code: number | null; signal: NodeJS.Signals | null } | undefined;
+  private overMemory = false;
+  private readonly memoryWatch: NodeJS.Timeout;
 
-  constructor(child: ChildProcess) {
+  constructor(child: ChildProcess, residentLimit: number) {
     this.child = child;
+    this.memoryWatch = setInterval(() => {
+      const resident = child.pid === undefined ? undefined : residentBytes(child.pid);
+      if (resident !== undefined && resident > residentLimit) {
+        this.overMemory = true;
+        child.kill('SIGKILL');
+      }
+    }, MEMORY_POLL_MS);
+    this.memoryWatch.unref();
     child.stderr?.setEncoding('utf8');
     child.stderr?.on('data', (chunk: string) => {
       if (this.stderr.length < 64_000) this.stderr += chunk;
@@ -198,16 +249,17 @@ class Conversation {
       }
     });
     child.on('exit', (code, signal) => {
+      clearInterval(this.memoryWatch);
       this.exited = { code, signal };
       const waiting = this.waiting;
       this.waiting = undefined;
-      waiting?.reject(new ChildExit(code, signal, this.stderr));
+      waiting?.reject(new ChildExit(code, signal, this.stderr, this.overMemory));
     });
     child.on('error', () => undefined);
   }
 
   ask(message: ParentMessage, timeoutMs: number, onTimeout: () => Diagnostic): Promise<ChildMessage> {
-    if (this.exited) return Promise.reject(new ChildExit(this.exited.code, this.exited.signal, this.stderr));
+    if (this.exited) return Promise.reject(new ChildExit(this.exited.code, this.exited.signal, this.stderr, this.overMemory));
     return new Promise<ChildMessage>((resolvePromise, rejectPromise) => {
       const timer = setTimeout(() => {
         this.waiting = undefined;
@@ -229,6 +281,7 @@ class Conversation {
   }
 
   close(): void {
+    clearInterval(this.memoryWatch);
     if (!this.exited) this.child.kill('SIGKILL');
   }
 }
@@ -242,10 +295,31 @@ export class ChildExit extends Error {
   readonly exitCode: number | null;
   readonly signal: NodeJS.Signals | null;
   readonly outOfMemory: boolean;
-  constructor(exitCode: number | null, signal: NodeJS.Signals | null, stderr: string) {
+  constructor(exitCode: number | null, signal: NodeJS.Signals | null, stderr: string, overResidentLimit: boolean) {
     super(`the calculation process ended unexpectedly (exit code ${exitCode}, signal ${signal})`);
     this.exitCode = exitCode;
     this.signal = signal;
-    this.outOfMemory = /heap out of memory|Allocation failed/i.test(stderr);
+    this.outOfMemory = overResidentLimit || /heap out of memory|Allocation failed/i.test(stderr);
+  }
+}
+
+/**
+ * Typed-array buffers live outside the V8 heap that --max-old-space-size caps, so the child's resident
+ * memory is watched as well: the heap limit twice over (young generation, code, buffers) plus a margin.
+ */
+export function residentLimitBytes(heapMb: number): number {
+  return (2 * heapMb + RESIDENT_MARGIN_MB) * 1024 * 1024;
+}
+
+const RESIDENT_MARGIN_MB = 256;
+const MEMORY_POLL_MS = 100;
+
+/** Resident memory of a process from /proc (Linux); undefined where there is no /proc or the process is gone. */
+function residentBytes(pid: number): number | undefined {
+  try {
+    const match = /^VmRSS:\s+(\d+) kB/m.exec(readFileSync(`/proc/${pid}/status`, 'utf8'));
+    return match ? Number(match[1]) * 1024 : undefined;
+  } catch {
+    return undefined;
   }
 }

@@ -179,7 +179,8 @@ function rewriteTopLevel(
   }
   if (!ok) return undefined;
   let rewritten = code;
-  for (const edit of [...edits].sort((a, b) => b.start - a.start)) {
+  // From the back; at one offset the replacement goes first so that an insertion there ends up before it (`x = undefined);`).
+  for (const edit of [...edits].sort((a, b) => b.start - a.start || b.end - a.end)) {
     rewritten = rewritten.slice(0, edit.start) + edit.text + rewritten.slice(edit.end);
   }
   // Function declarations are hoisted inside the wrapper; publish them to the shared scope before anything runs.

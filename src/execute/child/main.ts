@@ -9,8 +9,6 @@ import * as chartModule from '../../report/chart/builders.ts';
 import { BlockApiError, Figure, InputValue, createBlockApi } from './blockApi.ts';
 import { lockDown } from './lockDown.ts';
 
-Error.stackTraceLimit = 64;
-
 let context: vm.Context | undefined;
 let blockMilliseconds = 10_000;
 let pending: BlockRecord[] = [];
