@@ -48,6 +48,16 @@ describe('kvarbook on the command line', () => {
     expect(readdirSync(join(folder, 'build')).sort()).toEqual(['TEST-1-r1.html', 'TEST-1-r1.results.json']);
   });
 
+  it('says in one line how to install Chromium when --pdf cannot find it, and still writes the HTML', () => {
+    const folder = scratchFolder();
+    writeFileSync(join(folder, 'line.study.md'), goodStudy);
+    const { status, stderr } = kvarbook(['run', 'line.study.md', '--pdf', '--no-typecheck'], folder, { KVARBOOK_CHROMIUM: join(folder, 'no-such-chromium') });
+    expect(status).toBe(1);
+    expect(stderr.trim().split('\n')[0]).toMatch(/apt-get install -y chromium/);
+    expect(existsSync(join(folder, 'build/TEST-1-r1.html'))).toBe(true);
+    expect(existsSync(join(folder, 'build/TEST-1-r1.pdf'))).toBe(false);
+  });
+
   it('exits 1 naming the file when the study does not exist', () => {
     const { status, stderr } = kvarbook(['run', 'missing.study.md'], scratchFolder());
     expect(status).toBe(1);
