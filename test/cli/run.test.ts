@@ -3,6 +3,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { kvarbook, scratchFolder } from '../support/cli.ts';
 import { lineOf, studyText } from '../support/studies.ts';
+import { templateNames } from '../../src/cli/newCommand.ts';
 
 const goodStudy = studyText({ inputs: '  lineLength: 320 km', body: '```ts\nresult("length", inputs.lineLength.in("km"), { unit: "km" });\n```\n' });
 
@@ -74,9 +75,11 @@ describe('kvarbook on the command line', () => {
     expect(readFileSync(join(folder, 'mine.study.md'), 'utf8')).toBe('my work');
   });
 
-  it('runs the study the blank template makes', () => {
+  it.each(templateNames())('runs the study the %s template makes, type-checked', (template) => {
     const folder = scratchFolder();
-    kvarbook(['new', 'blank', 'mine.study.md'], folder);
-    expect(kvarbook(['run', 'mine.study.md'], folder).status).toBe(0);
+    kvarbook(['new', template, 'mine.study.md'], folder);
+    const run = kvarbook(['run', 'mine.study.md'], folder);
+    expect(run.stderr).toBe('');
+    expect(run.status).toBe(0);
   });
 });
