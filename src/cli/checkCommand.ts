@@ -8,7 +8,7 @@ import { runStudy } from '../pipeline.ts';
 import { embeddedStudySource } from '../report/embed.ts';
 import { checkSealedReport, type CheckOutcome } from '../seal/check.ts';
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
-import { DEFAULT_RELATIVE_TOLERANCE } from '../seal/compare.ts';
+import { envelopeSha256 } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { loadTrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
@@ -105,7 +105,7 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${stored.identity.name}: `));
     const record = signCheckRecord(
       {
-        envelopeSha256: (await import('../seal/manifest.ts')).envelopeSha256(envelope),
+        envelopeSha256: envelopeSha256(envelope),
         verdict: outcome.verdict,
         steps: outcome.steps,
         // The one place a date comes from the clock: the day the checker signs.
@@ -128,5 +128,3 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     terminal.say(`report with both signatures: ${checkedHtmlPath}`);
   });
 }
-
-export { DEFAULT_RELATIVE_TOLERANCE };

@@ -4,6 +4,7 @@ import type { RunOptions } from './runCommand.ts';
 import type { CheckOptions } from './checkCommand.ts';
 import type { KeyNewOptions } from './keyCommand.ts';
 import { homeFolders } from './homeFolders.ts';
+import { DEFAULT_RELATIVE_TOLERANCE } from '../seal/compare.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { installationFacts } from './environment.ts';
 import { newCommand, templateNames } from './newCommand.ts';
@@ -53,7 +54,7 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .argument('<report>', 'the sealed report (.html, or the .pdf that carries it)')
     .option('--source <study>', 'the study file, when the report should be checked against a copy the checker holds')
     .option('--trust <dir>', 'folder of trusted public identities', folders.trusted)
-    .option('--tolerance <relative>', 'relative tolerance for re-computed figures without their own', parseTolerance, 1e-9)
+    .option('--tolerance <relative>', 'relative tolerance for re-computed figures without their own', parseTolerance, DEFAULT_RELATIVE_TOLERANCE)
     .option('--json', 'print the outcome as JSON for machines')
     .option('--sign', "counter-sign the outcome with the checker's key (writes .check.json and .checked.html)")
     .option('--keys <dir>', 'folder of signing keys', folders.keys)

@@ -1,4 +1,5 @@
 // `kvarbook run`: one study to its report files, written atomically; a failed run leaves earlier reports as they were.
+import { basename } from 'node:path';
 import { parseOverrideArguments } from '../study/inputs.ts';
 import { runStudy, type RunProduct } from '../pipeline.ts';
 import { UNSEALED_NOTICE, assembleReport, criteriaStatus } from '../report/html.ts';
@@ -13,7 +14,6 @@ import { readPassphrase } from './passphrase.ts';
 import { protectSealedReport, reportPaths } from './reportFiles.ts';
 import { withSealErrors } from './sealErrors.ts';
 import { printStudyPdf } from './printPdf.ts';
-import { basename } from 'node:path';
 import type { Terminal } from './terminal.ts';
 
 export interface RunOptions {
