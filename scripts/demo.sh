@@ -3,10 +3,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
-bash scripts/ensure-system-packages.sh
-if [[ ! -d node_modules ]] || [[ package-lock.json -nt node_modules/.package-lock.json ]]; then
-  npm ci --no-audit --no-fund
-fi
+bash scripts/ensure-installed.sh
 pdf_flag=()
 if [[ -x "${KVARBOOK_CHROMIUM:-/usr/bin/chromium}" ]]; then pdf_flag=(--pdf); fi
 node bin/kvarbook.mjs run studies/caldera-bay-400kv.study.md --out build "${pdf_flag[@]}"
