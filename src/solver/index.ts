@@ -33,6 +33,8 @@ export type { ReactorPlacement, ShuntCapacitorSizing, ShuntReactorSizing, SvcCas
 export { seriesCompensationDesign } from './seriesCompensation.ts';
 export type { CapacitorLocation, SeriesCompensationDesign } from './seriesCompensation.ts';
 export { ssrScreening } from './ssr.ts';
+export { frequencyScan } from './frequencyScan.ts';
+export type { FrequencyScan, FrequencyScanOptions, ScanElement, SeriesResonance, TorsionalProximity } from './frequencyScan.ts';
 export type { SsrScreening } from './ssr.ts';
 export { lineLoadability } from './loadability.ts';
 export type { LoadabilityCurve, LoadabilityLimit, LoadabilityPoint } from './loadability.ts';
