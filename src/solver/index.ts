@@ -40,5 +40,7 @@ export { sequenceCapacitanceFromGeometry } from './sequenceCapacitance.ts';
 export type { SequenceCapacitance, SequenceCapacitanceOptions } from './sequenceCapacitance.ts';
 export { neutralReactorDesign } from './neutralReactor.ts';
 export type { NeutralReactorDesign, NeutralReactorOptions, SecondaryArcCase } from './neutralReactor.ts';
+export { varistorEnergy } from './varistorEnergy.ts';
+export type { VaristorEnergy, VaristorEnergyOptions } from './varistorEnergy.ts';
 export { lineLoadability } from './loadability.ts';
 export type { LoadabilityCurve, LoadabilityLimit, LoadabilityPoint } from './loadability.ts';
