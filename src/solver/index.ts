@@ -42,5 +42,7 @@ export { neutralReactorDesign } from './neutralReactor.ts';
 export type { NeutralReactorDesign, NeutralReactorOptions, SecondaryArcCase } from './neutralReactor.ts';
 export { varistorEnergy } from './varistorEnergy.ts';
 export type { VaristorEnergy, VaristorEnergyOptions } from './varistorEnergy.ts';
+export { capitalisedCostComparison } from './costs.ts';
+export type { CapitalisedCostComparison, CapitalisedCostOptions, CompensationOption, LineLossInput, OptionCost } from './costs.ts';
 export { lineLoadability } from './loadability.ts';
 export type { LoadabilityCurve, LoadabilityLimit, LoadabilityPoint } from './loadability.ts';
