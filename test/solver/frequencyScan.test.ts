@@ -91,6 +91,25 @@ describe('frequencyScan', () => {
     expect(withReactor.seriesResonances[0]!.frequencyHz).toBeGreaterThan(base.seriesResonances[0]!.frequencyHz);
   });
 
+  test('lists the pole where a shunt reactor resonates with the capacitor-system branch behind it: f0 sqrt(Xc / (Xr + Xs))', () => {
+    const scan = frequencyScan({
+      frequencyHz: 60,
+      elements: [
+        { kind: 'generator', subtransientReactanceOhm: 40 },
+        { kind: 'shunt-reactor', reactanceOhm: 200 },
+        { kind: 'series-capacitor', reactanceOhm: 60 },
+        { kind: 'system', reactanceOhm: 40 },
+      ],
+    });
+    expect(scan.parallelResonancesHz).toHaveLength(1);
+    expect(scan.parallelResonancesHz[0]).toBeCloseTo(60 * Math.sqrt(60 / 240), 6);
+    // Foster's reactance theorem: poles and zeros alternate; the reactor makes the chain inductive at low frequency, so the pole
+    // comes first and the zero follows at (f/f0)^2 = Xc (Xg + Xr) / (Xg (Xr + Xs) + Xr Xs), from setting the reactance to zero.
+    expect(scan.seriesResonances).toHaveLength(1);
+    expect(scan.seriesResonances[0]!.frequencyHz).toBeCloseTo(60 * Math.sqrt((60 * 240) / (40 * 240 + 200 * 40)), 6);
+    expect(scan.seriesResonances[0]!.frequencyHz).toBeGreaterThan(scan.parallelResonancesHz[0]!);
+  });
+
   test('returns chart columns of equal length from startHz to stopHz', () => {
     const scan = frequencyScan({ frequencyHz: 60, elements: firstBenchmark, startHz: 5, stopHz: 58, stepHz: 0.5 });
     expect(scan.points.frequencyHz[0]).toBe(5);
