@@ -33,6 +33,16 @@ export type { ReactorPlacement, ShuntCapacitorSizing, ShuntReactorSizing, SvcCas
 export { seriesCompensationDesign } from './seriesCompensation.ts';
 export type { CapacitorLocation, SeriesCompensationDesign } from './seriesCompensation.ts';
 export { ssrScreening } from './ssr.ts';
+export { frequencyScan } from './frequencyScan.ts';
+export type { FrequencyScan, FrequencyScanOptions, ScanElement, SeriesResonance, TorsionalProximity } from './frequencyScan.ts';
 export type { SsrScreening } from './ssr.ts';
+export { sequenceCapacitanceFromGeometry } from './sequenceCapacitance.ts';
+export type { SequenceCapacitance, SequenceCapacitanceOptions } from './sequenceCapacitance.ts';
+export { neutralReactorDesign } from './neutralReactor.ts';
+export type { NeutralReactorDesign, NeutralReactorOptions, SecondaryArcCase } from './neutralReactor.ts';
+export { varistorEnergy } from './varistorEnergy.ts';
+export type { VaristorEnergy, VaristorEnergyOptions } from './varistorEnergy.ts';
+export { capitalisedCostComparison } from './costs.ts';
+export type { CapitalisedCostComparison, CapitalisedCostOptions, CompensationOption, LineLossInput, OptionCost } from './costs.ts';
 export { lineLoadability } from './loadability.ts';
 export type { LoadabilityCurve, LoadabilityLimit, LoadabilityPoint } from './loadability.ts';
