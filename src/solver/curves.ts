@@ -168,7 +168,7 @@ export function stableAngleForPowerRad(abcd: AbcdMatrix, sendingVoltageKv: numbe
   return limitAngle - Math.acos(Math.max(-1, Math.min(1, cosine)));
 }
 
-/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit it throws TRANSFER_LIMIT_EXCEEDED. */
+/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit in either direction it throws TRANSFER_LIMIT_EXCEEDED. */
 export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: number; receivingVoltageKv: number; receivingPMw: number }): {
   angleDeg: number;
   steadyStateLimitMw: number;
@@ -183,13 +183,18 @@ export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: 
   requireSeriesPath(abcd, network);
   const limitAngle = steadyStateLimitAngleRad(abcd);
   const limitMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle);
-  if (receivingPMw > limitMw) {
+  // The stable side runs from delta = beta - pi (largest reverse flow) to delta = beta (largest forward flow).
+  const minimumMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle - Math.PI);
+  if (receivingPMw > limitMw || receivingPMw < minimumMw) {
     throw new SolverDomainError({
       code: 'TRANSFER_LIMIT_EXCEEDED',
       quantity: 'receivingPMw',
       value: receivingPMw,
-      allowedRange: `(-∞, ${forMessage(limitMw)}] MW (steady-state limit at ${sendingVoltageKv} kV / ${receivingVoltageKv} kV)`,
-      hint: 'The transfer exceeds the steady-state limit of this network; add series compensation, raise the voltages or add a parallel path.',
+      allowedRange: `[${forMessage(minimumMw)}, ${forMessage(limitMw)}] MW (steady-state limits in both directions at ${sendingVoltageKv} kV / ${receivingVoltageKv} kV)`,
+      hint:
+        receivingPMw > limitMw
+          ? 'The transfer exceeds the steady-state limit of this network; add series compensation, raise the voltages or add a parallel path.'
+          : 'No angle delivers this reverse (negative) transfer: it lies below the steady-state limit in the reverse direction.',
     });
   }
   const angleRad = stableAngleForPowerRad(abcd, sendingVoltageKv, receivingVoltageKv, receivingPMw);

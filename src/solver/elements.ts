@@ -1,10 +1,11 @@
 // Lumped compensation and system elements as two-ports: series capacitor/reactor, shunt reactor/capacitor, source equivalents.
 import { Complex, requireComplex, toPlain } from './complex.ts';
-import { SolverDomainError, assertFiniteResult, requireChoice, requireNumber, requireObject } from './errors.ts';
+import { SolverDomainError, assertFiniteResult, forMessage, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import {
   abcdToPlain,
   elementsOf,
+  labelOf,
   readTwoPort,
   seriesImpedanceAbcd,
   shuntAdmittanceAbcd,
@@ -34,6 +35,34 @@ export function lineShuntSusceptanceS(network: TwoPort): number {
   return elementsOf(network)
     .filter((element) => element.kind === 'line-section')
     .reduce((sum, section) => sum + (section.kind === 'line-section' ? section.perKm.shuntSusceptanceUsPerKm * 1e-6 * section.lengthKm : 0), 0);
+}
+
+/** Series capacitors of a network against the inductive reactance of its path (line sections and series reactors). */
+export function seriesPathReactances(network: TwoPort): { inductiveOhm: number; capacitiveOhm: number } {
+  let inductiveOhm = lineSeriesReactanceOhm(network);
+  let capacitiveOhm = 0;
+  for (const element of elementsOf(network)) {
+    if (element.kind === 'series-reactor') inductiveOhm += element.reactanceOhm;
+    if (element.kind === 'series-capacitor') capacitiveOhm += element.reactanceOhm;
+  }
+  return { inductiveOhm, capacitiveOhm };
+}
+
+/**
+ * A bank that cancels or reverses the path reactance (degree >= 1) makes the path net capacitive: the transfer-angle relations no
+ * longer describe a compensated line. Refused the same way whether the bank was sized as a degree or given in ohms.
+ */
+export function requireInductiveSeriesPath(network: TwoPort): void {
+  const { inductiveOhm, capacitiveOhm } = seriesPathReactances(network);
+  if (capacitiveOhm > 0 && !(capacitiveOhm < inductiveOhm)) {
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: `series capacitor reactance of '${labelOf(network)}' (ohm)`,
+      value: capacitiveOhm,
+      allowedRange: `(0, ${forMessage(inductiveOhm)}) ohm, below the series reactance of the path's line sections and series reactors`,
+      hint: DEGREE_HINT,
+    });
+  }
 }
 
 export const DEGREE_OF_COMPENSATION_RANGE = { min: 0, max: 1, minInclusive: false, maxInclusive: false } as const;

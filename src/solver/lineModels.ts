@@ -15,7 +15,7 @@ import {
   type LineSectionTwoPort,
   type PerKmConstants,
 } from './twoPort.ts';
-import { angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
+import { SPEED_OF_LIGHT_M_PER_S, angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
 
 /** Per-km line constants as a study gives them; reactance or inductance, susceptance or capacitance. */
 export interface LinePerKmInput {
@@ -128,6 +128,23 @@ function requirePositiveSusceptance(model: LineModelName, perKm: PerKmConstants)
   }
 }
 
+/** Phase velocity omega / beta as a multiple of the speed of light, or null when the line has no shunt susceptance. */
+function velocityToLightRatio(constants: ResolvedLineConstants): number | null {
+  const betaPerM = constants.seriesImpedanceOhmPerM.mul(constants.shuntAdmittanceSPerM).sqrt().im;
+  return betaPerM > 0 ? angularFrequency(constants.frequencyHz) / betaPerM / SPEED_OF_LIGHT_M_PER_S : null;
+}
+
+/**
+ * Waves on an overhead line travel a little slower than light (L C >= mu0 eps0 for conductors in air); faster means the per-km
+ * constants do not belong together, often reactance and susceptance rounded from different tables or taken at different frequencies.
+ */
+function lineDataWarnings(ratio: number | null): string[] {
+  if (ratio === null || !(ratio > 1)) return [];
+  return [
+    `The line constants imply waves travelling at ${ratio.toFixed(3)} times the speed of light, faster than light: the series reactance and shunt susceptance per km do not belong together (check the data source, units and frequency).`,
+  ];
+}
+
 /** ABCD of a uniform line of the given length (metres) under one model; used for whole sections and for points inside them. */
 export function lineAbcd(model: LineModelName, z: Complex, y: Complex, lengthM: number): AbcdMatrix {
   const seriesImpedance = z.mul(lengthM);
@@ -171,6 +188,7 @@ export function lineModel(options: LineModelOptions): LineSectionTwoPort {
     lengthKm,
     frequencyHz: constants.frequencyHz,
     perKm: constants.perKm,
+    warnings: lineDataWarnings(velocityToLightRatio(constants)),
     ...abcdToPlain(matrix),
   });
 }
@@ -200,6 +218,8 @@ export interface LineCharacteristics {
   losslessSurgeImpedanceOhm: number;
   wavelengthKm: number;
   propagationVelocityKmPerS: number;
+  /** Propagation velocity over the speed of light; above 1 the data are inconsistent (see warnings). */
+  velocityToLightRatio: number;
   electricalLengthDeg: number;
   nominalVoltageKv: number;
   surgeImpedanceLoadingMw: number;
@@ -209,6 +229,7 @@ export interface LineCharacteristics {
   chargingMvar: number;
   equivalentPi: { seriesImpedanceOhm: ComplexValue; shuntAdmittanceEachEndS: ComplexValue };
   nominalPi: { seriesImpedanceOhm: ComplexValue; shuntAdmittanceEachEndS: ComplexValue };
+  warnings: string[];
 }
 
 /** Propagation constant, surge impedance, wavelength, electrical length, SIL, charging and the pi equivalents of a line. */
@@ -232,6 +253,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
   const shuntTotal = y.mul(lengthM);
   const equivalentSeries = seriesTotal.mul(gammaLength.sinh().div(gammaLength));
   const equivalentShuntHalf = shuntTotal.div(2).mul(gammaLength.div(2).tanh().div(gammaLength.div(2)));
+  const velocityRatio = (angularFrequency(constants.frequencyHz) / (phaseRadPerKm / 1e3)) / SPEED_OF_LIGHT_M_PER_S;
   return assertFiniteResult('lineCharacteristics', {
     model: 'distributed' as const,
     lengthKm,
@@ -245,6 +267,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
     losslessSurgeImpedanceOhm,
     wavelengthKm: (2 * Math.PI) / phaseRadPerKm,
     propagationVelocityKmPerS: (angularFrequency(constants.frequencyHz) / phaseRadPerKm),
+    velocityToLightRatio: velocityRatio,
     electricalLengthDeg: radToDeg(gammaLength.im),
     nominalVoltageKv,
     surgeImpedanceLoadingMw: (voltageV * voltageV) / losslessSurgeImpedanceOhm / 1e6,
@@ -252,6 +275,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
     chargingMvar: (voltageV * voltageV * susceptanceTotalS) / 1e6,
     equivalentPi: { seriesImpedanceOhm: toPlain(equivalentSeries), shuntAdmittanceEachEndS: toPlain(equivalentShuntHalf) },
     nominalPi: { seriesImpedanceOhm: toPlain(seriesTotal), shuntAdmittanceEachEndS: toPlain(shuntTotal.div(2)) },
+    warnings: lineDataWarnings(velocityRatio),
   });
 }
 

@@ -9,6 +9,7 @@ import {
   requireNumber,
   requireObject,
 } from './errors.ts';
+import { requireInductiveSeriesPath } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import { abcdOf, elementsOf, labelOf, readTwoPort, type AbcdMatrix, type TwoPort } from './twoPort.ts';
 import { SQRT3, degToRad, kvToV, lineKvFromPhaseVolts, phaseVoltsFromLineKv } from './units.ts';
@@ -90,6 +91,7 @@ export function readNetwork(record: Record<string, unknown>): { network: TwoPort
 }
 
 export function requireSeriesPath(abcd: AbcdMatrix, network: TwoPort): void {
+  requireInductiveSeriesPath(network);
   if (abcd.B.abs() < 1e-9) {
     throw new SolverDomainError({
       code: 'DEGENERATE_NETWORK',

@@ -36,6 +36,8 @@ export interface LineSectionTwoPort extends TwoPortCore {
   lengthKm: number;
   frequencyHz: number;
   perKm: PerKmConstants;
+  /** Doubts about the line data (e.g. waves faster than light), as sentences a study can pass to caution(). */
+  warnings: string[];
 }
 
 export interface SeriesElementTwoPort extends TwoPortCore {

@@ -59,6 +59,32 @@ describe('angleForTransfer', () => {
   test('throws TRANSFER_LIMIT_EXCEEDED above the steady-state limit', () => {
     const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 2500 });
     expect(attempt).toThrow(SolverDomainError);
-    expect(attempt).toThrow(/receivingPMw = 2500 is outside the allowed range \(-∞, 2000\] MW/);
+    expect(attempt).toThrow(/receivingPMw = 2500 is outside the allowed range \[-2000, 2000\] MW/);
+  });
+
+  // Lossless reactance: the stable side spans P = -Vs Vr / X (delta = -90 deg) to +Vs Vr / X; below -2000 MW no angle delivers the power.
+  test('throws TRANSFER_LIMIT_EXCEEDED below the minimum (reverse) transfer', () => {
+    const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: -2500 });
+    expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(/receivingPMw = -2500 is outside the allowed range \[-2000, 2000\] MW/);
+  });
+});
+
+describe('a net-capacitive series path', () => {
+  // A bank larger than the path reactance reverses it (degree >= 1): refused whether given as a degree or in ohms.
+  test('is refused when the bank is given in ohms larger than the line reactance', () => {
+    const line = shortLossless(50);
+    const network = cascade({ elements: [line, seriesCapacitor({ reactanceOhm: 60 })] });
+    const attempt = () => powerAngleCurve({ network, sendingVoltageKv: 400, receivingVoltageKv: 400 });
+    expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(/series capacitor reactance .* = 60 is outside the allowed range \(0, 50\) ohm/);
+    expect(() => angleForTransfer({ network, sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 100 })).toThrow(/series capacitor reactance/);
+    expect(() => solveFixedSendingVoltage({ network, sendingVoltageKv: 400, load: { pMw: 100, qMvar: 0 } })).toThrow(/series capacitor reactance/);
+  });
+
+  test('is accepted when the bank in ohms is smaller than the line reactance', () => {
+    const line = shortLossless(50);
+    const network = cascade({ elements: [line, seriesCapacitor({ reactanceOhm: 40 })] });
+    expect(powerAngleCurve({ network, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw).toBeCloseTo(400 ** 2 / 10, 6);
   });
 });

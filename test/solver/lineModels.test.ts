@@ -65,6 +65,27 @@ describe('lineModel', () => {
   });
 });
 
+describe('line data implying propagation faster than light', () => {
+  // Physical bound: v = 1 / sqrt(L C) cannot exceed c on an overhead line; x = 0.25 ohm/km and b = 3.0 uS/km at 50 Hz give
+  // v = omega / sqrt(x b) = 314.16 / sqrt(0.25 * 3e-6) = 362,760 km/s, 1.21 c.
+  const fast = { frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.25, shuntSusceptanceUsPerKm: 3.0, lengthKm: 100 };
+  test('is reported with the ratio v/c by lineCharacteristics', () => {
+    const result = lineCharacteristics({ ...fast, nominalVoltageKv: 400 });
+    expect(result.velocityToLightRatio).toBeCloseTo((2 * Math.PI * 50) / Math.sqrt(0.25 * 3e-6) / 299_792.458, 9);
+    expect(result.warnings).toHaveLength(1);
+    expect(result.warnings[0]).toMatch(/1\.210 times the speed of light/);
+  });
+
+  test('is reported on the line section built by lineModel', () => {
+    expect(lineModel(fast).warnings[0]).toMatch(/faster than light/);
+  });
+
+  test('gives no warning for the Saadat example line', () => {
+    expect(lineCharacteristics({ ...saadat, nominalVoltageKv: 500 }).warnings).toEqual([]);
+    expect(lineModel(saadat).warnings).toEqual([]);
+  });
+});
+
 describe('a line of a quarter wavelength', () => {
   // Lossless line: the open-end voltage is Vs / cos(beta l), unbounded at beta l = 90 degrees.
   test('is refused at no load as a resonance, not answered with an unbounded voltage', () => {
