@@ -106,10 +106,31 @@ function sampleSection(section: LineSectionTwoPort, distancesKm: number[], volta
   }
 }
 
+/** The sending end propagated through the network must arrive at the operating point's own receiving end. */
+function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, label: string): void {
+  const scaleV = Math.max(voltage.abs(), expectedVoltage.abs(), 1);
+  const scaleI = Math.max(current.abs(), expectedCurrent.abs(), 1e-3);
+  const voltageDeviation = voltage.sub(expectedVoltage).abs() / scaleV;
+  const currentDeviation = current.sub(expectedCurrent).abs() / scaleI;
+  if (!(voltageDeviation <= 1e-6 && currentDeviation <= 1e-6)) {
+    throw new SolverDomainError({
+      code: 'INCONSISTENT_QUANTITIES',
+      quantity: 'operatingPoint',
+      value: `receiving end ${lineKvFromPhaseVolts(expectedVoltage.abs())} kV, ${expectedCurrent.abs()} A`,
+      allowedRange: `the receiving end this network gives for the same sending end: ${lineKvFromPhaseVolts(voltage.abs())} kV, ${current.abs()} A`,
+      hint: 'Solve the operating point on the same network you draw the profile of (e.g. the compensated cascade, not the bare line).',
+      message: `The operating point (receiving end ${lineKvFromPhaseVolts(expectedVoltage.abs()).toFixed(3)} kV, ${expectedCurrent.abs().toFixed(3)} A) does not belong to this network '${label}', which gives ${lineKvFromPhaseVolts(voltage.abs()).toFixed(3)} kV, ${current.abs().toFixed(3)} A for the same sending end`,
+    });
+  }
+}
+
 /** Profile of voltage and current along the route for a solved operating point. */
 export function voltageProfile(options: {
   network: TwoPort;
-  operatingPoint: { sendingEnd: { phaseVoltageV: { re: number; im: number }; lineCurrentA: { re: number; im: number } } };
+  operatingPoint: {
+    sendingEnd: { phaseVoltageV: { re: number; im: number }; lineCurrentA: { re: number; im: number } };
+    receivingEnd: { phaseVoltageV: { re: number; im: number }; lineCurrentA: { re: number; im: number } };
+  };
   pointCount?: number;
   nominalVoltageKv?: number;
 }): VoltageProfile {
@@ -117,6 +138,9 @@ export function voltageProfile(options: {
   const { network } = readNetwork(record);
   const operatingPoint = requireObject('operatingPoint', record.operatingPoint, PROFILE_HINT);
   const sendingEnd = requireObject('operatingPoint.sendingEnd', operatingPoint.sendingEnd, PROFILE_HINT);
+  const receivingEnd = requireObject('operatingPoint.receivingEnd', operatingPoint.receivingEnd, PROFILE_HINT);
+  const expectedVoltage = requireComplex('operatingPoint.receivingEnd.phaseVoltageV', receivingEnd.phaseVoltageV, PROFILE_HINT);
+  const expectedCurrent = requireComplex('operatingPoint.receivingEnd.lineCurrentA', receivingEnd.lineCurrentA, PROFILE_HINT);
   let voltage = requireComplex('operatingPoint.sendingEnd.phaseVoltageV', sendingEnd.phaseVoltageV, PROFILE_HINT);
   let current = requireComplex('operatingPoint.sendingEnd.lineCurrentA', sendingEnd.lineCurrentA, PROFILE_HINT);
   const requestedPoints = Math.round(optionalNumber('pointCount', record.pointCount, 201, { min: 2, max: 1_000_000 }, 'About how many points along the route.'));
@@ -169,12 +193,17 @@ export function voltageProfile(options: {
       emit(0, voltage.re, voltage.im, current.re, current.im);
     }
   });
-  let maximumIndex = 0;
-  let minimumIndex = 0;
-  profile.voltageKv.forEach((value, index) => {
+  requireSameNetwork(voltage, current, expectedVoltage, expectedCurrent, labelOf(network));
+  // A source equivalent's outer terminal is the system EMF, not a point of the route: it takes no part in the extremes.
+  const firstRouteIndex = elements[0]?.kind === 'source-equivalent' ? 1 : 0;
+  const lastRouteIndex = profile.voltageKv.length - 1 - (elements[elements.length - 1]?.kind === 'source-equivalent' && elements.length > 1 ? 1 : 0);
+  let maximumIndex = firstRouteIndex;
+  let minimumIndex = firstRouteIndex;
+  for (let index = firstRouteIndex; index <= lastRouteIndex; index += 1) {
+    const value = profile.voltageKv[index] as number;
     if (value > (profile.voltageKv[maximumIndex] as number)) maximumIndex = index;
     if (value < (profile.voltageKv[minimumIndex] as number)) minimumIndex = index;
-  });
+  }
   const at = (index: number) => ({ positionKm: profile.positionKm[index] as number, voltageKv: profile.voltageKv[index] as number });
   return assertFiniteResult('voltageProfile', {
     networkLabel: labelOf(network),

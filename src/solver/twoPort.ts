@@ -188,9 +188,28 @@ function determinantDeviation(matrix: AbcdMatrix): { determinant: Complex; devia
   return { determinant, deviation: determinant.sub(1).abs() };
 }
 
+/** A cascade's ABCD must be the product of its elements' ABCD; a hand-edited total can keep AD - BC = 1 and still be wrong. */
+function requireProductOfElements(network: CascadeTwoPort, tolerance: number): void {
+  const product = network.elements.reduce((accumulated, element) => multiplyAbcd(accumulated, abcdOf(element)), IDENTITY_ABCD);
+  const stored = abcdOf(network);
+  for (const key of ['A', 'B', 'C', 'D'] as const) {
+    const deviation = stored[key].sub(product[key]).abs();
+    if (!(deviation <= tolerance * Math.max(product[key].abs(), stored[key].abs(), key === 'A' || key === 'D' ? 1 : 0) + Number.MIN_VALUE)) {
+      throw new SolverDomainError({
+        code: 'RECIPROCITY_VIOLATED',
+        quantity: `${key} of the cascade '${labelOf(network)}'`,
+        value: `${stored[key].re} + j${stored[key].im}`,
+        allowedRange: `${product[key].re} + j${product[key].im} ± ${tolerance} relative`,
+        hint: 'The stored total of a cascade must equal the product of its elements; rebuild it with cascade() instead of editing its ABCD values.',
+        message: `${key} of the cascade '${labelOf(network)}' = ${stored[key].re} + j${stored[key].im} differs from the product of its ${network.elements.length} element(s), ${product[key].re} + j${product[key].im}`,
+      });
+    }
+  }
+}
+
 /**
  * Passive, reciprocal networks keep AD - BC = 1; a violation means corrupted or hand-edited data.
- * Checks every element, then the whole network, and names the first offender.
+ * Checks every element, that a cascade's total is the product of its elements, then the whole network, and names the first offender.
  */
 export function checkReciprocity(options: { network: TwoPort; tolerance?: number }): ReciprocityCheck {
   const record = requireObject('options', options, 'Pass { network, tolerance? }.');
@@ -217,6 +236,7 @@ export function checkReciprocity(options: { network: TwoPort; tolerance?: number
       });
     }
   }
+  if (network.kind === 'cascade') requireProductOfElements(network, tolerance);
   const whole = determinantDeviation(abcdOf(network));
   return assertFiniteResult('checkReciprocity', {
     label: labelOf(network),
