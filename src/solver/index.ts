@@ -5,8 +5,8 @@ export { polarForm } from './complex.ts';
 export type { ComplexValue, PolarForm } from './complex.ts';
 export { lineConstantsFromGeometry } from './lineConstants.ts';
 export type { ConductorData, GeometryOptions, LineConstantsFromGeometry } from './lineConstants.ts';
-export { lineModel, lineCharacteristics } from './lineModels.ts';
-export type { LineCharacteristics, LineModelOptions, LinePerKmInput } from './lineModels.ts';
+export { compensatedLineCharacteristics, lineModel, lineCharacteristics } from './lineModels.ts';
+export type { CompensatedLineCharacteristics, LineCharacteristics, LineModelOptions, LinePerKmInput } from './lineModels.ts';
 export { cascade, checkReciprocity } from './twoPort.ts';
 export type {
   CascadeTwoPort,

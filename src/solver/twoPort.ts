@@ -35,7 +35,10 @@ export interface LineSectionTwoPort extends TwoPortCore {
   model: LineModelName;
   lengthKm: number;
   frequencyHz: number;
+  /** Per-km constants as used (susceptance net of any uniformly distributed shunt compensation). */
   perKm: PerKmConstants;
+  /** Share of the line's own charging susceptance cancelled by distributed shunt reactors (0 for a plain line). */
+  distributedShuntCompensationDegree: number;
   /** Doubts about the line data (e.g. waves faster than light), as sentences a study can pass to caution(). */
   warnings: string[];
 }
