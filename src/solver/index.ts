@@ -13,6 +13,7 @@ export type {
   ElementTwoPort,
   LineModelName,
   LineSectionTwoPort,
+  LumpedTwoPort,
   PerKmConstants,
   ReciprocityCheck,
   SeriesElementTwoPort,
@@ -20,7 +21,7 @@ export type {
   SourceEquivalentTwoPort,
   TwoPort,
 } from './twoPort.ts';
-export { seriesCapacitor, seriesReactor, shuntCapacitor, shuntReactor, sourceEquivalent } from './elements.ts';
+export { reverseTwoPort, seriesCapacitor, seriesImpedance, seriesReactor, shuntCapacitor, shuntReactor, sourceEquivalent, symmetricalPi, twoPortFromAbcd } from './elements.ts';
 export type { SeriesCapacitorOptions, ShuntElementOptions, SourceEquivalentOptions } from './elements.ts';
 export { solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, solveTwoEndVoltages } from './solutions.ts';
 export type { EndQuantities, LoadInput, OperatingCase, OperatingPoint } from './solutions.ts';

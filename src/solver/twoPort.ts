@@ -68,7 +68,12 @@ export interface SourceEquivalentTwoPort extends TwoPortCore {
   nominalVoltageKv: number;
 }
 
-export type ElementTwoPort = LineSectionTwoPort | SeriesElementTwoPort | ShuntElementTwoPort | SourceEquivalentTwoPort;
+/** A lumped element built from totals: a series impedance R + jX, a symmetrical pi, or ABCD values given directly (checked). */
+export interface LumpedTwoPort extends TwoPortCore {
+  kind: 'series-impedance' | 'pi-section' | 'given-two-port';
+}
+
+export type ElementTwoPort = LineSectionTwoPort | SeriesElementTwoPort | ShuntElementTwoPort | SourceEquivalentTwoPort | LumpedTwoPort;
 
 export interface CascadeTwoPort extends TwoPortCore {
   kind: 'cascade';
@@ -134,6 +139,9 @@ const ELEMENT_KINDS = new Set([
   'shunt-reactor',
   'shunt-capacitor',
   'source-equivalent',
+  'series-impedance',
+  'pi-section',
+  'given-two-port',
   'cascade',
 ]);
 
