@@ -27,8 +27,10 @@ export { solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, solveTwoEndV
 export type { EndQuantities, LoadInput, OperatingCase, OperatingPoint } from './solutions.ts';
 export { voltageProfile } from './profile.ts';
 export type { VoltageProfile } from './profile.ts';
-export { angleForTransfer, powerAngleCurve, pvCurve } from './curves.ts';
-export type { PowerAngleCurve, PowerAnglePoint, PvCurve, PvPoint } from './curves.ts';
+export { angleForTransfer, powerAngleCurve, powerCircles, pvCurve, qvCurve } from './curves.ts';
+export type { PowerAngleCurve, PowerAnglePoint, PowerCircle, PvCurve, PvPoint, QvCurve } from './curves.ts';
+export { elementLosses } from './losses.ts';
+export type { ElementLoss, ElementLosses } from './losses.ts';
 export { shuntCapacitorForLoadVoltage, shuntReactorForNoLoad, svcRange } from './sizing.ts';
 export type { ReactorPlacement, ShuntCapacitorSizing, ShuntReactorSizing, SvcCaseResult, SvcRange } from './sizing.ts';
 export { seriesCompensationDesign } from './seriesCompensation.ts';

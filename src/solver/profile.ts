@@ -107,7 +107,7 @@ function sampleSection(section: LineSectionTwoPort, distancesKm: number[], volta
 }
 
 /** The sending end propagated through the network must arrive at the operating point's own receiving end. */
-function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, label: string): void {
+export function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, label: string): void {
   const scaleV = Math.max(voltage.abs(), expectedVoltage.abs(), 1);
   const scaleI = Math.max(current.abs(), expectedCurrent.abs(), 1e-3);
   const voltageDeviation = voltage.sub(expectedVoltage).abs() / scaleV;

@@ -3,7 +3,7 @@ import { Complex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { lineShuntSusceptanceS, shuntCapacitor, shuntReactor } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { lineModelsOf, noseLoadMultiple, readLoad, readNetwork, receivingVoltageRoots, solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, type LoadInput, type OperatingPoint } from './solutions.ts';
+import { deliveredReactiveVa, lineModelsOf, noseLoadMultiple, readLoad, readNetwork, receivingVoltageRoots, solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, type LoadInput, type OperatingPoint } from './solutions.ts';
 import { voltageProfile } from './profile.ts';
 import {
   abcdOf,
@@ -356,16 +356,8 @@ export function svcRange(options: {
     const load = readLoad(`loadCases[${index}].load`, caseRecord.load);
     /** SVC output (VA, + capacitive) that places the bus at busV; null when no output can (bus voltage unreachable). */
     const outputAt = (busV: number): number | null => {
-      const fixedPart = abcd.A.mul(busV).add(abcd.B.mul(load.re).div(busV));
-      const perNetQ = abcd.B.mul(new Complex(0, -1)).div(busV);
-      const a = perNetQ.abs() ** 2;
-      const b = 2 * fixedPart.mul(perNetQ.conjugate()).re;
-      const c = fixedPart.abs() ** 2 - sendingV * sendingV;
-      const discriminant = b * b - 4 * a * c;
-      if (discriminant < 0) return null;
-      // The larger net reactive load is the normal (upper-voltage) branch.
-      const netReactive = (-b + Math.sqrt(discriminant)) / (2 * a);
-      return load.im - netReactive;
+      const delivered = deliveredReactiveVa(abcd, sendingV, busV, load.re);
+      return delivered === null ? null : load.im - delivered;
     };
     const characteristicGap = (busV: number): number => {
       const output = outputAt(busV);

@@ -228,6 +228,21 @@ export function receivingVoltageRoots(abcd: AbcdMatrix, sendingVoltageLineV: num
   return { upper: Math.sqrt(upperSquared), lower: Math.sqrt(lowerSquared) };
 }
 
+/**
+ * Reactive power (VA, three-phase) the network delivers into a bus held at busV (line-to-line) carrying active power pW, with the
+ * sending voltage fixed: |A V + B (P - j Q) / V| = Vs is a quadratic in Q; the larger root is the normal (small-angle) solution.
+ * Null when no angle delivers pW at that bus voltage.
+ */
+export function deliveredReactiveVa(abcd: AbcdMatrix, sendingLineV: number, busV: number, pW: number): number | null {
+  const fixedPart = abcd.A.mul(busV).add(abcd.B.mul(pW).div(busV));
+  const perReactive = abcd.B.mul(new Complex(0, -1)).div(busV);
+  const a = perReactive.abs() ** 2;
+  const b = 2 * fixedPart.mul(perReactive.conjugate()).re;
+  const c = fixedPart.abs() ** 2 - sendingLineV * sendingLineV;
+  const discriminant = b * b - 4 * a * c;
+  return discriminant < 0 ? null : (-b + Math.sqrt(discriminant)) / (2 * a);
+}
+
 export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load: Complex): SolverDomainError {
   const multiple = noseLoadMultiple(abcd, kvToV(sendingVoltageKv), load);
   return new SolverDomainError({
