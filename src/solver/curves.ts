@@ -205,6 +205,20 @@ export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: 
   });
 }
 
+/** Minimum of a function with one minimum on [low, high], by golden-section search. */
+export function goldenSectionMinimum(fn: (value: number) => number, low: number, high: number): number {
+  const ratio = (Math.sqrt(5) - 1) / 2;
+  let lower = low;
+  let upper = high;
+  for (let iteration = 0; iteration < 100 && upper - lower > 1e-12 * Math.max(1, Math.abs(upper)); iteration += 1) {
+    const left = upper - ratio * (upper - lower);
+    const right = lower + ratio * (upper - lower);
+    if (fn(left) < fn(right)) upper = right;
+    else lower = left;
+  }
+  return (lower + upper) / 2;
+}
+
 export interface PowerCircle {
   centreMw: number;
   centreMvar: number;
@@ -308,16 +322,11 @@ export function qvCurve(options: {
   }
   // Refine the bottom between the neighbours of the lowest sample (the curve is smooth and has one minimum).
   const best = supportMvar.reduce((lowest, value, index) => (value < (supportMvar[lowest] as number) ? index : lowest), 0);
-  let low = voltageKv[Math.max(0, best - 1)] as number;
-  let high = voltageKv[Math.min(voltageKv.length - 1, best + 1)] as number;
-  const ratio = (Math.sqrt(5) - 1) / 2;
-  for (let iteration = 0; iteration < 100 && high - low > 1e-9; iteration += 1) {
-    const left = high - ratio * (high - low);
-    const right = low + ratio * (high - low);
-    if ((supportAt(left) ?? Number.POSITIVE_INFINITY) < (supportAt(right) ?? Number.POSITIVE_INFINITY)) high = right;
-    else low = left;
-  }
-  const refinedVoltage = (low + high) / 2;
+  const refinedVoltage = goldenSectionMinimum(
+    (voltage) => supportAt(voltage) ?? Number.POSITIVE_INFINITY,
+    voltageKv[Math.max(0, best - 1)] as number,
+    voltageKv[Math.min(voltageKv.length - 1, best + 1)] as number,
+  );
   const refinedSupport = supportAt(refinedVoltage);
   const minimum =
     refinedSupport !== null && refinedSupport < (supportMvar[best] as number)

@@ -3,7 +3,7 @@ import { requireComplex } from './complex.ts';
 import { assertFiniteResult, requireObject } from './errors.ts';
 import { requireSameNetwork } from './profile.ts';
 import { readNetwork, type OperatingPoint } from './solutions.ts';
-import { abcdOf, elementsOf, labelOf, type TwoPort } from './twoPort.ts';
+import { abcdOf, elementsOf, labelOf, throughTwoPort, type TwoPort } from './twoPort.ts';
 import { lineKvFromPhaseVolts } from './units.ts';
 
 export interface ElementLoss {
@@ -37,10 +37,7 @@ export function elementLosses(options: { network: TwoPort; operatingPoint: Opera
   let voltage = requireComplex('operatingPoint.sendingEnd.phaseVoltageV', sendingEnd.phaseVoltageV, HINT);
   let current = requireComplex('operatingPoint.sendingEnd.lineCurrentA', sendingEnd.lineCurrentA, HINT);
   const elements = elementsOf(network).map((element) => {
-    const abcd = abcdOf(element);
-    // Through the element from its sending side: V' = D V - B I, I' = A I - C V (AD - BC = 1).
-    const outVoltage = abcd.D.mul(voltage).sub(abcd.B.mul(current));
-    const outCurrent = abcd.A.mul(current).sub(abcd.C.mul(voltage));
+    const { voltage: outVoltage, current: outCurrent } = throughTwoPort(abcdOf(element), voltage, current);
     const powerIn = voltage.mul(current.conjugate()).mul(3);
     const powerOut = outVoltage.mul(outCurrent.conjugate()).mul(3);
     const loss = {

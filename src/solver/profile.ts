@@ -3,7 +3,7 @@ import { Complex, requireComplex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV, lineAbcd, perKmToSi } from './lineModels.ts';
 import { lineModelsOf, readNetwork } from './solutions.ts';
-import { abcdOf, elementsOf, labelOf, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
+import { abcdOf, elementsOf, labelOf, throughTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
 import { lineKvFromPhaseVolts } from './units.ts';
 
 /**
@@ -99,10 +99,8 @@ function sampleSection(section: LineSectionTwoPort, distancesKm: number[], volta
   }
   const { z, y } = perKmToSi(section.perKm);
   for (const distanceKm of distancesKm) {
-    const partial = lineAbcd(section.model, z, y, distanceKm * 1e3);
-    const atVoltage = partial.D.mul(voltage).sub(partial.B.mul(current));
-    const atCurrent = partial.A.mul(current).sub(partial.C.mul(voltage));
-    emit(distanceKm, atVoltage.re, atVoltage.im, atCurrent.re, atCurrent.im);
+    const at = throughTwoPort(lineAbcd(section.model, z, y, distanceKm * 1e3), voltage, current);
+    emit(distanceKm, at.voltage.re, at.voltage.im, at.current.re, at.current.im);
   }
 }
 
@@ -179,17 +177,11 @@ export function voltageProfile(options: {
     if (element.kind === 'line-section') {
       sampleSection(element, interiorPositions(offsetKm, element.lengthKm, stepKm), voltage, current, emit);
       const { z, y } = perKmToSi(element.perKm);
-      const whole = lineAbcd(element.model, z, y, element.lengthKm * 1e3);
-      const nextVoltage = whole.D.mul(voltage).sub(whole.B.mul(current));
-      current = whole.A.mul(current).sub(whole.C.mul(voltage));
-      voltage = nextVoltage;
+      ({ voltage, current } = throughTwoPort(lineAbcd(element.model, z, y, element.lengthKm * 1e3), voltage, current));
       emit(element.lengthKm, voltage.re, voltage.im, current.re, current.im);
       offsetKm += element.lengthKm;
     } else {
-      const abcd = abcdOf(element);
-      const nextVoltage = abcd.D.mul(voltage).sub(abcd.B.mul(current));
-      current = abcd.A.mul(current).sub(abcd.C.mul(voltage));
-      voltage = nextVoltage;
+      ({ voltage, current } = throughTwoPort(abcdOf(element), voltage, current));
       emit(0, voltage.re, voltage.im, current.re, current.im);
     }
   });

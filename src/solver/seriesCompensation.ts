@@ -3,9 +3,9 @@ import { Complex, fromPlain } from './complex.ts';
 import { assertFiniteResult, forMessage, SolverDomainError, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { seriesCapacitor } from './elements.ts';
 import { VOLTAGE_RANGE_KV, resizedSection } from './lineModels.ts';
-import { angleForTransfer, receivingPowerAtAngleMw, steadyStateLimitAngleRad } from './curves.ts';
+import { angleForTransfer, goldenSectionMinimum, receivingPowerAtAngleMw, steadyStateLimitAngleRad } from './curves.ts';
 import { solveTwoEndVoltages } from './solutions.ts';
-import { abcdOf, cascade, readTwoPort, type CascadeTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
+import { abcdOf, cascade, readTwoPort, throughTwoPort, type CascadeTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
 import { degToRad, lineKvFromPhaseVolts } from './units.ts';
 
 export type CapacitorLocation = 'mid-line' | 'sending-end' | 'receiving-end';
@@ -69,18 +69,10 @@ function transferAtAngleMw(network: TwoPort, sendingVoltageKv: number, receiving
 /** Largest transfer over a scan, refined by golden-section search around the best sample. */
 function largestTransfer(scan: Array<{ degree: number; transferMw: number }>, transferWith: (degree: number) => number, stepDegree: number) {
   const best = scan.reduce((top, sample) => (sample.transferMw > top.transferMw ? sample : top));
-  const ratio = (Math.sqrt(5) - 1) / 2;
   const first = scan[0]?.degree ?? 0;
   const last = scan[scan.length - 1]?.degree ?? best.degree;
-  let low = Math.max(first, best.degree - stepDegree);
-  let high = Math.min(last, best.degree + stepDegree);
-  for (let iteration = 0; iteration < 80; iteration += 1) {
-    const left = high - ratio * (high - low);
-    const right = low + ratio * (high - low);
-    if (transferWith(left) < transferWith(right)) low = left;
-    else high = right;
-  }
-  const refined = { degree: (low + high) / 2, transferMw: transferWith((low + high) / 2) };
+  const degree = goldenSectionMinimum((candidate) => -transferWith(candidate), Math.max(first, best.degree - stepDegree), Math.min(last, best.degree + stepDegree));
+  const refined = { degree, transferMw: transferWith(degree) };
   return refined.transferMw > best.transferMw ? refined : best;
 }
 
@@ -100,13 +92,10 @@ function bankOperatingPoint(
   let current = fromPlain(point.sendingEnd.lineCurrentA);
   const atElement: Array<{ kind: string; before: { voltage: Complex; current: Complex }; after: { voltage: Complex } }> = [];
   for (const element of network.elements) {
-    const abcd = abcdOf(element);
-    // Through an element from its sending side: V' = D V - B I, I' = A I - C V (AD - BC = 1).
-    const nextVoltage = abcd.D.mul(voltage).sub(abcd.B.mul(current));
-    const nextCurrent = abcd.A.mul(current).sub(abcd.C.mul(voltage));
-    atElement.push({ kind: element.kind, before: { voltage, current }, after: { voltage: nextVoltage } });
-    voltage = nextVoltage;
-    current = nextCurrent;
+    const next = throughTwoPort(abcdOf(element), voltage, current);
+    atElement.push({ kind: element.kind, before: { voltage, current }, after: { voltage: next.voltage } });
+    voltage = next.voltage;
+    current = next.current;
   }
   const bank = atElement.find((item) => item.kind === 'series-capacitor');
   const halfLine = resizedSection(line, line.lengthKm / 2, 'half');

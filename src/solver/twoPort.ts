@@ -124,6 +124,11 @@ export function multiplyAbcd(first: AbcdMatrix, second: AbcdMatrix): AbcdMatrix 
   };
 }
 
+/** Voltage and current at the far side of a two-port from its sending side: V' = D V - B I, I' = A I - C V (valid as AD - BC = 1). */
+export function throughTwoPort(abcd: AbcdMatrix, voltage: Complex, current: Complex): { voltage: Complex; current: Complex } {
+  return { voltage: abcd.D.mul(voltage).sub(abcd.B.mul(current)), current: abcd.A.mul(current).sub(abcd.C.mul(voltage)) };
+}
+
 export function seriesImpedanceAbcd(impedanceOhm: Complex): AbcdMatrix {
   return { A: new Complex(1, 0), B: impedanceOhm, C: new Complex(0, 0), D: new Complex(1, 0) };
 }
