@@ -1,7 +1,6 @@
 // Losses per element and in total for an operating point: active losses and reactive consumption element by element along the route.
-import { requireComplex } from './complex.ts';
 import { assertFiniteResult, requireObject } from './errors.ts';
-import { requireSameNetwork } from './profile.ts';
+import { readOperatingPointEnds, requireSameNetwork } from './profile.ts';
 import { readNetwork, type OperatingPoint } from './solutions.ts';
 import { abcdOf, elementsOf, labelOf, throughTwoPort, type TwoPort } from './twoPort.ts';
 import { lineKvFromPhaseVolts } from './units.ts';
@@ -31,11 +30,8 @@ const HINT = 'Pass { network, operatingPoint } with operatingPoint from a solve.
 export function elementLosses(options: { network: TwoPort; operatingPoint: OperatingPoint }): ElementLosses {
   const record = requireObject('options', options, HINT);
   const { network } = readNetwork(record);
-  const operatingPoint = requireObject('operatingPoint', record.operatingPoint, HINT);
-  const sendingEnd = requireObject('operatingPoint.sendingEnd', operatingPoint.sendingEnd, HINT);
-  const receivingEnd = requireObject('operatingPoint.receivingEnd', operatingPoint.receivingEnd, HINT);
-  let voltage = requireComplex('operatingPoint.sendingEnd.phaseVoltageV', sendingEnd.phaseVoltageV, HINT);
-  let current = requireComplex('operatingPoint.sendingEnd.lineCurrentA', sendingEnd.lineCurrentA, HINT);
+  const ends = readOperatingPointEnds(record.operatingPoint, HINT);
+  let { voltage, current } = ends.sending;
   const elements = elementsOf(network).map((element) => {
     const { voltage: outVoltage, current: outCurrent } = throughTwoPort(abcdOf(element), voltage, current);
     const powerIn = voltage.mul(current.conjugate()).mul(3);
@@ -54,13 +50,7 @@ export function elementLosses(options: { network: TwoPort; operatingPoint: Opera
     current = outCurrent;
     return loss;
   });
-  requireSameNetwork(
-    voltage,
-    current,
-    requireComplex('operatingPoint.receivingEnd.phaseVoltageV', receivingEnd.phaseVoltageV, HINT),
-    requireComplex('operatingPoint.receivingEnd.lineCurrentA', receivingEnd.lineCurrentA, HINT),
-    labelOf(network),
-  );
+  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, labelOf(network));
   return assertFiniteResult('elementLosses', {
     networkLabel: labelOf(network),
     elements,

@@ -104,6 +104,19 @@ function sampleSection(section: LineSectionTwoPort, distancesKm: number[], volta
   }
 }
 
+/** The phasors at both ends of an operating point handed in by a study block. */
+export function readOperatingPointEnds(value: unknown, hint: string) {
+  const operatingPoint = requireObject('operatingPoint', value, hint);
+  const end = (name: 'sendingEnd' | 'receivingEnd') => {
+    const record = requireObject(`operatingPoint.${name}`, operatingPoint[name], hint);
+    return {
+      voltage: requireComplex(`operatingPoint.${name}.phaseVoltageV`, record.phaseVoltageV, hint),
+      current: requireComplex(`operatingPoint.${name}.lineCurrentA`, record.lineCurrentA, hint),
+    };
+  };
+  return { sending: end('sendingEnd'), receiving: end('receivingEnd') };
+}
+
 /** The sending end propagated through the network must arrive at the operating point's own receiving end. */
 export function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, label: string): void {
   const scaleV = Math.max(voltage.abs(), expectedVoltage.abs(), 1);
@@ -134,13 +147,8 @@ export function voltageProfile(options: {
 }): VoltageProfile {
   const record = requireObject('options', options, PROFILE_HINT);
   const { network } = readNetwork(record);
-  const operatingPoint = requireObject('operatingPoint', record.operatingPoint, PROFILE_HINT);
-  const sendingEnd = requireObject('operatingPoint.sendingEnd', operatingPoint.sendingEnd, PROFILE_HINT);
-  const receivingEnd = requireObject('operatingPoint.receivingEnd', operatingPoint.receivingEnd, PROFILE_HINT);
-  const expectedVoltage = requireComplex('operatingPoint.receivingEnd.phaseVoltageV', receivingEnd.phaseVoltageV, PROFILE_HINT);
-  const expectedCurrent = requireComplex('operatingPoint.receivingEnd.lineCurrentA', receivingEnd.lineCurrentA, PROFILE_HINT);
-  let voltage = requireComplex('operatingPoint.sendingEnd.phaseVoltageV', sendingEnd.phaseVoltageV, PROFILE_HINT);
-  let current = requireComplex('operatingPoint.sendingEnd.lineCurrentA', sendingEnd.lineCurrentA, PROFILE_HINT);
+  const ends = readOperatingPointEnds(record.operatingPoint, PROFILE_HINT);
+  let { voltage, current } = ends.sending;
   const requestedPoints = Math.round(optionalNumber('pointCount', record.pointCount, 201, { min: 2, max: 1_000_000 }, 'About how many points along the route.'));
   const nominalVoltageKv = record.nominalVoltageKv === undefined ? null : requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, PROFILE_HINT);
   const elements = elementsOf(network);
@@ -185,7 +193,7 @@ export function voltageProfile(options: {
       emit(0, voltage.re, voltage.im, current.re, current.im);
     }
   });
-  requireSameNetwork(voltage, current, expectedVoltage, expectedCurrent, labelOf(network));
+  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, labelOf(network));
   // A source equivalent's outer terminal is the system EMF, not a point of the route: it takes no part in the extremes.
   const firstRouteIndex = elements[0]?.kind === 'source-equivalent' ? 1 : 0;
   const lastRouteIndex = profile.voltageKv.length - 1 - (elements[elements.length - 1]?.kind === 'source-equivalent' && elements.length > 1 ? 1 : 0);
