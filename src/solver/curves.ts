@@ -1,8 +1,8 @@
-// Transfer curves of a two-port: P-V curve up to the nose, P-delta curve, steady-state limit and the angle for a given transfer.
+// Transfer curves of a two-port: P-V and Q-V curves, P-delta curve, power circles, steady-state limit and the angle for a given transfer.
 import { Complex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { beyondNoseError, lineModelsOf, noseLoadMultiple, readNetwork, receivingVoltageRoots, requireSeriesPath, twoEndPhasors } from './solutions.ts';
+import { beyondNoseError, deliveredReactiveVa, lineModelsOf, noseLoadMultiple, readLoad, readNetwork, receivingVoltageRoots, requireSeriesPath, twoEndPhasors, type LoadInput } from './solutions.ts';
 import { labelOf, type AbcdMatrix, type TwoPort } from './twoPort.ts';
 import { degToRad, kvToV, radToDeg } from './units.ts';
 
@@ -168,7 +168,7 @@ export function stableAngleForPowerRad(abcd: AbcdMatrix, sendingVoltageKv: numbe
   return limitAngle - Math.acos(Math.max(-1, Math.min(1, cosine)));
 }
 
-/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit it throws TRANSFER_LIMIT_EXCEEDED. */
+/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit in either direction it throws TRANSFER_LIMIT_EXCEEDED. */
 export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: number; receivingVoltageKv: number; receivingPMw: number }): {
   angleDeg: number;
   steadyStateLimitMw: number;
@@ -183,13 +183,18 @@ export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: 
   requireSeriesPath(abcd, network);
   const limitAngle = steadyStateLimitAngleRad(abcd);
   const limitMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle);
-  if (receivingPMw > limitMw) {
+  // The stable side runs from delta = beta - pi (largest reverse flow) to delta = beta (largest forward flow).
+  const minimumMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle - Math.PI);
+  if (receivingPMw > limitMw || receivingPMw < minimumMw) {
     throw new SolverDomainError({
       code: 'TRANSFER_LIMIT_EXCEEDED',
       quantity: 'receivingPMw',
       value: receivingPMw,
-      allowedRange: `(-∞, ${forMessage(limitMw)}] MW (steady-state limit at ${sendingVoltageKv} kV / ${receivingVoltageKv} kV)`,
-      hint: 'The transfer exceeds the steady-state limit of this network; add series compensation, raise the voltages or add a parallel path.',
+      allowedRange: `[${forMessage(minimumMw)}, ${forMessage(limitMw)}] MW (steady-state limits in both directions at ${sendingVoltageKv} kV / ${receivingVoltageKv} kV)`,
+      hint:
+        receivingPMw > limitMw
+          ? 'The transfer exceeds the steady-state limit of this network; add series compensation, raise the voltages or add a parallel path.'
+          : 'No angle delivers this reverse (negative) transfer: it lies below the steady-state limit in the reverse direction.',
     });
   }
   const angleRad = stableAngleForPowerRad(abcd, sendingVoltageKv, receivingVoltageKv, receivingPMw);
@@ -197,5 +202,145 @@ export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: 
     angleDeg: radToDeg(angleRad),
     steadyStateLimitMw: limitMw,
     marginPercent: ((limitMw - receivingPMw) / limitMw) * 100,
+  });
+}
+
+/** Minimum of a function with one minimum on [low, high], by golden-section search. */
+export function goldenSectionMinimum(fn: (value: number) => number, low: number, high: number): number {
+  const ratio = (Math.sqrt(5) - 1) / 2;
+  let lower = low;
+  let upper = high;
+  for (let iteration = 0; iteration < 100 && upper - lower > 1e-12 * Math.max(1, Math.abs(upper)); iteration += 1) {
+    const left = upper - ratio * (upper - lower);
+    const right = lower + ratio * (upper - lower);
+    if (fn(left) < fn(right)) upper = right;
+    else lower = left;
+  }
+  return (lower + upper) / 2;
+}
+
+export interface PowerCircle {
+  centreMw: number;
+  centreMvar: number;
+  radiusMva: number;
+  /** Largest active power on the circle: the steady-state limit at this end. */
+  maximumPMw: number;
+}
+
+/**
+ * Receiving-end and sending-end power circles for fixed end voltages: S_r = Vs Vr e^(-j delta) / B* - A* Vr^2 / B* and
+ * S_s = D* Vs^2 / B* - Vs Vr e^(j delta) / B* (three-phase, Q > 0 delivered to the receiving bus / drawn from the sending bus).
+ */
+export function powerCircles(options: { network: TwoPort; sendingVoltageKv: number; receivingVoltageKv: number }): {
+  networkLabel: string;
+  lineModels: string[];
+  sendingVoltageKv: number;
+  receivingVoltageKv: number;
+  receivingEnd: PowerCircle;
+  sendingEnd: PowerCircle;
+} {
+  const hint = 'Pass { network, sendingVoltageKv, receivingVoltageKv }.';
+  const record = requireObject('options', options, hint);
+  const { network, abcd } = readNetwork(record);
+  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  requireSeriesPath(abcd, network);
+  const sendingV = kvToV(sendingVoltageKv);
+  const receivingV = kvToV(receivingVoltageKv);
+  const bConjugate = abcd.B.conjugate();
+  const radiusMva = (sendingV * receivingV) / abcd.B.abs() / 1e6;
+  const receivingCentre = abcd.A.conjugate().mul(-receivingV * receivingV).div(bConjugate).div(1e6);
+  const sendingCentre = abcd.D.conjugate().mul(sendingV * sendingV).div(bConjugate).div(1e6);
+  const circle = (centre: Complex) => ({ centreMw: centre.re, centreMvar: centre.im, radiusMva, maximumPMw: centre.re + radiusMva });
+  return assertFiniteResult('powerCircles', {
+    networkLabel: labelOf(network),
+    lineModels: lineModelsOf(network),
+    sendingVoltageKv,
+    receivingVoltageKv,
+    receivingEnd: circle(receivingCentre),
+    sendingEnd: circle(sendingCentre),
+  });
+}
+
+export interface QvCurve {
+  networkLabel: string;
+  lineModels: string[];
+  sendingVoltageKv: number;
+  pMw: number;
+  qMvar: number;
+  /** Bus voltages where the network can carry the load's active power, ascending. */
+  voltageKv: number[];
+  /** Reactive power a source at the receiving bus must supply to hold each voltage (positive capacitive, negative inductive). */
+  supportMvar: number[];
+  /** Bottom of the curve: the critical voltage and the support there. */
+  minimum: { voltageKv: number; supportMvar: number };
+  /** Reactive margin: -minimum.supportMvar; positive when the bus can take that much more reactive load before collapse. */
+  reactiveMarginMvar: number;
+}
+
+/** Receiving-bus Q-V curve: the reactive support that holds each bus voltage with the load's P and Q and a fixed sending voltage. */
+export function qvCurve(options: {
+  network: TwoPort;
+  sendingVoltageKv: number;
+  load: LoadInput;
+  minimumVoltageKv?: number;
+  maximumVoltageKv?: number;
+  pointCount?: number;
+}): QvCurve {
+  const hint = 'Pass { network, sendingVoltageKv, load, minimumVoltageKv?, maximumVoltageKv?, pointCount? }.';
+  const record = requireObject('options', options, hint);
+  const { network, abcd } = readNetwork(record);
+  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const load = readLoad('load', record.load);
+  const minimumVoltageKv = optionalNumber('minimumVoltageKv', record.minimumVoltageKv, 0.2 * sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const maximumVoltageKv = optionalNumber('maximumVoltageKv', record.maximumVoltageKv, 1.3 * sendingVoltageKv, { min: minimumVoltageKv, max: 2000, minInclusive: false, unit: 'kV' }, hint);
+  const pointCount = Math.round(optionalNumber('pointCount', record.pointCount, 101, POINT_COUNT_RANGE, 'Points on the curve.'));
+  requireSeriesPath(abcd, network);
+  const sendingLineV = kvToV(sendingVoltageKv);
+  const supportAt = (voltageKv: number): number | null => {
+    const delivered = deliveredReactiveVa(abcd, sendingLineV, kvToV(voltageKv), load.re);
+    return delivered === null ? null : (load.im - delivered) / 1e6;
+  };
+  const voltageKv: number[] = [];
+  const supportMvar: number[] = [];
+  for (let index = 0; index < pointCount; index += 1) {
+    const voltage = minimumVoltageKv + ((maximumVoltageKv - minimumVoltageKv) * index) / (pointCount - 1);
+    const support = supportAt(voltage);
+    if (support !== null) {
+      voltageKv.push(voltage);
+      supportMvar.push(support);
+    }
+  }
+  if (voltageKv.length === 0) {
+    throw new SolverDomainError({
+      code: 'NO_OPERATING_POINT',
+      quantity: 'load.pMw',
+      value: load.re / 1e6,
+      allowedRange: `active powers the network can carry at some bus voltage in [${minimumVoltageKv}, ${maximumVoltageKv}] kV`,
+      hint: 'No bus voltage in the range carries this active power; widen the voltage range or reduce the load.',
+    });
+  }
+  // Refine the bottom between the neighbours of the lowest sample (the curve is smooth and has one minimum).
+  const best = supportMvar.reduce((lowest, value, index) => (value < (supportMvar[lowest] as number) ? index : lowest), 0);
+  const refinedVoltage = goldenSectionMinimum(
+    (voltage) => supportAt(voltage) ?? Number.POSITIVE_INFINITY,
+    voltageKv[Math.max(0, best - 1)] as number,
+    voltageKv[Math.min(voltageKv.length - 1, best + 1)] as number,
+  );
+  const refinedSupport = supportAt(refinedVoltage);
+  const minimum =
+    refinedSupport !== null && refinedSupport < (supportMvar[best] as number)
+      ? { voltageKv: refinedVoltage, supportMvar: refinedSupport }
+      : { voltageKv: voltageKv[best] as number, supportMvar: supportMvar[best] as number };
+  return assertFiniteResult('qvCurve', {
+    networkLabel: labelOf(network),
+    lineModels: lineModelsOf(network),
+    sendingVoltageKv,
+    pMw: load.re / 1e6,
+    qMvar: load.im / 1e6,
+    voltageKv,
+    supportMvar,
+    minimum,
+    reactiveMarginMvar: -minimum.supportMvar,
   });
 }

@@ -1,13 +1,20 @@
 // Lumped compensation and system elements as two-ports: series capacitor/reactor, shunt reactor/capacitor, source equivalents.
 import { Complex, requireComplex, toPlain } from './complex.ts';
-import { SolverDomainError, assertFiniteResult, requireChoice, requireNumber, requireObject } from './errors.ts';
+import { SolverDomainError, assertFiniteResult, forMessage, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import {
+  abcdOf,
   abcdToPlain,
+  cascade,
+  checkReciprocity,
   elementsOf,
+  labelOf,
   readTwoPort,
   seriesImpedanceAbcd,
   shuntAdmittanceAbcd,
+  type CascadeTwoPort,
+  type ElementTwoPort,
+  type LumpedTwoPort,
   type SeriesElementTwoPort,
   type ShuntElementTwoPort,
   type SourceEquivalentTwoPort,
@@ -34,6 +41,38 @@ export function lineShuntSusceptanceS(network: TwoPort): number {
   return elementsOf(network)
     .filter((element) => element.kind === 'line-section')
     .reduce((sum, section) => sum + (section.kind === 'line-section' ? section.perKm.shuntSusceptanceUsPerKm * 1e-6 * section.lengthKm : 0), 0);
+}
+
+/** Series capacitors of a network against the inductive reactance of its path (line sections and series reactors). */
+export function seriesPathReactances(network: TwoPort): { inductiveOhm: number; capacitiveOhm: number } {
+  let inductiveOhm = lineSeriesReactanceOhm(network);
+  let capacitiveOhm = 0;
+  for (const element of elementsOf(network)) {
+    if (element.kind === 'series-reactor') inductiveOhm += element.reactanceOhm;
+    if (element.kind === 'series-capacitor') capacitiveOhm += element.reactanceOhm;
+    if (element.kind === 'series-impedance') {
+      if (element.B.im >= 0) inductiveOhm += element.B.im;
+      else capacitiveOhm -= element.B.im;
+    }
+  }
+  return { inductiveOhm, capacitiveOhm };
+}
+
+/**
+ * A bank that cancels or reverses the path reactance (degree >= 1) makes the path net capacitive: the transfer-angle relations no
+ * longer describe a compensated line. Refused the same way whether the bank was sized as a degree or given in ohms.
+ */
+export function requireInductiveSeriesPath(network: TwoPort): void {
+  const { inductiveOhm, capacitiveOhm } = seriesPathReactances(network);
+  if (capacitiveOhm > 0 && !(capacitiveOhm < inductiveOhm)) {
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: `series capacitor reactance of '${labelOf(network)}' (ohm)`,
+      value: capacitiveOhm,
+      allowedRange: `(0, ${forMessage(inductiveOhm)}) ohm, below the series reactance of the path's line sections and series reactors`,
+      hint: DEGREE_HINT,
+    });
+  }
 }
 
 export const DEGREE_OF_COMPENSATION_RANGE = { min: 0, max: 1, minInclusive: false, maxInclusive: false } as const;
@@ -183,4 +222,69 @@ export function sourceEquivalent(options: SourceEquivalentOptions): SourceEquiva
     nominalVoltageKv,
     ...abcdToPlain(seriesImpedanceAbcd(impedance)),
   });
+}
+
+/** Series impedance R + jX (either sign of X) as a two-port: B = Z. */
+export function seriesImpedance(options: { resistanceOhm: number; reactanceOhm: number; label?: string }): LumpedTwoPort {
+  const hint = 'Pass { resistanceOhm, reactanceOhm, label? } per phase (reactance negative for a capacitive element).';
+  const record = requireObject('options', options, hint);
+  const resistanceOhm = requireNumber('resistanceOhm', record.resistanceOhm, { min: 0, max: 1e5, unit: 'ohm' }, hint);
+  const reactanceOhm = requireNumber('reactanceOhm', record.reactanceOhm, { min: -1e5, max: 1e5, unit: 'ohm' }, hint);
+  return assertFiniteResult('seriesImpedance', {
+    kind: 'series-impedance' as const,
+    label: labelFrom(record, `series impedance ${resistanceOhm} + j${reactanceOhm} ohm`),
+    ...abcdToPlain(seriesImpedanceAbcd(new Complex(resistanceOhm, reactanceOhm))),
+  });
+}
+
+/** Symmetrical pi from the total series impedance Z and total shunt admittance Y (Y/2 at each end): A = D = 1 + ZY/2, C = Y (1 + ZY/4). */
+export function symmetricalPi(options: { seriesImpedanceOhm: { re: number; im: number }; shuntAdmittanceS: { re: number; im: number }; label?: string }): LumpedTwoPort {
+  const hint = 'Pass { seriesImpedanceOhm: { re, im }, shuntAdmittanceS: { re, im } (the total, split half to each end), label? }.';
+  const record = requireObject('options', options, hint);
+  const impedance = requireComplex('seriesImpedanceOhm', record.seriesImpedanceOhm, hint);
+  const admittance = requireComplex('shuntAdmittanceS', record.shuntAdmittanceS, hint);
+  const halfShunt = shuntAdmittanceAbcd(admittance.div(2));
+  const matrix = [halfShunt, seriesImpedanceAbcd(impedance), halfShunt].reduce((product, part) => ({
+    A: product.A.mul(part.A).add(product.B.mul(part.C)),
+    B: product.A.mul(part.B).add(product.B.mul(part.D)),
+    C: product.C.mul(part.A).add(product.D.mul(part.C)),
+    D: product.C.mul(part.B).add(product.D.mul(part.D)),
+  }));
+  return assertFiniteResult('symmetricalPi', { kind: 'pi-section' as const, label: labelFrom(record, 'pi section'), ...abcdToPlain(matrix) });
+}
+
+/**
+ * A two-port from given A, B, C, D (B in ohm, C in S), e.g. printed in a data sheet. A passive reciprocal network has AD - BC = 1;
+ * printed values hold it only to their rounding, so the tolerance is the caller's statement of that rounding.
+ */
+export function twoPortFromAbcd(options: {
+  A: { re: number; im: number };
+  B: { re: number; im: number };
+  C: { re: number; im: number };
+  D: { re: number; im: number };
+  tolerance?: number;
+  label?: string;
+}): LumpedTwoPort {
+  const hint = 'Pass { A, B, C, D } as { re, im } (B in ohm, C in S), tolerance? (AD - BC = 1 within it; 1e-6 by default, about 1e-3 for values rounded to 3-4 digits), label? }.';
+  const record = requireObject('options', options, hint);
+  const values = Object.fromEntries((['A', 'B', 'C', 'D'] as const).map((key) => [key, requireComplex(key, record[key], hint)])) as Record<'A' | 'B' | 'C' | 'D', Complex>;
+  const tolerance = requireNumber('tolerance', record.tolerance ?? 1e-6, { min: 0, max: 0.05, minInclusive: false }, hint);
+  const element = { kind: 'given-two-port' as const, label: labelFrom(record, 'given two-port'), ...abcdToPlain({ A: values.A, B: values.B, C: values.C, D: values.D }) };
+  checkReciprocity({ network: element, tolerance });
+  return assertFiniteResult('twoPortFromAbcd', element);
+}
+
+function reversedElement(element: ElementTwoPort): ElementTwoPort {
+  const { A, B, C, D } = abcdOf(element);
+  const swapped = { ...element, ...abcdToPlain({ A: D, B, C, D: A }) };
+  return element.kind === 'source-equivalent' ? { ...swapped, end: element.end === 'sending' ? 'receiving' : 'sending' } as ElementTwoPort : (swapped as ElementTwoPort);
+}
+
+/** The same network energised from the other end: elements in reverse order, each with A and D swapped ([A B; C D] becomes [D B; C A]). */
+export function reverseTwoPort(options: { network: TwoPort; label?: string }): CascadeTwoPort {
+  const hint = 'Pass { network, label? }.';
+  const record = requireObject('options', options, hint);
+  const network = readTwoPort('network', record.network);
+  const elements = elementsOf(network).map(reversedElement).reverse();
+  return cascade({ elements, label: labelFrom(record, `${network.label} (from the other end)`) });
 }

@@ -5,14 +5,15 @@ export { polarForm } from './complex.ts';
 export type { ComplexValue, PolarForm } from './complex.ts';
 export { lineConstantsFromGeometry } from './lineConstants.ts';
 export type { ConductorData, GeometryOptions, LineConstantsFromGeometry } from './lineConstants.ts';
-export { lineModel, lineCharacteristics } from './lineModels.ts';
-export type { LineCharacteristics, LineModelOptions, LinePerKmInput } from './lineModels.ts';
+export { compensatedLineCharacteristics, lineModel, lineCharacteristics } from './lineModels.ts';
+export type { CompensatedLineCharacteristics, LineCharacteristics, LineModelOptions, LinePerKmInput } from './lineModels.ts';
 export { cascade, checkReciprocity } from './twoPort.ts';
 export type {
   CascadeTwoPort,
   ElementTwoPort,
   LineModelName,
   LineSectionTwoPort,
+  LumpedTwoPort,
   PerKmConstants,
   ReciprocityCheck,
   SeriesElementTwoPort,
@@ -20,14 +21,16 @@ export type {
   SourceEquivalentTwoPort,
   TwoPort,
 } from './twoPort.ts';
-export { seriesCapacitor, seriesReactor, shuntCapacitor, shuntReactor, sourceEquivalent } from './elements.ts';
+export { reverseTwoPort, seriesCapacitor, seriesImpedance, seriesReactor, shuntCapacitor, shuntReactor, sourceEquivalent, symmetricalPi, twoPortFromAbcd } from './elements.ts';
 export type { SeriesCapacitorOptions, ShuntElementOptions, SourceEquivalentOptions } from './elements.ts';
 export { solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, solveTwoEndVoltages } from './solutions.ts';
 export type { EndQuantities, LoadInput, OperatingCase, OperatingPoint } from './solutions.ts';
 export { voltageProfile } from './profile.ts';
 export type { VoltageProfile } from './profile.ts';
-export { angleForTransfer, powerAngleCurve, pvCurve } from './curves.ts';
-export type { PowerAngleCurve, PowerAnglePoint, PvCurve, PvPoint } from './curves.ts';
+export { angleForTransfer, powerAngleCurve, powerCircles, pvCurve, qvCurve } from './curves.ts';
+export type { PowerAngleCurve, PowerAnglePoint, PowerCircle, PvCurve, PvPoint, QvCurve } from './curves.ts';
+export { elementLosses } from './losses.ts';
+export type { ElementLoss, ElementLosses } from './losses.ts';
 export { shuntCapacitorForLoadVoltage, shuntReactorForNoLoad, svcRange } from './sizing.ts';
 export type { ReactorPlacement, ShuntCapacitorSizing, ShuntReactorSizing, SvcCaseResult, SvcRange } from './sizing.ts';
 export { seriesCompensationDesign } from './seriesCompensation.ts';

@@ -15,7 +15,7 @@ import {
   type LineSectionTwoPort,
   type PerKmConstants,
 } from './twoPort.ts';
-import { angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
+import { SPEED_OF_LIGHT_M_PER_S, angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
 
 /** Per-km line constants as a study gives them; reactance or inductance, susceptance or capacitance. */
 export interface LinePerKmInput {
@@ -26,6 +26,8 @@ export interface LinePerKmInput {
   shuntConductanceUsPerKm?: number;
   shuntSusceptanceUsPerKm?: number;
   shuntCapacitanceNfPerKm?: number;
+  /** Share of the line's charging susceptance cancelled by uniformly distributed shunt reactors (0 to below 1); default 0. */
+  distributedShuntCompensationDegree?: number;
 }
 
 export const LENGTH_RANGE_KM = { min: 0, max: 5000, minInclusive: false, unit: 'km' } as const;
@@ -77,6 +79,7 @@ function eitherOf(
 /** Validated per-km constants in practitioner units plus the SI per-metre impedance and admittance. */
 export interface ResolvedLineConstants {
   frequencyHz: number;
+  distributedShuntCompensationDegree: number;
   perKm: PerKmConstants;
   seriesImpedanceOhmPerM: Complex;
   shuntAdmittanceSPerM: Complex;
@@ -101,11 +104,21 @@ export function resolveLineConstants(input: Record<string, unknown>): ResolvedLi
     'nF/km',
   );
   const shuntConductanceUsPerKm = optionalNumber('shuntConductanceUsPerKm', input.shuntConductanceUsPerKm, 0, { min: 0, max: 100, unit: 'uS/km' }, PER_KM_HINT);
+  const distributedShuntCompensationDegree = optionalNumber(
+    'distributedShuntCompensationDegree',
+    input.distributedShuntCompensationDegree,
+    0,
+    { min: 0, max: 1, maxInclusive: false },
+    'Share of the charging susceptance cancelled by shunt reactors spread uniformly along the line; 1 would cancel it all.',
+  );
+  // The reactors act on the susceptance per km, so the stored constants are the compensated ones (beta' = beta sqrt(1 - k)).
+  const effectiveSusceptanceUsPerKm = shuntSusceptanceUsPerKm * (1 - distributedShuntCompensationDegree);
   return {
     frequencyHz,
-    perKm: { seriesResistanceOhmPerKm, seriesReactanceOhmPerKm, shuntConductanceUsPerKm, shuntSusceptanceUsPerKm },
+    distributedShuntCompensationDegree,
+    perKm: { seriesResistanceOhmPerKm, seriesReactanceOhmPerKm, shuntConductanceUsPerKm, shuntSusceptanceUsPerKm: effectiveSusceptanceUsPerKm },
     seriesImpedanceOhmPerM: new Complex(seriesResistanceOhmPerKm / 1e3, seriesReactanceOhmPerKm / 1e3),
-    shuntAdmittanceSPerM: new Complex(shuntConductanceUsPerKm * 1e-9, shuntSusceptanceUsPerKm * 1e-9),
+    shuntAdmittanceSPerM: new Complex(shuntConductanceUsPerKm * 1e-9, effectiveSusceptanceUsPerKm * 1e-9),
   };
 }
 
@@ -126,6 +139,23 @@ function requirePositiveSusceptance(model: LineModelName, perKm: PerKmConstants)
       hint: "The distributed model needs the line's shunt susceptance; use model 'short' to neglect it.",
     });
   }
+}
+
+/** Phase velocity omega / beta as a multiple of the speed of light, or null when the line has no shunt susceptance. */
+function velocityToLightRatio(constants: ResolvedLineConstants): number | null {
+  const betaPerM = constants.seriesImpedanceOhmPerM.mul(constants.shuntAdmittanceSPerM).sqrt().im;
+  return betaPerM > 0 ? angularFrequency(constants.frequencyHz) / betaPerM / SPEED_OF_LIGHT_M_PER_S : null;
+}
+
+/**
+ * Waves on an overhead line travel a little slower than light (L C >= mu0 eps0 for conductors in air); faster means the per-km
+ * constants do not belong together, often reactance and susceptance rounded from different tables or taken at different frequencies.
+ */
+function lineDataWarnings(ratio: number | null): string[] {
+  if (ratio === null || !(ratio > 1)) return [];
+  return [
+    `The line constants imply waves travelling at ${ratio.toFixed(3)} times the speed of light, faster than light: the series reactance and shunt susceptance per km do not belong together (check the data source, units and frequency).`,
+  ];
 }
 
 /** ABCD of a uniform line of the given length (metres) under one model; used for whole sections and for points inside them. */
@@ -171,6 +201,8 @@ export function lineModel(options: LineModelOptions): LineSectionTwoPort {
     lengthKm,
     frequencyHz: constants.frequencyHz,
     perKm: constants.perKm,
+    distributedShuntCompensationDegree: constants.distributedShuntCompensationDegree,
+    warnings: lineDataWarnings(velocityToLightRatio(constants)),
     ...abcdToPlain(matrix),
   });
 }
@@ -200,15 +232,23 @@ export interface LineCharacteristics {
   losslessSurgeImpedanceOhm: number;
   wavelengthKm: number;
   propagationVelocityKmPerS: number;
+  /** Propagation velocity over the speed of light; above 1 the data are inconsistent (see warnings). */
+  velocityToLightRatio: number;
   electricalLengthDeg: number;
   nominalVoltageKv: number;
   surgeImpedanceLoadingMw: number;
+  /** V^2 / |Zc| with the lossy surge impedance, beside the usual lossless SIL. */
+  surgeImpedanceLoadingLossyMw: number;
+  seriesInductanceMhPerKm: number;
+  shuntCapacitanceNfPerKm: number;
+  distributedShuntCompensationDegree: number;
   /** Charging current drawn by the whole line's capacitance at nominal phase voltage. */
   chargingCurrentA: number;
   /** Three-phase charging reactive power V^2 * omega * C * length at nominal voltage. */
   chargingMvar: number;
   equivalentPi: { seriesImpedanceOhm: ComplexValue; shuntAdmittanceEachEndS: ComplexValue };
   nominalPi: { seriesImpedanceOhm: ComplexValue; shuntAdmittanceEachEndS: ComplexValue };
+  warnings: string[];
 }
 
 /** Propagation constant, surge impedance, wavelength, electrical length, SIL, charging and the pi equivalents of a line. */
@@ -232,6 +272,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
   const shuntTotal = y.mul(lengthM);
   const equivalentSeries = seriesTotal.mul(gammaLength.sinh().div(gammaLength));
   const equivalentShuntHalf = shuntTotal.div(2).mul(gammaLength.div(2).tanh().div(gammaLength.div(2)));
+  const velocityRatio = (angularFrequency(constants.frequencyHz) / (phaseRadPerKm / 1e3)) / SPEED_OF_LIGHT_M_PER_S;
   return assertFiniteResult('lineCharacteristics', {
     model: 'distributed' as const,
     lengthKm,
@@ -245,13 +286,68 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
     losslessSurgeImpedanceOhm,
     wavelengthKm: (2 * Math.PI) / phaseRadPerKm,
     propagationVelocityKmPerS: (angularFrequency(constants.frequencyHz) / phaseRadPerKm),
+    velocityToLightRatio: velocityRatio,
     electricalLengthDeg: radToDeg(gammaLength.im),
     nominalVoltageKv,
     surgeImpedanceLoadingMw: (voltageV * voltageV) / losslessSurgeImpedanceOhm / 1e6,
+    surgeImpedanceLoadingLossyMw: (voltageV * voltageV) / surgeImpedance.abs() / 1e6,
+    seriesInductanceMhPerKm: (constants.perKm.seriesReactanceOhmPerKm / angularFrequency(constants.frequencyHz)) * 1e3,
+    shuntCapacitanceNfPerKm: (constants.perKm.shuntSusceptanceUsPerKm / angularFrequency(constants.frequencyHz)) * 1e3,
+    distributedShuntCompensationDegree: constants.distributedShuntCompensationDegree,
     chargingCurrentA: phaseVoltsFromLineKv(nominalVoltageKv) * susceptanceTotalS,
     chargingMvar: (voltageV * voltageV * susceptanceTotalS) / 1e6,
     equivalentPi: { seriesImpedanceOhm: toPlain(equivalentSeries), shuntAdmittanceEachEndS: toPlain(equivalentShuntHalf) },
     nominalPi: { seriesImpedanceOhm: toPlain(seriesTotal), shuntAdmittanceEachEndS: toPlain(shuntTotal.div(2)) },
+    warnings: lineDataWarnings(velocityRatio),
   });
 }
 
+
+export interface CompensatedLineCharacteristics {
+  basis: 'lossless, uniformly distributed compensation';
+  seriesCompensationDegree: number;
+  shuntCompensationDegree: number;
+  /** Zc' = Zc sqrt((1 - k_se) / (1 - k_sh)). */
+  surgeImpedanceOhm: number;
+  /** SIL' = SIL sqrt((1 - k_sh) / (1 - k_se)). */
+  surgeImpedanceLoadingMw: number;
+  /** theta' = theta sqrt((1 - k_se)(1 - k_sh)). */
+  electricalLengthDeg: number;
+  phaseConstantDegPerKm: number;
+  uncompensated: { surgeImpedanceOhm: number; surgeImpedanceLoadingMw: number; electricalLengthDeg: number };
+}
+
+/**
+ * Effective surge impedance, SIL and electrical length of a line with given degrees of series compensation (share of x cancelled)
+ * and shunt compensation (share of the charging susceptance cancelled), treated as uniformly distributed on a lossless line: the
+ * planning approximation for lumped banks spread along the route.
+ */
+export function compensatedLineCharacteristics(
+  options: LinePerKmInput & { lengthKm: number; nominalVoltageKv: number; seriesCompensationDegree: number; shuntCompensationDegree: number },
+): CompensatedLineCharacteristics {
+  const record = requireObject('options', options, PER_KM_HINT);
+  const constants = resolveLineConstants(record);
+  const lengthKm = requireNumber('lengthKm', record.lengthKm, LENGTH_RANGE_KM, 'Route length of the line.');
+  const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line nominal voltage.');
+  const degreeRange = { min: 0, max: 1, maxInclusive: false } as const;
+  const seriesCompensationDegree = requireNumber('seriesCompensationDegree', record.seriesCompensationDegree, degreeRange, 'Share of the series reactance cancelled by series capacitors, below 1.');
+  const shuntCompensationDegree = requireNumber('shuntCompensationDegree', record.shuntCompensationDegree, degreeRange, 'Share of the line charging cancelled by shunt reactors, below 1.');
+  requirePositiveSusceptance('distributed', constants.perKm);
+  const x = constants.perKm.seriesReactanceOhmPerKm;
+  const b = constants.perKm.shuntSusceptanceUsPerKm * 1e-6;
+  const zc = Math.sqrt(x / b);
+  const betaRadPerKm = Math.sqrt(x * b);
+  const voltageV = kvToV(nominalVoltageKv);
+  const impedanceFactor = Math.sqrt((1 - seriesCompensationDegree) / (1 - shuntCompensationDegree));
+  const lengthFactor = Math.sqrt((1 - seriesCompensationDegree) * (1 - shuntCompensationDegree));
+  return assertFiniteResult('compensatedLineCharacteristics', {
+    basis: 'lossless, uniformly distributed compensation' as const,
+    seriesCompensationDegree,
+    shuntCompensationDegree,
+    surgeImpedanceOhm: zc * impedanceFactor,
+    surgeImpedanceLoadingMw: (voltageV * voltageV) / (zc * impedanceFactor) / 1e6,
+    electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm * lengthFactor),
+    phaseConstantDegPerKm: radToDeg(betaRadPerKm * lengthFactor),
+    uncompensated: { surgeImpedanceOhm: zc, surgeImpedanceLoadingMw: (voltageV * voltageV) / zc / 1e6, electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm) },
+  });
+}

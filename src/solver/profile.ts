@@ -3,7 +3,7 @@ import { Complex, requireComplex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV, lineAbcd, perKmToSi } from './lineModels.ts';
 import { lineModelsOf, readNetwork } from './solutions.ts';
-import { abcdOf, elementsOf, labelOf, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
+import { abcdOf, elementsOf, labelOf, throughTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
 import { lineKvFromPhaseVolts } from './units.ts';
 
 /**
@@ -99,26 +99,56 @@ function sampleSection(section: LineSectionTwoPort, distancesKm: number[], volta
   }
   const { z, y } = perKmToSi(section.perKm);
   for (const distanceKm of distancesKm) {
-    const partial = lineAbcd(section.model, z, y, distanceKm * 1e3);
-    const atVoltage = partial.D.mul(voltage).sub(partial.B.mul(current));
-    const atCurrent = partial.A.mul(current).sub(partial.C.mul(voltage));
-    emit(distanceKm, atVoltage.re, atVoltage.im, atCurrent.re, atCurrent.im);
+    const at = throughTwoPort(lineAbcd(section.model, z, y, distanceKm * 1e3), voltage, current);
+    emit(distanceKm, at.voltage.re, at.voltage.im, at.current.re, at.current.im);
+  }
+}
+
+/** The phasors at both ends of an operating point handed in by a study block. */
+export function readOperatingPointEnds(value: unknown, hint: string) {
+  const operatingPoint = requireObject('operatingPoint', value, hint);
+  const end = (name: 'sendingEnd' | 'receivingEnd') => {
+    const record = requireObject(`operatingPoint.${name}`, operatingPoint[name], hint);
+    return {
+      voltage: requireComplex(`operatingPoint.${name}.phaseVoltageV`, record.phaseVoltageV, hint),
+      current: requireComplex(`operatingPoint.${name}.lineCurrentA`, record.lineCurrentA, hint),
+    };
+  };
+  return { sending: end('sendingEnd'), receiving: end('receivingEnd') };
+}
+
+/** The sending end propagated through the network must arrive at the operating point's own receiving end. */
+export function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, label: string): void {
+  const scaleV = Math.max(voltage.abs(), expectedVoltage.abs(), 1);
+  const scaleI = Math.max(current.abs(), expectedCurrent.abs(), 1e-3);
+  const voltageDeviation = voltage.sub(expectedVoltage).abs() / scaleV;
+  const currentDeviation = current.sub(expectedCurrent).abs() / scaleI;
+  if (!(voltageDeviation <= 1e-6 && currentDeviation <= 1e-6)) {
+    throw new SolverDomainError({
+      code: 'INCONSISTENT_QUANTITIES',
+      quantity: 'operatingPoint',
+      value: `receiving end ${lineKvFromPhaseVolts(expectedVoltage.abs())} kV, ${expectedCurrent.abs()} A`,
+      allowedRange: `the receiving end this network gives for the same sending end: ${lineKvFromPhaseVolts(voltage.abs())} kV, ${current.abs()} A`,
+      hint: 'Solve the operating point on the same network you draw the profile of (e.g. the compensated cascade, not the bare line).',
+      message: `The operating point (receiving end ${lineKvFromPhaseVolts(expectedVoltage.abs()).toFixed(3)} kV, ${expectedCurrent.abs().toFixed(3)} A) does not belong to this network '${label}', which gives ${lineKvFromPhaseVolts(voltage.abs()).toFixed(3)} kV, ${current.abs().toFixed(3)} A for the same sending end`,
+    });
   }
 }
 
 /** Profile of voltage and current along the route for a solved operating point. */
 export function voltageProfile(options: {
   network: TwoPort;
-  operatingPoint: { sendingEnd: { phaseVoltageV: { re: number; im: number }; lineCurrentA: { re: number; im: number } } };
+  operatingPoint: {
+    sendingEnd: { phaseVoltageV: { re: number; im: number }; lineCurrentA: { re: number; im: number } };
+    receivingEnd: { phaseVoltageV: { re: number; im: number }; lineCurrentA: { re: number; im: number } };
+  };
   pointCount?: number;
   nominalVoltageKv?: number;
 }): VoltageProfile {
   const record = requireObject('options', options, PROFILE_HINT);
   const { network } = readNetwork(record);
-  const operatingPoint = requireObject('operatingPoint', record.operatingPoint, PROFILE_HINT);
-  const sendingEnd = requireObject('operatingPoint.sendingEnd', operatingPoint.sendingEnd, PROFILE_HINT);
-  let voltage = requireComplex('operatingPoint.sendingEnd.phaseVoltageV', sendingEnd.phaseVoltageV, PROFILE_HINT);
-  let current = requireComplex('operatingPoint.sendingEnd.lineCurrentA', sendingEnd.lineCurrentA, PROFILE_HINT);
+  const ends = readOperatingPointEnds(record.operatingPoint, PROFILE_HINT);
+  let { voltage, current } = ends.sending;
   const requestedPoints = Math.round(optionalNumber('pointCount', record.pointCount, 201, { min: 2, max: 1_000_000 }, 'About how many points along the route.'));
   const nominalVoltageKv = record.nominalVoltageKv === undefined ? null : requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, PROFILE_HINT);
   const elements = elementsOf(network);
@@ -155,26 +185,25 @@ export function voltageProfile(options: {
     if (element.kind === 'line-section') {
       sampleSection(element, interiorPositions(offsetKm, element.lengthKm, stepKm), voltage, current, emit);
       const { z, y } = perKmToSi(element.perKm);
-      const whole = lineAbcd(element.model, z, y, element.lengthKm * 1e3);
-      const nextVoltage = whole.D.mul(voltage).sub(whole.B.mul(current));
-      current = whole.A.mul(current).sub(whole.C.mul(voltage));
-      voltage = nextVoltage;
+      ({ voltage, current } = throughTwoPort(lineAbcd(element.model, z, y, element.lengthKm * 1e3), voltage, current));
       emit(element.lengthKm, voltage.re, voltage.im, current.re, current.im);
       offsetKm += element.lengthKm;
     } else {
-      const abcd = abcdOf(element);
-      const nextVoltage = abcd.D.mul(voltage).sub(abcd.B.mul(current));
-      current = abcd.A.mul(current).sub(abcd.C.mul(voltage));
-      voltage = nextVoltage;
+      ({ voltage, current } = throughTwoPort(abcdOf(element), voltage, current));
       emit(0, voltage.re, voltage.im, current.re, current.im);
     }
   });
-  let maximumIndex = 0;
-  let minimumIndex = 0;
-  profile.voltageKv.forEach((value, index) => {
+  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, labelOf(network));
+  // A source equivalent's outer terminal is the system EMF, not a point of the route: it takes no part in the extremes.
+  const firstRouteIndex = elements[0]?.kind === 'source-equivalent' ? 1 : 0;
+  const lastRouteIndex = profile.voltageKv.length - 1 - (elements[elements.length - 1]?.kind === 'source-equivalent' && elements.length > 1 ? 1 : 0);
+  let maximumIndex = firstRouteIndex;
+  let minimumIndex = firstRouteIndex;
+  for (let index = firstRouteIndex; index <= lastRouteIndex; index += 1) {
+    const value = profile.voltageKv[index] as number;
     if (value > (profile.voltageKv[maximumIndex] as number)) maximumIndex = index;
     if (value < (profile.voltageKv[minimumIndex] as number)) minimumIndex = index;
-  });
+  }
   const at = (index: number) => ({ positionKm: profile.positionKm[index] as number, voltageKv: profile.voltageKv[index] as number });
   return assertFiniteResult('voltageProfile', {
     networkLabel: labelOf(network),

@@ -1,10 +1,12 @@
-// Series capacitor bank design: degree of compensation for a target transfer within an angle limit, bank ratings, MOV level, bypass need.
-import { assertFiniteResult, forMessage, SolverDomainError, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
+// Series capacitor bank design: degree of compensation for a target transfer within an angle limit, bank ratings and duty, MOV level.
+import { Complex, fromPlain } from './complex.ts';
+import { assertFiniteResult, forMessage, SolverDomainError, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { seriesCapacitor } from './elements.ts';
 import { VOLTAGE_RANGE_KV, resizedSection } from './lineModels.ts';
-import { receivingPowerAtAngleMw, steadyStateLimitAngleRad } from './curves.ts';
-import { abcdOf, cascade, readTwoPort, type CascadeTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
-import { degToRad } from './units.ts';
+import { angleForTransfer, goldenSectionMinimum, receivingPowerAtAngleMw, steadyStateLimitAngleRad } from './curves.ts';
+import { solveTwoEndVoltages } from './solutions.ts';
+import { abcdOf, cascade, readTwoPort, throughTwoPort, type CascadeTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
+import { degToRad, lineKvFromPhaseVolts } from './units.ts';
 
 export type CapacitorLocation = 'mid-line' | 'sending-end' | 'receiving-end';
 
@@ -27,9 +29,26 @@ export interface SeriesCompensationDesign {
   protectiveLevelPu: number;
   emergencyPeakKv: number;
   throughFaultPeakKv: number;
-  bypass: { needed: boolean; reason: string };
+  /**
+   * Whether the varistor conducts on the given through fault. Conduction on an external fault is the varistor's normal duty; whether
+   * the bypass switch or gap must also close depends on the energy the varistor absorbs, which this design does not compute.
+   */
+  throughFault: { currentA: number; capacitorPeakKv: number; varistorConducts: boolean; note: string };
+  /** The target delivered at the smallest degree: angle, bank current and voltages at the bank terminals and mid-line. */
+  designPoint: BankOperatingPoint;
+  cases: Array<BankOperatingPoint & { label: string }>;
   warnings: string[];
   compensatedNetwork: CascadeTwoPort;
+}
+
+export interface BankOperatingPoint {
+  transferMw: number;
+  angleDeg: number;
+  bankCurrentA: number;
+  /** Line-to-line voltage across the bank (|I| Xc, as a line-to-line figure sqrt(3) I Xc). */
+  capacitorVoltageKv: number;
+  bankTerminalVoltagesKv: { sendingSide: number; receivingSide: number };
+  midLineVoltageKv: number;
 }
 
 function compensatedNetworkFor(line: LineSectionTwoPort, location: CapacitorLocation, degree: number): CascadeTwoPort {
@@ -45,6 +64,56 @@ function compensatedNetworkFor(line: LineSectionTwoPort, location: CapacitorLoca
 function transferAtAngleMw(network: TwoPort, sendingVoltageKv: number, receivingVoltageKv: number, angleLimitRad: number): number {
   const abcd = abcdOf(network);
   return receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, Math.min(angleLimitRad, steadyStateLimitAngleRad(abcd)));
+}
+
+/** Largest transfer over a scan, refined by golden-section search around the best sample. */
+function largestTransfer(scan: Array<{ degree: number; transferMw: number }>, transferWith: (degree: number) => number, stepDegree: number) {
+  const best = scan.reduce((top, sample) => (sample.transferMw > top.transferMw ? sample : top));
+  const first = scan[0]?.degree ?? 0;
+  const last = scan[scan.length - 1]?.degree ?? best.degree;
+  const degree = goldenSectionMinimum((candidate) => -transferWith(candidate), Math.max(first, best.degree - stepDegree), Math.min(last, best.degree + stepDegree));
+  const refined = { degree, transferMw: transferWith(degree) };
+  return refined.transferMw > best.transferMw ? refined : best;
+}
+
+/** Angle, bank current and voltages at the bank and mid-line when the compensated corridor delivers transferMw. */
+function bankOperatingPoint(
+  network: CascadeTwoPort,
+  line: LineSectionTwoPort,
+  location: CapacitorLocation,
+  hasBank: boolean,
+  sendingVoltageKv: number,
+  receivingVoltageKv: number,
+  transferMw: number,
+): BankOperatingPoint {
+  const { angleDeg } = angleForTransfer({ network, sendingVoltageKv, receivingVoltageKv, receivingPMw: transferMw });
+  const point = solveTwoEndVoltages({ network, sendingVoltageKv, receivingVoltageKv, angleDeg });
+  let voltage = fromPlain(point.sendingEnd.phaseVoltageV);
+  let current = fromPlain(point.sendingEnd.lineCurrentA);
+  const atElement: Array<{ kind: string; before: { voltage: Complex; current: Complex }; after: { voltage: Complex } }> = [];
+  for (const element of network.elements) {
+    const next = throughTwoPort(abcdOf(element), voltage, current);
+    atElement.push({ kind: element.kind, before: { voltage, current }, after: { voltage: next.voltage } });
+    voltage = next.voltage;
+    current = next.current;
+  }
+  const bank = atElement.find((item) => item.kind === 'series-capacitor');
+  const halfLine = resizedSection(line, line.lengthKm / 2, 'half');
+  // Mid-line: half a line from the line's own sending terminal (the bank's sending side when the bank sits at the sending end).
+  const lineEntry = atElement.find((item) => item.kind === 'line-section') as (typeof atElement)[number];
+  const midAbcd = abcdOf(halfLine);
+  const midVoltage =
+    location === 'mid-line' && bank ? bank.before.voltage : midAbcd.D.mul(lineEntry.before.voltage).sub(midAbcd.B.mul(lineEntry.before.current));
+  const bankCurrentA = hasBank && bank ? bank.before.current.abs() : 0;
+  const kv = (phase: Complex) => lineKvFromPhaseVolts(phase.abs());
+  return {
+    transferMw,
+    angleDeg,
+    bankCurrentA,
+    capacitorVoltageKv: hasBank && bank ? kv(bank.after.voltage.sub(bank.before.voltage)) : 0,
+    bankTerminalVoltagesKv: hasBank && bank ? { sendingSide: kv(bank.before.voltage), receivingSide: kv(bank.after.voltage) } : { sendingSide: 0, receivingSide: 0 },
+    midLineVoltageKv: kv(midVoltage),
+  };
 }
 
 /**
@@ -64,9 +133,10 @@ export function seriesCompensationDesign(options: {
   throughFaultCurrentA: number;
   protectiveLevelPu?: number;
   maxDegreeOfCompensation?: number;
+  cases?: Array<{ label: string; transferMw: number; sendingVoltageKv?: number; receivingVoltageKv?: number }>;
 }): SeriesCompensationDesign {
   const hint =
-    'Pass { line (from lineModel), sendingVoltageKv, receivingVoltageKv, targetTransferMw, angleLimitDeg, ratedCurrentA, emergencyCurrentA, throughFaultCurrentA, location?, protectiveLevelPu?, maxDegreeOfCompensation? }.';
+    'Pass { line (from lineModel), sendingVoltageKv, receivingVoltageKv, targetTransferMw, angleLimitDeg, ratedCurrentA, emergencyCurrentA, throughFaultCurrentA, location?, protectiveLevelPu?, maxDegreeOfCompensation?, cases? }.';
   const record = requireObject('options', options, hint);
   const line = readTwoPort('line', record.line);
   if (line.kind !== 'line-section') {
@@ -91,22 +161,31 @@ export function seriesCompensationDesign(options: {
   const angleLimitRad = degToRad(angleLimitDeg);
   const lineReactanceOhm = line.perKm.seriesReactanceOhmPerKm * line.lengthKm;
 
+  const caseInputs = record.cases === undefined ? [] : requireArray('cases', record.cases, 0, hint);
   const uncompensatedMw = transferAtAngleMw(line, sendingVoltageKv, receivingVoltageKv, angleLimitRad);
   const transferWith = (degree: number) => transferAtAngleMw(compensatedNetworkFor(line, location, degree), sendingVoltageKv, receivingVoltageKv, angleLimitRad);
   let degree = 0;
   if (uncompensatedMw < targetTransferMw) {
-    const reachableMw = transferWith(maxDegree);
-    if (reachableMw < targetTransferMw) {
+    // On a lossy line the transfer at a fixed angle peaks and then falls as the net reactance goes to zero (arg B falls toward the
+    // resistance angle), so the whole range is scanned for the first degree reaching the target, then that step is bisected.
+    const steps = 200;
+    const scan = Array.from({ length: steps + 1 }, (_, index) => {
+      const candidate = (maxDegree * index) / steps;
+      return { degree: candidate, transferMw: index === 0 ? uncompensatedMw : transferWith(candidate) };
+    });
+    const firstReaching = scan.findIndex((sample) => sample.transferMw >= targetTransferMw);
+    if (firstReaching < 0) {
+      const best = largestTransfer(scan, transferWith, maxDegree / steps);
       throw new SolverDomainError({
         code: 'TRANSFER_LIMIT_EXCEEDED',
         quantity: 'targetTransferMw',
         value: targetTransferMw,
-        allowedRange: `(0, ${forMessage(reachableMw)}] MW at an angle of at most ${angleLimitDeg} deg with at most ${maxDegree * 100} % compensation`,
-        hint: 'The target lies beyond the transfer limit even with the largest degree of compensation allowed; relax the angle limit, raise the voltage or add a circuit.',
+        allowedRange: `(0, ${forMessage(best.transferMw)}] MW at an angle of at most ${angleLimitDeg} deg with at most ${maxDegree * 100} % compensation (the largest transfer, at ${(best.degree * 100).toFixed(1)} %)`,
+        hint: 'The target lies beyond the transfer limit for every degree of compensation allowed; relax the angle limit, raise the voltage or add a circuit.',
       });
     }
-    let lower = 0;
-    let upper = maxDegree;
+    let lower = (scan[firstReaching - 1] as { degree: number }).degree;
+    let upper = (scan[firstReaching] as { degree: number }).degree;
     for (let iteration = 0; iteration < 100 && upper - lower > 1e-12; iteration += 1) {
       const middle = (lower + upper) / 2;
       if (transferWith(middle) < targetTransferMw) lower = middle;
@@ -120,23 +199,48 @@ export function seriesCompensationDesign(options: {
   const protectiveLevelPeakKv = protectiveLevelPu * Math.SQRT2 * ratedCapacitorKv;
   const emergencyPeakKv = Math.SQRT2 * emergencyCapacitorKv;
   const throughFaultPeakKv = (Math.SQRT2 * throughFaultCurrentA * reactanceOhm) / 1e3;
+  const compensatedNetwork = degree > 0 ? compensatedNetworkFor(line, location, degree) : cascade({ elements: [line] });
+  const bankAt = (transferMw: number, atSendingKv: number, atReceivingKv: number) =>
+    bankOperatingPoint(compensatedNetwork, line, location, degree > 0, atSendingKv, atReceivingKv, transferMw);
+  const designPoint = bankAt(targetTransferMw, sendingVoltageKv, receivingVoltageKv);
+  const cases = caseInputs.map((caseInput, index) => {
+    const caseRecord = requireObject(`cases[${index}]`, caseInput, hint);
+    const label = typeof caseRecord.label === 'string' && caseRecord.label !== '' ? caseRecord.label : `case ${index + 1}`;
+    const caseHint = 'Each case is { label, transferMw, sendingVoltageKv?, receivingVoltageKv? } (voltages default to the design voltages).';
+    const transferMw = requireNumber(`cases[${index}].transferMw`, caseRecord.transferMw, { min: -1e5, max: 1e5, unit: 'MW' }, caseHint);
+    const caseSendingKv = optionalNumber(`cases[${index}].sendingVoltageKv`, caseRecord.sendingVoltageKv, sendingVoltageKv, VOLTAGE_RANGE_KV, caseHint);
+    const caseReceivingKv = optionalNumber(`cases[${index}].receivingVoltageKv`, caseRecord.receivingVoltageKv, receivingVoltageKv, VOLTAGE_RANGE_KV, caseHint);
+    return { label, ...bankAt(transferMw, caseSendingKv, caseReceivingKv) };
+  });
   const warnings: string[] = [];
   if (degree > 0 && emergencyPeakKv >= protectiveLevelPeakKv) {
     warnings.push(
       `Emergency current ${emergencyCurrentA} A gives a capacitor peak of ${emergencyPeakKv.toFixed(1)} kV, at or above the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor would conduct in emergency loading; raise protectiveLevelPu.`,
     );
   }
-  const faultDrivesMov = degree > 0 && throughFaultPeakKv > protectiveLevelPeakKv;
-  const bypass = {
-    needed: faultDrivesMov,
-    reason:
+  if (degree > 0) {
+    for (const [where, point] of [['at the design point', designPoint], ...cases.map((item) => [`in case '${item.label}'`, item] as const)] as const) {
+      if (point.bankCurrentA > emergencyCurrentA) {
+        warnings.push(
+          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its emergency current of ${emergencyCurrentA} A: the varistor would conduct in service (capacitor peak ${(Math.SQRT2 * point.bankCurrentA * reactanceOhm / 1e3).toFixed(1)} kV); raise the bank's ratings.`,
+        );
+      } else if (point.bankCurrentA > ratedCurrentA) {
+        warnings.push(`The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its rated current of ${ratedCurrentA} A: rate the bank for this current or limit the transfer.`);
+      }
+    }
+  }
+  const varistorConducts = degree > 0 && throughFaultPeakKv > protectiveLevelPeakKv;
+  const throughFault = {
+    currentA: throughFaultCurrentA,
+    capacitorPeakKv: throughFaultPeakKv,
+    varistorConducts,
+    note:
       degree === 0
         ? 'No series capacitor is needed for this target.'
-        : faultDrivesMov
-          ? `A through fault of ${throughFaultCurrentA} A drives the capacitor to ${throughFaultPeakKv.toFixed(1)} kV peak, above the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor conducts, and a bypass (switch or triggered gap) is needed to limit its energy.`
+        : varistorConducts
+          ? `A through fault of ${throughFaultCurrentA} A would drive the capacitor to ${throughFaultPeakKv.toFixed(1)} kV peak; the varistor conducts and clamps it at the protective level ${protectiveLevelPeakKv.toFixed(1)} kV. This is its normal duty on external faults. Whether the bypass switch or gap must also close depends on the energy the varistor absorbs during the fault, which this design does not compute.`
           : `A through fault of ${throughFaultCurrentA} A gives ${throughFaultPeakKv.toFixed(1)} kV peak, below the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor does not conduct for external faults.`,
   };
-  const compensatedNetwork = degree > 0 ? compensatedNetworkFor(line, location, degree) : cascade({ elements: [line] });
   return assertFiniteResult('seriesCompensationDesign', {
     location,
     compensationNeeded: degree > 0,
@@ -153,7 +257,9 @@ export function seriesCompensationDesign(options: {
     protectiveLevelPu,
     emergencyPeakKv,
     throughFaultPeakKv,
-    bypass,
+    throughFault,
+    designPoint,
+    cases,
     warnings,
     compensatedNetwork,
   });

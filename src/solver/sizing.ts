@@ -1,13 +1,17 @@
 // Shunt compensation sizing: reactors for the no-load voltage, capacitors for a heavy-load voltage, and SVC range over load cases.
 import { Complex } from './complex.ts';
-import { SolverDomainError, assertFiniteResult, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
+import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { lineShuntSusceptanceS, shuntCapacitor, shuntReactor } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { lineModelsOf, readLoad, readNetwork, solveFixedSendingVoltage, solveReceivingLoad, type LoadInput, type OperatingPoint } from './solutions.ts';
+import { deliveredReactiveVa, lineModelsOf, noseLoadMultiple, readLoad, readNetwork, receivingVoltageRoots, solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, type LoadInput, type OperatingPoint } from './solutions.ts';
+import { voltageProfile } from './profile.ts';
 import {
   abcdOf,
   cascade,
+  multiplyAbcd,
   readTwoPort,
+  shuntAdmittanceAbcd,
+  type AbcdMatrix,
   type CascadeTwoPort,
   type SourceEquivalentTwoPort,
   type TwoPort,
@@ -32,38 +36,63 @@ export interface ShuntReactorSizing {
   placement: ReactorPlacement;
   reactorNeeded: boolean;
   reactorCount: number;
-  /** Three-phase rating of each reactor at ratedVoltageKv. */
+  /** Three-phase nameplate rating of each reactor at ratedVoltageKv. */
   reactorMvarEach: number;
   totalReactorMvar: number;
+  ratedVoltageKv: number;
   reactorSusceptanceEachS: number;
   /** Per-phase reactance of each reactor, or null when no reactor is needed. */
   reactorReactanceEachOhm: number | null;
+  /** Each reactor at its bus: the no-load bus voltage and the Mvar it absorbs there (B V_bus^2). */
+  reactors: Array<{ location: 'sending-end' | 'receiving-end'; busVoltageKv: number; mvarAtBusVoltage: number }>;
   /** Reactor susceptance as a share of the line's total charging susceptance. */
   degreeOfShuntCompensation: number;
   lineChargingMvarAtRatedVoltage: number;
   noLoadReceivingVoltageWithoutReactorKv: number;
   receivingVoltageKv: number;
+  /** EMF behind sendingSystem (null without one) and the voltage of the sending bus (the line's sending terminal), reactors in. */
+  sendingSystemEmfKv: number | null;
+  sendingBusVoltageKv: number;
+  /** Highest voltage along the line with the reactors in, and where (km from the sending end). */
+  maximumVoltage: { voltageKv: number; positionKm: number };
+  warnings: string[];
   lineModels: string[];
   compensatedNetwork: CascadeTwoPort;
 }
 
 /**
  * Shunt reactor (rated Mvar) that holds the no-load receiving voltage at a target, at the receiving end or equally at both ends.
- * With an ideal sending source the sending-end reactor cannot change Vr, so each reactor of a pair equals the single one;
- * give sendingSystem to let the sending reactor act through the source impedance.
+ * The sending side is either sendingVoltageKv (the EMF behind sendingSystem when one is given, else the sending bus) or
+ * sendingBusVoltageKv (the sending bus held, whatever the source). With the bus held, or an ideal source, the sending-end reactor
+ * cannot change Vr, so each reactor of a pair equals the single one; with sendingVoltageKv and sendingSystem it acts through the
+ * source impedance.
  */
 export function shuntReactorForNoLoad(options: {
   line: TwoPort;
-  sendingVoltageKv: number;
+  sendingVoltageKv?: number;
+  sendingBusVoltageKv?: number;
   targetReceivingVoltageKv: number;
   ratedVoltageKv: number;
   placement?: ReactorPlacement;
   sendingSystem?: SourceEquivalentTwoPort;
 }): ShuntReactorSizing {
-  const hint = "Pass { line, sendingVoltageKv, targetReceivingVoltageKv, ratedVoltageKv, placement?: 'receiving-end' | 'both-ends', sendingSystem? }.";
+  const hint =
+    "Pass { line, sendingVoltageKv (the EMF when sendingSystem is given) or sendingBusVoltageKv, targetReceivingVoltageKv, ratedVoltageKv (the reactor nameplate voltage, e.g. the highest system voltage), placement?: 'receiving-end' | 'both-ends', sendingSystem? }.";
   const record = requireObject('options', options, hint);
   const line = readTwoPort('line', record.line);
-  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const busHeld = record.sendingBusVoltageKv !== undefined;
+  if (busHeld === (record.sendingVoltageKv !== undefined)) {
+    throw new SolverDomainError({
+      code: busHeld ? 'INCONSISTENT_QUANTITIES' : 'MISSING_QUANTITY',
+      quantity: 'sendingVoltageKv / sendingBusVoltageKv',
+      value: busHeld ? 'both given' : null,
+      allowedRange: 'exactly one of the two',
+      hint,
+    });
+  }
+  const givenSendingKv = busHeld
+    ? requireNumber('sendingBusVoltageKv', record.sendingBusVoltageKv, VOLTAGE_RANGE_KV, hint)
+    : requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const targetReceivingVoltageKv = requireNumber('targetReceivingVoltageKv', record.targetReceivingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const ratedVoltageKv = requireNumber('ratedVoltageKv', record.ratedVoltageKv, VOLTAGE_RANGE_KV, hint);
   const placement = record.placement === undefined ? 'receiving-end' : requireChoice('placement', record.placement, ['receiving-end', 'both-ends'] as const, hint);
@@ -72,19 +101,20 @@ export function shuntReactorForNoLoad(options: {
   const ratedVoltageV = kvToV(ratedVoltageKv);
   const reactorCount = placement === 'both-ends' ? 2 : 1;
 
-  const networkWith = (susceptanceS: number): TwoPort[] => {
-    const reactor = (label: string) => shuntReactor({ qMvar: (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6, ratedVoltageKv, label });
+  const reactor = (susceptanceS: number, label: string) => shuntReactor({ qMvar: (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6, ratedVoltageKv, label });
+  /** The network from the sending bus on: [sending reactor?, line, receiving reactor?]. */
+  const fromBus = (susceptanceS: number): TwoPort[] => {
     const parts: TwoPort[] = [];
-    if (sendingSystem) parts.push(sendingSystem);
-    if (susceptanceS > 0 && placement === 'both-ends') parts.push(reactor('sending-end shunt reactor'));
+    if (susceptanceS > 0 && placement === 'both-ends') parts.push(reactor(susceptanceS, 'sending-end shunt reactor'));
     parts.push(line);
-    if (susceptanceS > 0) parts.push(reactor('receiving-end shunt reactor'));
+    if (susceptanceS > 0) parts.push(reactor(susceptanceS, 'receiving-end shunt reactor'));
     return parts;
   };
+  const aOf = (parts: TwoPort[]) => (parts.length === 1 ? abcdOf(parts[0] as TwoPort) : abcdOf(cascade({ elements: parts }))).A.abs();
   const receivingVoltageKv = (susceptanceS: number): number => {
-    const parts = networkWith(susceptanceS);
-    const matrix = parts.length === 1 ? abcdOf(line) : abcdOf(cascade({ elements: parts }));
-    return sendingVoltageKv / matrix.A.abs();
+    const downstream = fromBus(susceptanceS);
+    if (busHeld || sendingSystem === null) return givenSendingKv / aOf(downstream);
+    return givenSendingKv / aOf([sendingSystem, ...downstream]);
   };
 
   const withoutReactorKv = receivingVoltageKv(0);
@@ -106,20 +136,53 @@ export function shuntReactorForNoLoad(options: {
     susceptanceS = bisect((value) => receivingVoltageKv(value) - targetReceivingVoltageKv, 0, upper);
   }
   const reactorMvarEach = (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6;
-  const parts = networkWith(susceptanceS);
-  const compensatedNetwork = cascade({ elements: parts, label: `${line.label} with ${placement} shunt reactor${reactorCount > 1 ? 's' : ''}` });
+  const downstream = fromBus(susceptanceS);
+  const finalReceivingKv = receivingVoltageKv(susceptanceS);
+  const sendingBusVoltageKv = finalReceivingKv * aOf(downstream);
+  const sendingSystemEmfKv = sendingSystem === null ? null : busHeld ? finalReceivingKv * aOf([sendingSystem, ...downstream]) : givenSendingKv;
+  const compensatedNetwork = cascade({
+    elements: sendingSystem === null ? downstream : [sendingSystem, ...downstream],
+    label: `${line.label} with ${placement} shunt reactor${reactorCount > 1 ? 's' : ''}`,
+  });
+  const noLoad = solveNoLoad({ network: compensatedNetwork, sendingVoltageKv: sendingSystemEmfKv ?? sendingBusVoltageKv });
+  const profile = voltageProfile({ network: compensatedNetwork, operatingPoint: noLoad, pointCount: 401 });
+  const degreeOfShuntCompensation = lineSusceptanceS > 0 ? (susceptanceS * (susceptanceS > 0 ? reactorCount : 0)) / lineSusceptanceS : 0;
+  const atBus = (busVoltageKv: number) => (susceptanceS * kvToV(busVoltageKv) ** 2) / 1e6;
+  const reactors =
+    susceptanceS > 0
+      ? [
+          ...(placement === 'both-ends' ? [{ location: 'sending-end' as const, busVoltageKv: sendingBusVoltageKv, mvarAtBusVoltage: atBus(sendingBusVoltageKv) }] : []),
+          { location: 'receiving-end' as const, busVoltageKv: finalReceivingKv, mvarAtBusVoltage: atBus(finalReceivingKv) },
+        ]
+      : [];
+  const warnings: string[] = [];
+  if (degreeOfShuntCompensation > 1) {
+    warnings.push(
+      `The reactors (${(degreeOfShuntCompensation * 100).toFixed(1)} % of the line charging susceptance) exceed 100 % of the line charging: ${
+        placement === 'both-ends' && (busHeld || sendingSystem === null)
+          ? 'with the sending bus held the sending-end reactor does not lower the receiving voltage, so a pair doubles the reactive absorption for nothing; place one reactor at the receiving end or give the source equivalent'
+          : 'the line would absorb reactive power at no load; check the target and the placement'
+      }.`,
+    );
+  }
   return assertFiniteResult('shuntReactorForNoLoad', {
     placement,
     reactorNeeded: susceptanceS > 0,
     reactorCount: susceptanceS > 0 ? reactorCount : 0,
     reactorMvarEach,
     totalReactorMvar: susceptanceS > 0 ? reactorMvarEach * reactorCount : 0,
+    ratedVoltageKv,
     reactorSusceptanceEachS: susceptanceS,
     reactorReactanceEachOhm: susceptanceS > 0 ? 1 / susceptanceS : null,
-    degreeOfShuntCompensation: lineSusceptanceS > 0 ? (susceptanceS * (susceptanceS > 0 ? reactorCount : 0)) / lineSusceptanceS : 0,
+    reactors,
+    degreeOfShuntCompensation,
     lineChargingMvarAtRatedVoltage: (lineSusceptanceS * ratedVoltageV * ratedVoltageV) / 1e6,
     noLoadReceivingVoltageWithoutReactorKv: withoutReactorKv,
-    receivingVoltageKv: receivingVoltageKv(susceptanceS),
+    receivingVoltageKv: finalReceivingKv,
+    sendingSystemEmfKv,
+    sendingBusVoltageKv,
+    maximumVoltage: { voltageKv: profile.maximum.voltageKv, positionKm: profile.maximum.positionKm },
+    warnings,
     lineModels: lineModelsOf(line),
     compensatedNetwork,
   });
@@ -134,6 +197,11 @@ export interface ShuntCapacitorSizing {
   capacitorOutputMvar: number;
   /** The target when a bank is needed; otherwise the (higher) voltage reached without one. */
   receivingVoltageKv: number;
+  /** Nose of the P-V curve at the load's power factor with the bank in (a constant susceptance), and the margin to it. */
+  noseMw: number;
+  noseMarginPercent: number;
+  minimumNoseMarginPercent: number;
+  warnings: string[];
   lineModels: string[];
   operatingPoint: OperatingPoint;
   compensatedNetwork: TwoPort;
@@ -141,8 +209,9 @@ export interface ShuntCapacitorSizing {
 
 /**
  * Receiving-end shunt capacitor that holds the receiving voltage at a target for a heavy load with a fixed sending voltage.
- * With Vr fixed (reference), Vs = A Vr + B (P - j(Q - b Vr^2)) / Vr is affine in the susceptance b, so |Vs| = given is a quadratic in b;
- * the smaller non-negative root is the smallest bank.
+ * With Vr fixed (reference), Vs = A Vr + B (P - j(Q - b Vr^2)) / Vr is affine in the susceptance b, so |Vs| = given is a quadratic in b.
+ * A root is kept only if the target is the upper-branch (normal) solution of the network with that bank in, below parallel resonance
+ * of the bank with the network's Thevenin reactance; the smallest such bank wins.
  */
 export function shuntCapacitorForLoadVoltage(options: {
   network: TwoPort;
@@ -150,14 +219,16 @@ export function shuntCapacitorForLoadVoltage(options: {
   targetReceivingVoltageKv: number;
   load: LoadInput;
   ratedVoltageKv: number;
+  minimumNoseMarginPercent?: number;
 }): ShuntCapacitorSizing {
-  const hint = 'Pass { network, sendingVoltageKv, targetReceivingVoltageKv, load, ratedVoltageKv }.';
+  const hint = 'Pass { network, sendingVoltageKv, targetReceivingVoltageKv, load, ratedVoltageKv, minimumNoseMarginPercent? }.';
   const record = requireObject('options', options, hint);
   const { network, abcd } = readNetwork(record);
   const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const targetReceivingVoltageKv = requireNumber('targetReceivingVoltageKv', record.targetReceivingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const load = readLoad('load', record.load);
   const ratedVoltageKv = requireNumber('ratedVoltageKv', record.ratedVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const minimumNoseMarginPercent = optionalNumber('minimumNoseMarginPercent', record.minimumNoseMarginPercent, 10, { min: 0, max: 90, unit: '%' }, 'Smallest acceptable margin to the nose of the P-V curve; 10 % is common practice in planning.');
   const receivingV = kvToV(targetReceivingVoltageKv);
   const sendingV = kvToV(sendingVoltageKv);
   const constantPart = abcd.A.mul(receivingV).add(abcd.B.mul(load.conjugate()).div(receivingV));
@@ -165,20 +236,32 @@ export function shuntCapacitorForLoadVoltage(options: {
   const a = perSusceptance.abs() ** 2;
   const b = 2 * constantPart.mul(perSusceptance.conjugate()).re;
   const c = constantPart.abs() ** 2 - sendingV * sendingV;
+  const withBank = (susceptanceS: number): AbcdMatrix => (susceptanceS > 0 ? multiplyAbcd(abcd, shuntAdmittanceAbcd(new Complex(0, susceptanceS))) : abcd);
+  // Seen from the bus the network is a Thevenin source behind B / A; a bank at or beyond parallel resonance with it is no design.
+  const theveninReactanceOhm = abcd.B.div(abcd.A).im;
+  const onUpperBranch = (susceptanceS: number): boolean => {
+    if (!(susceptanceS * theveninReactanceOhm < 1)) return false;
+    const roots = receivingVoltageRoots(withBank(susceptanceS), sendingV, load);
+    return roots !== null && Math.abs(roots.upper - receivingV) <= 1e-6 * receivingV;
+  };
   let susceptanceS = 0;
   if (c > 0) {
     const discriminant = b * b - 4 * a * c;
-    const smaller = discriminant >= 0 ? (-b - Math.sqrt(discriminant)) / (2 * a) : Number.NaN;
-    if (!(smaller >= 0)) {
+    const roots = discriminant >= 0 ? [(-b - Math.sqrt(discriminant)) / (2 * a), (-b + Math.sqrt(discriminant)) / (2 * a)].filter((root) => root >= 0) : [];
+    const upper = roots.find(onUpperBranch);
+    if (upper === undefined) {
       throw new SolverDomainError({
         code: 'TARGET_UNREACHABLE',
         quantity: 'targetReceivingVoltageKv',
         value: targetReceivingVoltageKv,
-        allowedRange: `voltages a receiving-end capacitor can hold with Vs = ${sendingVoltageKv} kV for this load`,
-        hint: 'No capacitor size holds this voltage for this load; the load is beyond what the network can carry at this voltage. Consider series compensation or a lower target.',
+        allowedRange: `voltages a receiving-end capacitor can hold on the upper branch of the P-V curve with Vs = ${sendingVoltageKv} kV for this load`,
+        hint:
+          roots.length > 0
+            ? 'The banks that put the bus at this voltage put it on the lower branch of the P-V curve (below the nose): solved from the source the bus would settle elsewhere or collapse. Raise the target above the nose voltage, or add series compensation.'
+            : 'No capacitor size holds this voltage for this load; the load is beyond what the network can carry at this voltage. Consider series compensation or a lower target.',
       });
     }
-    susceptanceS = smaller;
+    susceptanceS = upper;
   }
   const ratedV = kvToV(ratedVoltageKv);
   const capacitorMvar = (susceptanceS * ratedV * ratedV) / 1e6;
@@ -192,12 +275,24 @@ export function shuntCapacitorForLoadVoltage(options: {
     susceptanceS > 0
       ? solveReceivingLoad({ network: compensatedNetwork, receivingVoltageKv: targetReceivingVoltageKv, load: loadRecord })
       : solveFixedSendingVoltage({ network, sendingVoltageKv, load: loadRecord });
+  const noseMw = (noseLoadMultiple(withBank(susceptanceS), sendingV, load) * load.re) / 1e6;
+  const noseMarginPercent = ((noseMw - load.re / 1e6) / noseMw) * 100;
+  const warnings =
+    noseMarginPercent < minimumNoseMarginPercent
+      ? [
+          `With the bank in, the load of ${forMessage(load.re / 1e6)} MW is ${noseMarginPercent.toFixed(1)} % below the nose of the P-V curve (${forMessage(noseMw)} MW at this power factor), below the ${minimumNoseMarginPercent} % margin: a small load increase or a loss of voltage support would collapse the bus voltage.`,
+        ]
+      : [];
   return assertFiniteResult('shuntCapacitorForLoadVoltage', {
     capacitorNeeded: susceptanceS > 0,
     capacitorMvar,
     capacitorSusceptanceS: susceptanceS,
     capacitorOutputMvar: (susceptanceS * receivingV * receivingV) / 1e6,
     receivingVoltageKv: operatingPoint.receivingEnd.voltageKv,
+    noseMw,
+    noseMarginPercent,
+    minimumNoseMarginPercent,
+    warnings,
     lineModels: lineModelsOf(network),
     operatingPoint,
     compensatedNetwork,
@@ -261,16 +356,8 @@ export function svcRange(options: {
     const load = readLoad(`loadCases[${index}].load`, caseRecord.load);
     /** SVC output (VA, + capacitive) that places the bus at busV; null when no output can (bus voltage unreachable). */
     const outputAt = (busV: number): number | null => {
-      const fixedPart = abcd.A.mul(busV).add(abcd.B.mul(load.re).div(busV));
-      const perNetQ = abcd.B.mul(new Complex(0, -1)).div(busV);
-      const a = perNetQ.abs() ** 2;
-      const b = 2 * fixedPart.mul(perNetQ.conjugate()).re;
-      const c = fixedPart.abs() ** 2 - sendingV * sendingV;
-      const discriminant = b * b - 4 * a * c;
-      if (discriminant < 0) return null;
-      // The larger net reactive load is the normal (upper-voltage) branch.
-      const netReactive = (-b + Math.sqrt(discriminant)) / (2 * a);
-      return load.im - netReactive;
+      const delivered = deliveredReactiveVa(abcd, sendingV, busV, load.re);
+      return delivered === null ? null : load.im - delivered;
     };
     const characteristicGap = (busV: number): number => {
       const output = outputAt(busV);

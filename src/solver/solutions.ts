@@ -9,6 +9,7 @@ import {
   requireNumber,
   requireObject,
 } from './errors.ts';
+import { requireInductiveSeriesPath } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import { abcdOf, elementsOf, labelOf, readTwoPort, type AbcdMatrix, type TwoPort } from './twoPort.ts';
 import { SQRT3, degToRad, kvToV, lineKvFromPhaseVolts, phaseVoltsFromLineKv } from './units.ts';
@@ -90,6 +91,7 @@ export function readNetwork(record: Record<string, unknown>): { network: TwoPort
 }
 
 export function requireSeriesPath(abcd: AbcdMatrix, network: TwoPort): void {
+  requireInductiveSeriesPath(network);
   if (abcd.B.abs() < 1e-9) {
     throw new SolverDomainError({
       code: 'DEGENERATE_NETWORK',
@@ -224,6 +226,21 @@ export function receivingVoltageRoots(abcd: AbcdMatrix, sendingVoltageLineV: num
   const upperSquared = (-b + root) / (2 * a);
   const lowerSquared = upperSquared > 0 ? c / (a * upperSquared) : 0;
   return { upper: Math.sqrt(upperSquared), lower: Math.sqrt(lowerSquared) };
+}
+
+/**
+ * Reactive power (VA, three-phase) the network delivers into a bus held at busV (line-to-line) carrying active power pW, with the
+ * sending voltage fixed: |A V + B (P - j Q) / V| = Vs is a quadratic in Q; the larger root is the normal (small-angle) solution.
+ * Null when no angle delivers pW at that bus voltage.
+ */
+export function deliveredReactiveVa(abcd: AbcdMatrix, sendingLineV: number, busV: number, pW: number): number | null {
+  const fixedPart = abcd.A.mul(busV).add(abcd.B.mul(pW).div(busV));
+  const perReactive = abcd.B.mul(new Complex(0, -1)).div(busV);
+  const a = perReactive.abs() ** 2;
+  const b = 2 * fixedPart.mul(perReactive.conjugate()).re;
+  const c = fixedPart.abs() ** 2 - sendingLineV * sendingLineV;
+  const discriminant = b * b - 4 * a * c;
+  return discriminant < 0 ? null : (-b + Math.sqrt(discriminant)) / (2 * a);
 }
 
 export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load: Complex): SolverDomainError {

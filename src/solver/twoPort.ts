@@ -35,7 +35,12 @@ export interface LineSectionTwoPort extends TwoPortCore {
   model: LineModelName;
   lengthKm: number;
   frequencyHz: number;
+  /** Per-km constants as used (susceptance net of any uniformly distributed shunt compensation). */
   perKm: PerKmConstants;
+  /** Share of the line's own charging susceptance cancelled by distributed shunt reactors (0 for a plain line). */
+  distributedShuntCompensationDegree: number;
+  /** Doubts about the line data (e.g. waves faster than light), as sentences a study can pass to caution(). */
+  warnings: string[];
 }
 
 export interface SeriesElementTwoPort extends TwoPortCore {
@@ -63,7 +68,12 @@ export interface SourceEquivalentTwoPort extends TwoPortCore {
   nominalVoltageKv: number;
 }
 
-export type ElementTwoPort = LineSectionTwoPort | SeriesElementTwoPort | ShuntElementTwoPort | SourceEquivalentTwoPort;
+/** A lumped element built from totals: a series impedance R + jX, a symmetrical pi, or ABCD values given directly (checked). */
+export interface LumpedTwoPort extends TwoPortCore {
+  kind: 'series-impedance' | 'pi-section' | 'given-two-port';
+}
+
+export type ElementTwoPort = LineSectionTwoPort | SeriesElementTwoPort | ShuntElementTwoPort | SourceEquivalentTwoPort | LumpedTwoPort;
 
 export interface CascadeTwoPort extends TwoPortCore {
   kind: 'cascade';
@@ -114,6 +124,11 @@ export function multiplyAbcd(first: AbcdMatrix, second: AbcdMatrix): AbcdMatrix 
   };
 }
 
+/** Voltage and current at the far side of a two-port from its sending side: V' = D V - B I, I' = A I - C V (valid as AD - BC = 1). */
+export function throughTwoPort(abcd: AbcdMatrix, voltage: Complex, current: Complex): { voltage: Complex; current: Complex } {
+  return { voltage: abcd.D.mul(voltage).sub(abcd.B.mul(current)), current: abcd.A.mul(current).sub(abcd.C.mul(voltage)) };
+}
+
 export function seriesImpedanceAbcd(impedanceOhm: Complex): AbcdMatrix {
   return { A: new Complex(1, 0), B: impedanceOhm, C: new Complex(0, 0), D: new Complex(1, 0) };
 }
@@ -129,6 +144,9 @@ const ELEMENT_KINDS = new Set([
   'shunt-reactor',
   'shunt-capacitor',
   'source-equivalent',
+  'series-impedance',
+  'pi-section',
+  'given-two-port',
   'cascade',
 ]);
 
@@ -186,9 +204,28 @@ function determinantDeviation(matrix: AbcdMatrix): { determinant: Complex; devia
   return { determinant, deviation: determinant.sub(1).abs() };
 }
 
+/** A cascade's ABCD must be the product of its elements' ABCD; a hand-edited total can keep AD - BC = 1 and still be wrong. */
+function requireProductOfElements(network: CascadeTwoPort, tolerance: number): void {
+  const product = network.elements.reduce((accumulated, element) => multiplyAbcd(accumulated, abcdOf(element)), IDENTITY_ABCD);
+  const stored = abcdOf(network);
+  for (const key of ['A', 'B', 'C', 'D'] as const) {
+    const deviation = stored[key].sub(product[key]).abs();
+    if (!(deviation <= tolerance * Math.max(product[key].abs(), stored[key].abs(), key === 'A' || key === 'D' ? 1 : 0) + Number.MIN_VALUE)) {
+      throw new SolverDomainError({
+        code: 'RECIPROCITY_VIOLATED',
+        quantity: `${key} of the cascade '${labelOf(network)}'`,
+        value: `${stored[key].re} + j${stored[key].im}`,
+        allowedRange: `${product[key].re} + j${product[key].im} ± ${tolerance} relative`,
+        hint: 'The stored total of a cascade must equal the product of its elements; rebuild it with cascade() instead of editing its ABCD values.',
+        message: `${key} of the cascade '${labelOf(network)}' = ${stored[key].re} + j${stored[key].im} differs from the product of its ${network.elements.length} element(s), ${product[key].re} + j${product[key].im}`,
+      });
+    }
+  }
+}
+
 /**
  * Passive, reciprocal networks keep AD - BC = 1; a violation means corrupted or hand-edited data.
- * Checks every element, then the whole network, and names the first offender.
+ * Checks every element, that a cascade's total is the product of its elements, then the whole network, and names the first offender.
  */
 export function checkReciprocity(options: { network: TwoPort; tolerance?: number }): ReciprocityCheck {
   const record = requireObject('options', options, 'Pass { network, tolerance? }.');
@@ -215,6 +252,7 @@ export function checkReciprocity(options: { network: TwoPort; tolerance?: number
       });
     }
   }
+  if (network.kind === 'cascade') requireProductOfElements(network, tolerance);
   const whole = determinantDeviation(abcdOf(network));
   return assertFiniteResult('checkReciprocity', {
     label: labelOf(network),

@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { lineCharacteristics, lineModel, polarForm, solveNoLoad } from '../../src/solver/index.ts';
+import { compensatedLineCharacteristics, lineCharacteristics, lineModel, polarForm, solveNoLoad } from '../../src/solver/index.ts';
 import type { ComplexValue } from '../../src/solver/index.ts';
 
 const polar = (value: ComplexValue) => polarForm({ value });
@@ -65,6 +65,27 @@ describe('lineModel', () => {
   });
 });
 
+describe('line data implying propagation faster than light', () => {
+  // Physical bound: v = 1 / sqrt(L C) cannot exceed c on an overhead line; x = 0.25 ohm/km and b = 3.0 uS/km at 50 Hz give
+  // v = omega / sqrt(x b) = 314.16 / sqrt(0.25 * 3e-6) = 362,760 km/s, 1.21 c.
+  const fast = { frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.25, shuntSusceptanceUsPerKm: 3.0, lengthKm: 100 };
+  test('is reported with the ratio v/c by lineCharacteristics', () => {
+    const result = lineCharacteristics({ ...fast, nominalVoltageKv: 400 });
+    expect(result.velocityToLightRatio).toBeCloseTo((2 * Math.PI * 50) / Math.sqrt(0.25 * 3e-6) / 299_792.458, 9);
+    expect(result.warnings).toHaveLength(1);
+    expect(result.warnings[0]).toMatch(/1\.210 times the speed of light/);
+  });
+
+  test('is reported on the line section built by lineModel', () => {
+    expect(lineModel(fast).warnings[0]).toMatch(/faster than light/);
+  });
+
+  test('gives no warning for the Saadat example line', () => {
+    expect(lineCharacteristics({ ...saadat, nominalVoltageKv: 500 }).warnings).toEqual([]);
+    expect(lineModel(saadat).warnings).toEqual([]);
+  });
+});
+
 describe('a line of a quarter wavelength', () => {
   // Lossless line: the open-end voltage is Vs / cos(beta l), unbounded at beta l = 90 degrees.
   test('is refused at no load as a resonance, not answered with an unbounded voltage', () => {
@@ -125,5 +146,53 @@ describe('lineCharacteristics', () => {
     const exact = lineModel(glover);
     expect(result.equivalentPi.seriesImpedanceOhm.re).toBeCloseTo(exact.B.re, 9);
     expect(result.equivalentPi.seriesImpedanceOhm.im).toBeCloseTo(exact.B.im, 9);
+  });
+});
+
+describe('line characteristics with compensation', () => {
+  test('gives inductance and capacitance per km beside reactance and susceptance (Saadat Example 5.6 data)', () => {
+    const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
+    expect(result.seriesInductanceMhPerKm).toBeCloseTo(0.97, 12);
+    expect(result.shuntCapacitanceNfPerKm).toBeCloseTo(11.5, 12);
+  });
+
+  // Definition: SIL on the lossy surge impedance is V^2 / |Zc|, beside the usual lossless V^2 / sqrt(L/C) (Glover Example 5.2 line).
+  test('gives the SIL on the lossy |Zc| beside the lossless one', () => {
+    const result = lineCharacteristics({ ...glover, nominalVoltageKv: 765 });
+    expect(result.surgeImpedanceLoadingLossyMw).toBeCloseTo(765 ** 2 / result.surgeImpedanceMagnitudeOhm, 9);
+    expect(result.surgeImpedanceLoadingLossyMw).toBeLessThan(result.surgeImpedanceLoadingMw);
+  });
+
+  // Gönen, "Electric Power Transmission System Engineering", 2nd ed., Example 3.2 (values as transcribed in a public worked-solution
+  // set, page not in hand): a 345 kV line of SIL 325 MW; with 50 % series compensation 460 MW; with 50 % series and 20 % shunt
+  // compensation 411 MW; SIL' = SIL sqrt((1 - k_sh) / (1 - k_se)). The per-km data only need Zc = 345^2 / 325 ohm.
+  test('gives the compensated SIL of the Gönen example', () => {
+    const zc = 345 ** 2 / 325;
+    const gonen = { frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.5, shuntSusceptanceUsPerKm: (0.5 / zc ** 2) * 1e6, lengthKm: 200, nominalVoltageKv: 345 };
+    expect(compensatedLineCharacteristics({ ...gonen, seriesCompensationDegree: 0.5, shuntCompensationDegree: 0 }).surgeImpedanceLoadingMw).toBeCloseTo(459.6, 1);
+    expect(compensatedLineCharacteristics({ ...gonen, seriesCompensationDegree: 0.5, shuntCompensationDegree: 0.2 }).surgeImpedanceLoadingMw).toBeCloseTo(411.1, 1);
+  });
+
+  // Identity (Miller, "Reactive Power Control in Electric Systems", 1982, ch. 2; from memory): uniformly distributed compensation
+  // scales Zc by sqrt((1 - k_se) / (1 - k_sh)) and beta by sqrt((1 - k_se)(1 - k_sh)); the distributed-shunt line option must agree.
+  test('agrees with a line built with uniformly distributed shunt compensation', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 0, max: 0.9, noNaN: true }), fc.double({ min: 50, max: 800, noNaN: true }), (degree, lengthKm) => {
+        const lossless = { frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 3.8, lengthKm, nominalVoltageKv: 400 };
+        const formula = compensatedLineCharacteristics({ ...lossless, seriesCompensationDegree: 0, shuntCompensationDegree: degree });
+        const distributed = lineCharacteristics({ ...lossless, distributedShuntCompensationDegree: degree });
+        expect(distributed.losslessSurgeImpedanceOhm).toBeCloseTo(formula.surgeImpedanceOhm, 9);
+        expect(distributed.electricalLengthDeg).toBeCloseTo(formula.electricalLengthDeg, 9);
+        expect(distributed.surgeImpedanceLoadingMw).toBeCloseTo(formula.surgeImpedanceLoadingMw, 9);
+      }),
+    );
+  });
+
+  // Physical identity: the open-end rise of a lossless line with distributed shunt compensation k is 1 / cos(beta l sqrt(1 - k)).
+  test('raises the open end of a distributed-compensated line by 1/cos(beta l sqrt(1 - k))', () => {
+    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 3.8, lengthKm: 500, distributedShuntCompensationDegree: 0.6 });
+    const theta = Math.sqrt(0.3 * 3.8e-6) * 500 * Math.sqrt(0.4);
+    expect(solveNoLoad({ network: line, sendingVoltageKv: 400 }).receivingEnd.voltageKv).toBeCloseTo(400 / Math.cos(theta), 9);
+    expect(line.distributedShuntCompensationDegree).toBe(0.6);
   });
 });

@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { cascade, lineModel, seriesCapacitor, shuntReactor, solveNoLoad, solveReceivingLoad, voltageProfile } from '../../src/solver/index.ts';
+import { SolverDomainError, cascade, lineModel, seriesCapacitor, shuntReactor, solveNoLoad, solveReceivingLoad, sourceEquivalent, voltageProfile } from '../../src/solver/index.ts';
 
 const perKm = { frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };
 
@@ -53,5 +53,25 @@ describe('voltageProfile', () => {
     const line = lineModel({ ...perKm, lengthKm: 100 });
     const profile = voltageProfile({ network: line, operatingPoint: solveNoLoad({ network: line, sendingVoltageKv: 400 }), pointCount: 5, nominalVoltageKv: 400 });
     expect(profile.voltagePu?.[0]).toBeCloseTo(1, 12);
+  });
+
+  // Consistency: the profile propagates the sending end through the network; it must arrive at the operating point's receiving end.
+  test('refuses an operating point computed on a different network', () => {
+    const line = lineModel({ ...perKm, lengthKm: 300 });
+    const other = lineModel({ ...perKm, lengthKm: 200 });
+    const attempt = () => voltageProfile({ network: line, operatingPoint: solveNoLoad({ network: other, sendingVoltageKv: 400 }) });
+    expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(/operating point .* does not belong to this network/);
+  });
+
+  test('does not count a source EMF as the highest or lowest voltage of the route', () => {
+    const line = lineModel({ ...perKm, lengthKm: 100 });
+    const source = sourceEquivalent({ end: 'sending', shortCircuitMva: 2000, xOverR: 15, nominalVoltageKv: 400 });
+    const network = cascade({ elements: [source, line] });
+    // Heavy load: the EMF (point 0) is the highest voltage of the whole profile, but it is not on the route.
+    const operatingPoint = solveReceivingLoad({ network, receivingVoltageKv: 380, load: { pMw: 800, qMvar: 300 } });
+    const profile = voltageProfile({ network, operatingPoint, pointCount: 11 });
+    expect(profile.voltageKv[0]).toBeGreaterThan(Math.max(...profile.voltageKv.slice(1)));
+    expect(profile.maximum.voltageKv).toBeCloseTo(profile.voltageKv[1] as number, 9);
   });
 });

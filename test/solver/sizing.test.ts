@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { lineModel, shuntCapacitorForLoadVoltage, shuntReactorForNoLoad, solveNoLoad, sourceEquivalent, svcRange } from '../../src/solver/index.ts';
+import { SolverDomainError, lineModel, pvCurve, shuntCapacitorForLoadVoltage, shuntReactorForNoLoad, solveFixedSendingVoltage, solveNoLoad, sourceEquivalent, svcRange, voltageProfile } from '../../src/solver/index.ts';
 
 // Saadat, "Power System Analysis" (2nd ed.), Example 5.7 data: 500 kV, 60 Hz, 300 km lossless, L = 0.97 mH/km, C = 0.0115 uF/km.
 const saadatLine = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesInductanceMhPerKm: 0.97, shuntCapacitanceNfPerKm: 11.5, lengthKm: 300 });
@@ -46,6 +46,44 @@ describe('shuntReactorForNoLoad', () => {
     expect(solveNoLoad({ network: pair.compensatedNetwork, sendingVoltageKv: 500 }).receivingEnd.voltageKv).toBeCloseTo(500, 6);
   });
 
+  // Ferranti on the source: the charging current drawn through the system reactance raises the bus above the EMF.
+  test('reports the sending-bus voltage and the highest voltage along the line with the reactors in', () => {
+    const sendingSystem = sourceEquivalent({ end: 'sending', shortCircuitMva: 5000, xOverR: 20, nominalVoltageKv: 500 });
+    const sizing = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500, sendingSystem });
+    expect(sizing.sendingSystemEmfKv).toBe(500);
+    expect(sizing.sendingBusVoltageKv).toBeGreaterThan(500);
+    const profile = voltageProfile({ network: sizing.compensatedNetwork, operatingPoint: solveNoLoad({ network: sizing.compensatedNetwork, sendingVoltageKv: 500 }), pointCount: 401 });
+    expect(sizing.maximumVoltage.voltageKv).toBeCloseTo(profile.maximum.voltageKv, 1);
+    expect(sizing.maximumVoltage.positionKm).toBeGreaterThan(0);
+    expect(sizing.maximumVoltage.positionKm).toBeLessThan(300);
+  });
+
+  test('holds a given sending-bus voltage instead of the EMF behind the source', () => {
+    const sendingSystem = sourceEquivalent({ end: 'sending', shortCircuitMva: 5000, xOverR: 20, nominalVoltageKv: 500 });
+    const sizing = shuntReactorForNoLoad({ line: saadatLine, sendingBusVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500, sendingSystem });
+    expect(sizing.sendingBusVoltageKv).toBeCloseTo(500, 9);
+    expect(sizing.sendingSystemEmfKv).toBeLessThan(500);
+    // A bus held at 500 kV makes the line see an ideal source: the closed form of the lossless line applies again.
+    expect(sizing.reactorReactanceEachOhm).toBeCloseTo((zc * Math.sin(betaLength)) / (1 - Math.cos(betaLength)), 6);
+  });
+
+  // Reactors are rated at the highest system voltage (e.g. 525 kV on a 500 kV system, common practice): the same susceptance is a
+  // larger nameplate rating, Q_rated = B V_rated^2, while the Mvar absorbed in service is B V_bus^2.
+  test('rates the reactor at its rated voltage and reports the Mvar absorbed at the bus voltage', () => {
+    const at500 = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500 });
+    const at525 = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 525 });
+    expect(at525.reactorSusceptanceEachS).toBeCloseTo(at500.reactorSusceptanceEachS, 15);
+    expect(at525.reactorMvarEach).toBeCloseTo(at500.reactorMvarEach * (525 / 500) ** 2, 9);
+    expect(at525.reactors[0]?.mvarAtBusVoltage).toBeCloseTo(at500.reactorMvarEach, 9);
+  });
+
+  // With an ideal sending source the sending reactor of a pair does nothing to Vr, so the pair compensates twice the single reactor.
+  test('warns when the reactors exceed 100 % of the line charging', () => {
+    const pair = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500, placement: 'both-ends' });
+    expect(pair.degreeOfShuntCompensation).toBeGreaterThan(1);
+    expect(pair.warnings.join(' ')).toMatch(/exceed 100 % of the line charging/);
+  });
+
   test('needs no reactor when the open-end voltage is already below the target', () => {
     expect(shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 560, ratedVoltageKv: 500 }).reactorNeeded).toBe(false);
   });
@@ -58,8 +96,18 @@ describe('shuntCapacitorForLoadVoltage', () => {
     fc.assert(
       fc.property(fc.double({ min: 400, max: 3200, noNaN: true }), fc.double({ min: 0.8, max: 0.99, noNaN: true }), (pMw, powerFactor) => {
         const line = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 });
-        const sizing = shuntCapacitorForLoadVoltage({ network: line, sendingVoltageKv: 765, targetReceivingVoltageKv: 765, load: { pMw, powerFactor, powerFactorSense: 'lagging' }, ratedVoltageKv: 765 });
+        let sizing;
+        try {
+          sizing = shuntCapacitorForLoadVoltage({ network: line, sendingVoltageKv: 765, targetReceivingVoltageKv: 765, load: { pMw, powerFactor, powerFactorSense: 'lagging' }, ratedVoltageKv: 765 });
+        } catch (error) {
+          // Heavy, low power factor loads: the only banks reaching 765 kV put it on the lower branch (see the next describe).
+          expect((error as SolverDomainError).code).toBe('TARGET_UNREACHABLE');
+          expect((error as Error).message).toMatch(/lower branch/);
+          return;
+        }
         expect(sizing.operatingPoint.sendingEnd.voltageKv).toBeCloseTo(765, 6);
+        const solved = solveFixedSendingVoltage({ network: sizing.compensatedNetwork, sendingVoltageKv: 765, load: { pMw, powerFactor, powerFactorSense: 'lagging' } });
+        expect(solved.receivingEnd.voltageKv).toBeCloseTo(sizing.receivingVoltageKv, 2);
         if (sizing.capacitorNeeded) expect(sizing.operatingPoint.receivingEnd.voltageKv).toBeCloseTo(765, 9);
         else expect(sizing.operatingPoint.receivingEnd.voltageKv).toBeGreaterThanOrEqual(765);
       }),
@@ -75,6 +123,47 @@ describe('shuntCapacitorForLoadVoltage', () => {
     const expectedMvar = ((volts - Math.sqrt(volts ** 2 - ((reactanceOhm * pW) / volts) ** 2)) * volts) / reactanceOhm / 1e6;
     const sizing = shuntCapacitorForLoadVoltage({ network: line, sendingVoltageKv: 400, targetReceivingVoltageKv: 400, load: { pMw: 1000, qMvar: 0 }, ratedVoltageKv: 400 });
     expect(sizing.capacitorMvar).toBeCloseTo(expectedMvar, 6);
+  });
+});
+
+describe('shuntCapacitorForLoadVoltage near the nose', () => {
+  // Lossless 60 ohm reactance from a 400 kV source; with 1200 MW + 300 Mvar the only bank that puts 250 kV at the bus puts it on the
+  // lower (unstable) branch: solved normally from the source, the same bank leaves the bus near 361 kV.
+  const reactance = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.6, shuntSusceptanceUsPerKm: 0, lengthKm: 100, model: 'short' });
+
+  test('refuses a target that only the lower branch of the P-V curve reaches', () => {
+    const attempt = () => shuntCapacitorForLoadVoltage({ network: reactance, sendingVoltageKv: 400, targetReceivingVoltageKv: 250, load: { pMw: 1200, qMvar: 300 }, ratedVoltageKv: 400 });
+    expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(/lower branch/);
+  });
+
+  // Consistency by substitution: the bank returned, solved from the sending voltage (Newton, upper branch), gives the target.
+  test('returns only banks whose upper-branch operating point is the target', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 600, max: 1600, noNaN: true }), fc.double({ min: 0, max: 600, noNaN: true }), fc.double({ min: 300, max: 400, noNaN: true }), (pMw, qMvar, targetKv) => {
+        let sizing;
+        try {
+          sizing = shuntCapacitorForLoadVoltage({ network: reactance, sendingVoltageKv: 400, targetReceivingVoltageKv: targetKv, load: { pMw, qMvar }, ratedVoltageKv: 400 });
+        } catch (error) {
+          expect((error as SolverDomainError).code).toBe('TARGET_UNREACHABLE');
+          return;
+        }
+        const solved = solveFixedSendingVoltage({ network: sizing.compensatedNetwork, sendingVoltageKv: 400, load: { pMw, qMvar } });
+        expect(solved.receivingEnd.voltageKv).toBeGreaterThanOrEqual(targetKv * (1 - 1e-6));
+        // Newton stops at a 1e-6 MVA mismatch, a few volts at this loading.
+        if (sizing.capacitorNeeded) expect(solved.receivingEnd.voltageKv).toBeCloseTo(targetKv, 2);
+      }),
+    );
+  });
+
+  // The nose of the P-V curve with the bank in place (constant susceptance), at the load's power factor.
+  test('reports the margin to the nose with the bank in and warns below the stated margin', () => {
+    const load = { pMw: 1200, qMvar: 100 };
+    const sizing = shuntCapacitorForLoadVoltage({ network: reactance, sendingVoltageKv: 400, targetReceivingVoltageKv: 330, load, ratedVoltageKv: 400, minimumNoseMarginPercent: 20 });
+    const pv = pvCurve({ network: sizing.compensatedNetwork, sendingVoltageKv: 400, powerFactor: 1200 / Math.hypot(1200, 100), powerFactorSense: 'lagging', pointCount: 2 });
+    expect(sizing.noseMarginPercent).toBeCloseTo(((pv.nose.pMw - 1200) / pv.nose.pMw) * 100, 6);
+    expect(sizing.noseMarginPercent).toBeLessThan(20);
+    expect(sizing.warnings.join(' ')).toMatch(/below the 20 % margin/);
   });
 });
 

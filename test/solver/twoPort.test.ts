@@ -68,4 +68,13 @@ describe('checkReciprocity', () => {
       expect((error as SolverDomainError).code).toBe('RECIPROCITY_VIOLATED');
     }
   });
+
+  // Consistency: a cascade's ABCD is the product of its elements' ABCD; a hand-edited total that still has AD - BC = 1 is caught.
+  test('names a cascade whose stored ABCD differs from the product of its elements', () => {
+    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 3.8, lengthKm: 100 });
+    const other = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 3.8, lengthKm: 150 });
+    const network = { ...cascade({ elements: [line] }), A: other.A, B: other.B, C: other.C, D: other.D };
+    expect(() => checkReciprocity({ network })).toThrow(/product of its 1 element/);
+  });
 });
+
