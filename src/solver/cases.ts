@@ -11,7 +11,7 @@ import { cascade, type TwoPort } from './twoPort.ts';
 import { SQRT3, kvToV, lineKvFromPhaseVolts } from './units.ts';
 
 /** Per-unit power base of the Newton iteration (results are in MW, Mvar, kV, A). */
-const BASE_MVA = 100;
+export const BASE_MVA = 100;
 
 export type CaseLoading =
   | ({ kind: 'receiving-load' } & LoadInput)
@@ -335,7 +335,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   };
 }
 
-interface BuiltCase {
+export interface BuiltCase {
   network: NetworkBuilder;
   specs: NodeSpec[];
   sectionBranches: number[][];
@@ -365,7 +365,7 @@ function reachable(network: NetworkBuilder, start: number): Set<number> {
   return seen;
 }
 
-function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<string, 'capacitive' | 'inductive'>): BuiltCase | { reason: string } {
+export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<string, 'capacitive' | 'inductive'>): BuiltCase | { reason: string } {
   const network = newNetwork(corridor);
   const baseV = kvToV(corridor.nominalVoltageKv);
   const sectionBranches = corridor.sections.map((section) =>

@@ -132,7 +132,7 @@ export type PowerFlowResult =
   | { converged: false; iterations: number; mismatchPu: number };
 
 /** Gaussian elimination with partial pivoting; null when the matrix is singular. */
-function solveLinear(matrix: number[][], rhs: number[]): number[] | null {
+export function solveLinear(matrix: number[][], rhs: number[]): number[] | null {
   const size = rhs.length;
   const a = matrix.map((row, index) => [...row, rhs[index] as number]);
   for (let column = 0; column < size; column += 1) {

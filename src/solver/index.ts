@@ -77,3 +77,5 @@ export type {
   VoltageControlInput,
   VoltageControlResult,
 } from './cases.ts';
+export { switchingSteps } from './switchingSteps.ts';
+export type { BusVoltageChange, SwitchingStep, SwitchingSteps } from './switchingSteps.ts';
