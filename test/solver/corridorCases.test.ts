@@ -39,6 +39,8 @@ interface RandomCorridor {
   sendingMva: number;
   xOverR: number;
   emfKv: number;
+  /** The sending system holds its bus voltage instead of standing behind its impedance. */
+  held: boolean;
   loadMw: number;
   loadMvar: number;
 }
@@ -63,6 +65,7 @@ const corridorArbitrary: fc.Arbitrary<RandomCorridor> = fc.integer({ min: 1, max
     sendingMva: fc.double({ min: 5000, max: 30000, noNaN: true }),
     xOverR: fc.double({ min: 8, max: 30, noNaN: true }),
     emfKv: fc.double({ min: 395, max: 420, noNaN: true }),
+    held: fc.boolean(),
     loadMw: fc.double({ min: 0, max: 500, noNaN: true }),
     loadMvar: fc.double({ min: -50, max: 150, noNaN: true }),
   }),
@@ -73,7 +76,9 @@ function corridorOf(random: RandomCorridor): CorridorInput {
   return {
     frequencyHz: 50,
     nominalVoltageKv: 400,
-    sendingSystem: { shortCircuitMva: random.sendingMva, xOverR: random.xOverR, emfKv: random.emfKv },
+    sendingSystem: random.held
+      ? { shortCircuitMva: random.sendingMva, xOverR: random.xOverR, heldVoltageKv: random.emfKv }
+      : { shortCircuitMva: random.sendingMva, xOverR: random.xOverR, emfKv: random.emfKv },
     receivingSystem: { shortCircuitMva: 10000, xOverR: 15, emfKv: 400 },
     buses: busNames.map((name, index) => ({
       name,
@@ -94,9 +99,10 @@ function corridorOf(random: RandomCorridor): CorridorInput {
 }
 
 /** The same corridor built by hand as one cascade; two identical circuits in parallel are one line with z/2 and y*2 (exact). */
-function cascadeOf(random: RandomCorridor): { elements: TwoPort[]; busElementIndex: number[] } {
-  const elements: TwoPort[] = [sourceEquivalent({ end: 'sending', shortCircuitMva: random.sendingMva, xOverR: random.xOverR, nominalVoltageKv: 400 })];
+function cascadeOf(random: RandomCorridor): { elements: TwoPort[]; busElementIndex: number[]; segmentElementIndex: Map<string, number> } {
+  const elements: TwoPort[] = random.held ? [] : [sourceEquivalent({ end: 'sending', shortCircuitMva: random.sendingMva, xOverR: random.xOverR, nominalVoltageKv: 400 })];
   const busElementIndex: number[] = [];
+  const segmentElementIndex = new Map<string, number>();
   random.reactorsMvar.forEach((reactor, index) => {
     busElementIndex.push(elements.length);
     if (reactor !== null) elements.push(shuntReactor({ qMvar: reactor, ratedVoltageKv: 400 }));
@@ -107,17 +113,28 @@ function cascadeOf(random: RandomCorridor): { elements: TwoPort[]; busElementInd
     const line = (lengthKm: number) =>
       lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: section.r / n, seriesReactanceOhmPerKm: section.x / n, shuntSusceptanceUsPerKm: section.b * n, lengthKm });
     const capacitor = section.segment ? seriesCapacitor({ reactanceOhm: section.segment.reactanceOhm / n }) : null;
-    if (capacitor && section.segment?.position === 'sending-end') elements.push(capacitor, line(section.lengthKm));
-    else if (capacitor && section.segment?.position === 'mid-section') elements.push(line(section.lengthKm / 2), capacitor, line(section.lengthKm / 2));
-    else if (capacitor) elements.push(line(section.lengthKm), capacitor);
-    else elements.push(line(section.lengthKm));
+    const pushCapacitor = () => {
+      segmentElementIndex.set(`S${index}`, elements.length);
+      elements.push(capacitor as TwoPort);
+    };
+    if (capacitor && section.segment?.position === 'sending-end') {
+      pushCapacitor();
+      elements.push(line(section.lengthKm));
+    } else if (capacitor && section.segment?.position === 'mid-section') {
+      elements.push(line(section.lengthKm / 2));
+      pushCapacitor();
+      elements.push(line(section.lengthKm / 2));
+    } else if (capacitor) {
+      elements.push(line(section.lengthKm));
+      pushCapacitor();
+    } else elements.push(line(section.lengthKm));
   });
-  return { elements, busElementIndex };
+  return { elements, busElementIndex, segmentElementIndex };
 }
 
 describe('solveCorridorCase against the same network built by hand from two-ports', () => {
   // Identity: the bus-admittance Newton solution and the cascade solved by solveFixedSendingVoltage are two formulations of one network.
-  test('gives the bus voltages, angles, sending power and power balance of the hand-built cascade', () => {
+  test('gives the bus voltages, angles, series-segment currents, sending power and power balance of the hand-built cascade', () => {
     fc.assert(
       fc.property(corridorArbitrary, (random) => {
         const hand = cascadeOf(random);
@@ -133,20 +150,28 @@ describe('solveCorridorCase against the same network built by hand from two-port
         const receiving = result.buses[result.buses.length - 1]!;
         expect(receiving.voltageKv).toBeCloseTo(reference.receivingEnd.voltageKv, 5);
         expect(receiving.angleDeg).toBeCloseTo(reference.receivingEnd.voltageAngleDeg, 5);
-        expect(result.systems.sending.emfKv).toBeCloseTo(random.emfKv, 9);
-        // Each bus from the receiving end through the tail of the cascade: V_k = A V_r + B I_r.
+        if (!random.held) expect(result.systems.sending.emfKv).toBeCloseTo(random.emfKv, 9);
+        // Each bus (and each segment's input) from the receiving end through the tail of the cascade: V = A V_r + B I_r, I = C V_r + D I_r.
         const vr = new Complex(reference.receivingEnd.phaseVoltageV.re, reference.receivingEnd.phaseVoltageV.im);
         const ir = new Complex(reference.receivingEnd.lineCurrentA.re, reference.receivingEnd.lineCurrentA.im);
-        hand.busElementIndex.forEach((elementIndex, busIndex) => {
+        const atElement = (elementIndex: number) => {
           const rest = hand.elements.slice(elementIndex);
-          const tail = rest.length === 0 ? { A: new Complex(1, 0), B: new Complex(0, 0) } : abcdOf(cascade({ elements: rest }));
-          const voltage = tail.A.mul(vr).add(tail.B.mul(ir));
-          expect(result.buses[busIndex]!.voltageKv).toBeCloseTo((voltage.abs() * Math.sqrt(3)) / 1e3, 5);
+          const tail = rest.length === 0 ? { A: new Complex(1, 0), B: new Complex(0, 0), C: new Complex(0, 0), D: new Complex(1, 0) } : abcdOf(cascade({ elements: rest }));
+          return { voltage: tail.A.mul(vr).add(tail.B.mul(ir)), current: tail.C.mul(vr).add(tail.D.mul(ir)) };
+        };
+        hand.busElementIndex.forEach((elementIndex, busIndex) => {
+          expect(result.buses[busIndex]!.voltageKv).toBeCloseTo((atElement(elementIndex).voltage.abs() * Math.sqrt(3)) / 1e3, 5);
         });
-        // Power out of the EMF = power into the sending bus through the Thevenin impedance.
-        const z = abcdOf(hand.elements[0]!).B;
+        result.sections.forEach((section, sectionIndex) => {
+          for (const segment of section.seriesCapacitors) {
+            const expected = atElement(hand.segmentElementIndex.get(segment.name)!).current.abs() / random.sections[sectionIndex]!.circuits;
+            expect(segment.currentA).toBeCloseTo(expected, 3);
+          }
+        });
+        // Power into the sending bus: through the Thevenin impedance from the EMF, or straight in at a held bus.
         const emf = new Complex(reference.sendingEnd.phaseVoltageV.re, reference.sendingEnd.phaseVoltageV.im);
         const current = new Complex(reference.sendingEnd.lineCurrentA.re, reference.sendingEnd.lineCurrentA.im);
+        const z = random.held ? new Complex(0, 0) : abcdOf(hand.elements[0]!).B;
         const atBus = emf.sub(z.mul(current)).mul(current.conjugate()).mul(3 / 1e6);
         expect(result.systems.sending.pMw).toBeCloseTo(atBus.re, 4);
         expect(result.systems.sending.qMvar).toBeCloseTo(atBus.im, 4);
