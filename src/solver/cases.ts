@@ -185,6 +185,8 @@ const CASE_HINT =
 /** A case in resolved form: the state of every unit and system. */
 export interface CaseState {
   label: string;
+  /** Where the case came from, e.g. cases[3], for errors in its data. */
+  path: string;
   loading: CaseLoading['kind'];
   receivingLoad: Complex | null;
   transferMw: number;
@@ -318,6 +320,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   });
   return {
     label,
+    path,
     loading,
     receivingLoad,
     transferMw,
@@ -420,7 +423,13 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
         const limitMvar = limit === 'capacitive' ? svc.capacitiveMvar : -svc.inductiveMvar;
         network.shuntS[bus.index] = (network.shuntS[bus.index] as Complex).add(new Complex(0, (limitMvar * 1e6) / (baseV * baseV)));
       } else if (spec.type !== 'pq') {
-        return { reason: `SVC '${svc.name}' is at bus '${bus.name}', whose voltage is already held by a system; its share of the vars is undefined` };
+        throw new SolverDomainError({
+          code: 'INCONSISTENT_QUANTITIES',
+          quantity: svc.path,
+          value: svc.name,
+          allowedRange: 'an SVC at a bus whose voltage no system holds',
+          hint: `In case '${state.label}' (${state.path}) a system holds the voltage of bus '${bus.name}', so the SVC's share of the vars is undefined; move the SVC, give the system an EMF, or switch the SVC out.`,
+        });
       } else if (svc.slopePercent === 0) {
         spec.type = 'pv';
         spec.voltagePu = svc.referenceVoltageKv / corridor.nominalVoltageKv;
@@ -434,15 +443,21 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
     spec.pPu -= state.receivingLoad.re / 1e6 / BASE_MVA;
     spec.qPu -= state.receivingLoad.im / 1e6 / BASE_MVA;
   }
-  for (const control of state.voltageControl) {
+  state.voltageControl.forEach((control, index) => {
     const spec = specs[control.busIndex] as NodeSpec;
     const busName = corridor.buses[control.busIndex]?.name;
     if (spec.type !== 'pq' || spec.svcSlope) {
-      return { reason: `bus '${busName}' is given two voltage controls (a system, an SVC or another control)` };
+      throw new SolverDomainError({
+        code: 'INCONSISTENT_QUANTITIES',
+        quantity: `${state.path}.voltageControl[${index}].bus`,
+        value: String(busName),
+        allowedRange: 'a bus whose voltage nothing else holds (no system holding it, no SVC in service, no other control)',
+        hint: 'One bus can have one voltage control.',
+      });
     }
     spec.type = 'pv';
     spec.voltagePu = control.voltageKv / corridor.nominalVoltageKv;
-  }
+  });
   const slackNode = systemNodes[slackEnd];
   if (slackNode === null) return { reason: 'no system is connected to the corridor' };
   const supplied = reachable(network, slackNode);

@@ -120,3 +120,25 @@ describe('case data validation', () => {
     expect(reactor.currentA).toBeCloseTo((60e6 * (voltageKv / 400) ** 2) / (Math.sqrt(3) * voltageKv * 1e3), 6);
   });
 });
+
+describe('case data validation: conflicting voltage controls', () => {
+  test('refuses a voltage control at a bus a system already holds', () => {
+    const data = corridor();
+    data.sendingSystem = { shortCircuitMva: 15000, xOverR: 15, heldVoltageKv: 405 };
+    const error = errorOf(() =>
+      solveCorridorCase({ corridor: data, case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Ashgrove', voltageKv: 400 }] } }),
+    );
+    expect(error.code).toBe('INCONSISTENT_QUANTITIES');
+    expect(error.quantity).toBe('case.voltageControl[0].bus');
+  });
+
+  test('refuses two voltage controls at one bus', () => {
+    const error = errorOf(() =>
+      solveCorridorCase({
+        corridor: corridor(),
+        case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Brindle', voltageKv: 400 }, { bus: 'Brindle', voltageKv: 405 }] },
+      }),
+    );
+    expect(error.quantity).toBe('case.voltageControl[1].bus');
+  });
+});
