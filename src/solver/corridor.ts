@@ -1,7 +1,8 @@
 // The corridor as validated data: end systems, ordered buses, line sections with their circuits and series segments, compensation at buses.
-import { Complex } from './complex.ts';
+import { fromPlain, type Complex } from './complex.ts';
 import { SolverDomainError, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
-import { FREQUENCY_RANGE_HZ, LENGTH_RANGE_KM, VOLTAGE_RANGE_KV, resolveLineConstants } from './lineModels.ts';
+import { sourceEquivalent } from './elements.ts';
+import { FREQUENCY_RANGE_HZ, LENGTH_RANGE_KM, VOLTAGE_RANGE_KV, resolveLineConstants, type LinePerKmInput } from './lineModels.ts';
 import type { PerKmConstants } from './twoPort.ts';
 import { kvToV } from './units.ts';
 
@@ -67,17 +68,11 @@ export interface SeriesSegmentInput {
 }
 
 /** A line section between two consecutive buses; per-km constants are per circuit, positive sequence. */
-export interface CorridorSectionInput {
+export interface CorridorSectionInput extends Omit<LinePerKmInput, 'frequencyHz'> {
   name?: string;
   from: string;
   to: string;
   lengthKm: number;
-  seriesResistanceOhmPerKm: number;
-  seriesReactanceOhmPerKm?: number;
-  seriesInductanceMhPerKm?: number;
-  shuntConductanceUsPerKm?: number;
-  shuntSusceptanceUsPerKm?: number;
-  shuntCapacitanceNfPerKm?: number;
   /** Identical parallel circuits (default 1); N-1 can take one of two out. */
   circuits?: 1 | 2;
   seriesCapacitors?: SeriesSegmentInput[];
@@ -253,12 +248,9 @@ function readSystem(path: string, value: unknown, nominalVoltageKv: number, fall
   };
 }
 
-/** Thevenin impedance of a system of the given strength at nominal voltage (the same as sourceEquivalent's). */
+/** Thevenin impedance of a system of the given strength at nominal voltage, as sourceEquivalent gives it. */
 export function systemImpedanceOhm(nominalVoltageKv: number, shortCircuitMva: number, xOverR: number): Complex {
-  const voltageV = kvToV(nominalVoltageKv);
-  const magnitudeOhm = (voltageV * voltageV) / (shortCircuitMva * 1e6);
-  const angleRad = Math.atan(xOverR);
-  return new Complex(magnitudeOhm * Math.cos(angleRad), magnitudeOhm * Math.sin(angleRad));
+  return fromPlain(sourceEquivalent({ end: 'sending', shortCircuitMva, xOverR, nominalVoltageKv }).impedanceOhm);
 }
 
 function readShuntUnit(path: string, value: unknown, kind: ShuntUnit['kind'], busIndex: number): ShuntUnit {
