@@ -6,8 +6,8 @@ import { seriesCapacitor } from './elements.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV, lineModel } from './lineModels.ts';
 import { voltageProfile } from './profile.ts';
-import { readLoad, type LoadInput } from './solutions.ts';
-import { cascade, type TwoPort } from './twoPort.ts';
+import { noseLoadMultiple, readLoad, type LoadInput } from './solutions.ts';
+import { IDENTITY_ABCD, cascade, multiplyAbcd, seriesImpedanceAbcd, shuntAdmittanceAbcd, type TwoPort } from './twoPort.ts';
 import { SQRT3, kvToV, lineKvFromPhaseVolts } from './units.ts';
 
 /** Per-unit power base of the Newton iteration (results are in MW, Mvar, kV, A). */
@@ -487,6 +487,36 @@ function readSettings(record: Record<string, unknown>): CaseSolveSettings {
 
 const formatMvar = (value: number) => String(Number(value.toPrecision(5)));
 
+/**
+ * For a receiving-end load on a plain chain (no other loads, SVCs on their slope or voltage controls), the largest load at the case's
+ * power factor from the closed form on the chain's ABCD (noseLoadMultiple), so an unsolved case still says how far off it is.
+ */
+function chainNoseNote(corridor: Corridor, state: CaseState, built: BuiltCase): string {
+  const receivingBus = endBusIndex(corridor, 'receiving');
+  const load = state.receivingLoad;
+  if (load === null || built.slackEnd !== 'sending') return '';
+  const plain = built.specs.every((spec, node) => spec.type === 'slack' || (spec.type === 'pq' && spec.svcSlope === null && (node === receivingBus || (spec.pPu === 0 && spec.qPu === 0))));
+  if (!plain) return '';
+  let chain = IDENTITY_ABCD;
+  for (const branch of built.network.branches.filter((candidate) => candidate.tag.kind === 'system')) chain = multiplyAbcd(chain, seriesImpedanceAbcd(new Complex(1, 0).div(branch.seriesS)));
+  chain = multiplyAbcd(chain, shuntAdmittanceAbcd(built.network.shuntS[0]!));
+  for (const indices of built.sectionBranches) {
+    for (const index of indices) {
+      const branch = built.network.branches[index]!;
+      // Internal nodes carry no shunt of their own; bus shunts enter once, at bus 0 above and at each section's to-bus below.
+      chain = multiplyAbcd(chain, shuntAdmittanceAbcd(branch.shuntFromS));
+      chain = multiplyAbcd(chain, seriesImpedanceAbcd(new Complex(1, 0).div(branch.seriesS)));
+      chain = multiplyAbcd(chain, shuntAdmittanceAbcd(branch.shuntToS));
+    }
+    const toBus = built.network.branches[indices[indices.length - 1]!]?.to;
+    if (toBus !== undefined) chain = multiplyAbcd(chain, shuntAdmittanceAbcd(built.network.shuntS[toBus]!));
+  }
+  const slack = built.specs[built.systemNodes.sending!]!;
+  const multiple = noseLoadMultiple(chain, slack.voltagePu * kvToV(corridor.nominalVoltageKv), load);
+  if (!Number.isFinite(multiple)) return '';
+  return `; the largest load at this power factor is P = ${formatMvar((multiple * load.re) / 1e6)} MW, Q = ${formatMvar((multiple * load.im) / 1e6)} Mvar (nose of the chain's P-V curve)`;
+}
+
 /** Solves one resolved case: Newton-Raphson, then SVCs past a limit become fixed susceptances and the case is solved again. */
 export function solveCaseState(corridor: Corridor, state: CaseState, settings: CaseSolveSettings): CorridorCaseSolution {
   const unsolved = (reason: string): UnsolvedCorridorCase => ({ label: state.label, solved: false, loading: state.loading, reason });
@@ -501,7 +531,8 @@ export function solveCaseState(corridor: Corridor, state: CaseState, settings: C
     if (!flow.converged) {
       return unsolved(
         `Newton-Raphson found no operating point within ${settings.maxIterations} iterations (largest mismatch ${formatMvar(flow.mismatchPu * BASE_MVA)} MVA): ` +
-          'the loading is beyond the nose of the P-V curve of the corridor in this switching state, or too close to it',
+          'the loading is beyond the nose of the P-V curve of the corridor in this switching state, or too close to it' +
+          chainNoseNote(corridor, state, built),
       );
     }
     const injections = flow.voltages.map((voltage, node) =>

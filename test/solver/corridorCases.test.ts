@@ -220,6 +220,30 @@ describe('solveCorridorCase: cases that have no operating point', () => {
     if (!result.solved) expect(result.reason).toMatch(/nose/);
   });
 
+  // The quoted largest load is the closed-form nose of the same chain (noseLoadMultiple, as solveFixedSendingVoltage quotes it).
+  test("quotes the largest load at the case's power factor for an unsolved load on a plain chain", () => {
+    const corridor: CorridorInput = { ...twoBus(), sections: twoBus().sections.map((section) => ({ ...section, seriesCapacitors: [] })) };
+    const network = cascade({
+      elements: [
+        sourceEquivalent({ end: 'sending', shortCircuitMva: 15000, xOverR: 15, nominalVoltageKv: 400 }),
+        lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.014, seriesReactanceOhmPerKm: 0.16, shuntSusceptanceUsPerKm: 7.2, lengthKm: 200 }),
+        lineModel({ frequencyHz: 50, ...perKm, lengthKm: 200 }),
+      ],
+    });
+    let quoted = '';
+    try {
+      solveFixedSendingVoltage({ network, sendingVoltageKv: 410, load: { pMw: 3000, qMvar: 600 } });
+    } catch (error) {
+      quoted = (error as { allowedRange: string }).allowedRange;
+    }
+    const largestMw = Number(/P = ([0-9.]+) MW/.exec(quoted)?.[1]);
+    const result = solveCorridorCase({ corridor, case: { label: 'far too much', loading: { kind: 'receiving-load', pMw: 3000, qMvar: 600 } } });
+    if (result.solved) throw new Error('expected an unsolved case');
+    const reported = Number(/largest load at this power factor is P = ([0-9.]+) MW/.exec(result.reason)?.[1]);
+    expect(largestMw).toBeGreaterThan(500);
+    expect(Math.abs(reported - largestMw) / largestMw).toBeLessThan(1e-4);
+  });
+
   test('reports a voltage control that would exceed its var limit as unsolved', () => {
     const result = solveCorridorCase({
       corridor: twoBus(),
