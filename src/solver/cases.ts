@@ -16,7 +16,14 @@ export const BASE_MVA = 100;
 export type CaseLoading =
   | ({ kind: 'receiving-load' } & LoadInput)
   | { kind: 'transfer'; pMw: number }
-  | { kind: 'energisation'; closedEnd: 'sending' | 'receiving' };
+  | { kind: 'energisation'; closedEnd: 'sending' | 'receiving'; generator?: EnergisingGenerator };
+
+/** A generator that energises the corridor on its own (its system's strength should then be the machine's). */
+export interface EnergisingGenerator {
+  ratedMva: number;
+  /** Short-circuit ratio, 1 / x_d (unsaturated) on the machine's rating. */
+  shortCircuitRatio: number;
+}
 
 export interface CaseSystemState {
   /** Weakened (or strengthened) short-circuit power for this case. */
@@ -153,6 +160,18 @@ export interface EnergisationResult {
   energisingBusVoltageKv: number;
   energisingBusRisePercent: number;
   highestAlongLine: { section: string; corridorKm: number; voltageKv: number; voltagePu: number };
+  /**
+   * Self-excitation screen for an energising generator (common practice, from memory): the machine can self-excite when the capacitive
+   * reactance it sees falls to its synchronous reactance, i.e. when the net charging at nominal voltage exceeds SCR x rated MVA.
+   */
+  selfExcitation: {
+    netChargingMvarAtNominal: number;
+    /** SCR x rated MVA: the charging the machine can take without self-excitation. */
+    machineLimitMvar: number;
+    /** (limit - charging) / limit. */
+    marginPercent: number;
+    risk: boolean;
+  } | null;
 }
 
 export interface SolvedCorridorCase {
@@ -191,6 +210,7 @@ export interface CaseState {
   receivingLoad: Complex | null;
   transferMw: number;
   closedEnd: 'sending' | 'receiving' | null;
+  generator: EnergisingGenerator | null;
   inService: (name: string) => boolean;
   bypassed: (segment: SeriesSegment) => boolean;
   circuitsInService: number[];
@@ -281,6 +301,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   let receivingLoad: Complex | null = null;
   let transferMw = 0;
   let closedEnd: 'sending' | 'receiving' | null = null;
+  let generator: EnergisingGenerator | null = null;
   const requireConnected = (end: 'sending' | 'receiving', why: string) => {
     if (!systems[end].connected) {
       throw new SolverDomainError({ code: 'INCONSISTENT_QUANTITIES', quantity: `${path}.${end}System.open`, value: 'true', allowedRange: 'false for this loading', hint: why });
@@ -296,6 +317,14 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
     requireConnected('receiving', 'A transfer runs between both systems.');
   } else {
     closedEnd = requireChoice(`${path}.loading.closedEnd`, loadingRecord.closedEnd, ['sending', 'receiving'] as const, 'The end whose breaker is closed; the other end is open.');
+    if (loadingRecord.generator !== undefined) {
+      const generatorHint = 'A generator is { ratedMva, shortCircuitRatio } (SCR = 1 / unsaturated x_d on the machine rating; typically 0.4 to 1.2).';
+      const machine = requireObject(`${path}.loading.generator`, loadingRecord.generator, generatorHint);
+      generator = {
+        ratedMva: requireNumber(`${path}.loading.generator.ratedMva`, machine.ratedMva, { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' }, generatorHint),
+        shortCircuitRatio: requireNumber(`${path}.loading.generator.shortCircuitRatio`, machine.shortCircuitRatio, { min: 0, max: 10, minInclusive: false }, generatorHint),
+      };
+    }
     requireConnected(closedEnd, 'The line is energised from the system at its closed end.');
     const openEnd = closedEnd === 'sending' ? 'receiving' : 'sending';
     systems[openEnd] = { ...systems[openEnd], connected: false };
@@ -325,6 +354,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
     receivingLoad,
     transferMw,
     closedEnd,
+    generator,
     inService: (name) => {
       const unit = corridor.unitsByName.get(name);
       if (unitsOut.has(name)) return false;
@@ -761,7 +791,19 @@ function assembleSolution(
       energisingBusVoltageKv: energisingBus.voltageKv,
       energisingBusRisePercent: ((energisingBus.voltageKv - beforeKv) / beforeKv) * 100,
       highestAlongLine: { section: highest.name, corridorKm: highest.maximum.corridorKm, voltageKv: highest.maximum.voltageKv, voltagePu: highest.maximum.voltagePu },
+      selfExcitation: null,
     };
+    if (state.generator) {
+      // The vars the corridor returns to the machine, referred to nominal voltage (the corridor is linear at no load).
+      const netChargingMvarAtNominal = -systems[closed].qMvar * (nominalKv / energisingBus.voltageKv) ** 2;
+      const machineLimitMvar = state.generator.shortCircuitRatio * state.generator.ratedMva;
+      energisation.selfExcitation = {
+        netChargingMvarAtNominal,
+        machineLimitMvar,
+        marginPercent: ((machineLimitMvar - netChargingMvarAtNominal) / machineLimitMvar) * 100,
+        risk: netChargingMvarAtNominal >= machineLimitMvar,
+      };
+    }
   }
   return {
     label: state.label,

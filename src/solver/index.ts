@@ -66,6 +66,7 @@ export type {
   CorridorCaseSolution,
   CorridorCaseTable,
   EnergisationResult,
+  EnergisingGenerator,
   SectionEndFlow,
   SectionResult,
   SegmentResult,

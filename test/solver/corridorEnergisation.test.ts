@@ -89,6 +89,35 @@ describe('energisation of a corridor from either end', () => {
   });
 });
 
+describe('self-excitation of an energising generator', () => {
+  // Common practice (from memory): a machine energising a line alone can self-excite when the line's net charging at nominal voltage
+  // reaches SCR x its rated MVA (the capacitive reactance it sees falls to its synchronous reactance 1 / SCR).
+  const energise = (unitsOut: string[]) =>
+    solved(
+      solveCorridorCase({
+        corridor: symmetrical,
+        case: { label: 'black start', loading: { kind: 'energisation', closedEnd: 'sending', generator: { ratedMva: 250, shortCircuitRatio: 0.6 } }, unitsOut },
+      }),
+    ).energisation!.selfExcitation!;
+
+  test("flags the risk when the bare line's charging exceeds SCR x rated MVA", () => {
+    const bare = energise(['RN', 'RS']);
+    const lineChargingMvar = 400 ** 2 * 3.6e-6 * 440; // V^2 omega C l at nominal voltage: 253 Mvar
+    // The distributed line returns somewhat more than its lumped charging (the Ferranti rise along it).
+    expect(bare.netChargingMvarAtNominal).toBeGreaterThan(lineChargingMvar);
+    expect(bare.netChargingMvarAtNominal).toBeLessThan(1.15 * lineChargingMvar);
+    expect(bare.machineLimitMvar).toBe(150);
+    expect(bare.risk).toBe(true);
+  });
+
+  test('clears it when the shunt reactors are in', () => {
+    const compensated = energise([]);
+    expect(compensated.netChargingMvarAtNominal).toBeLessThan(150);
+    expect(compensated.risk).toBe(false);
+    expect(compensated.marginPercent).toBeGreaterThan(0);
+  });
+});
+
 describe('switching steps', () => {
   // Hand estimate dV/V ~ Q / S_sc (common practice). On a strong bus the exact step differs from it by second-order terms: the step
   // itself (Q/S_sc, here about 0.25 %), the Thevenin angle (1 - sin(atan(X/R)), 0.2 % at X/R = 15) and the unit's output changing with
