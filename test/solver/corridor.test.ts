@@ -1,7 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import { SolverDomainError, solveCorridorCase, type CorridorInput } from '../../src/solver/index.ts';
-
-const perKm = { seriesResistanceOhmPerKm: 0.028, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };
+import { perKm } from './corridorSupport.ts';
 
 const corridor = (): CorridorInput => ({
   frequencyHz: 50,

@@ -11,18 +11,11 @@ import {
   solveFixedSendingVoltage,
   sourceEquivalent,
   type CorridorInput,
-  type SolvedCorridorCase,
   type TwoPort,
 } from '../../src/solver/index.ts';
 import { Complex } from '../../src/solver/complex.ts';
 import { abcdOf } from '../../src/solver/twoPort.ts';
-
-const perKm = { seriesResistanceOhmPerKm: 0.028, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };
-
-function solved(result: ReturnType<typeof solveCorridorCase>): SolvedCorridorCase {
-  if (!result.solved) throw new Error(`case unsolved: ${result.reason}`);
-  return result;
-}
+import { perKm, solved } from './corridorSupport.ts';
 
 interface RandomSection {
   lengthKm: number;

@@ -8,15 +8,8 @@ import {
   sourceEquivalent,
   switchingSteps,
   type CorridorInput,
-  type SolvedCorridorCase,
 } from '../../src/solver/index.ts';
-
-const perKm = { seriesResistanceOhmPerKm: 0.028, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };
-
-function solved(result: ReturnType<typeof solveCorridorCase>): SolvedCorridorCase {
-  if (!result.solved) throw new Error(`case unsolved: ${result.reason}`);
-  return result;
-}
+import { perKm, solved } from './corridorSupport.ts';
 
 /** Mirror-symmetric: equal systems, equal reactors at both ends, a mid bus between two equal sections. */
 const symmetrical: CorridorInput = {
