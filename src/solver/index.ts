@@ -49,3 +49,37 @@ export { capitalisedCostComparison } from './costs.ts';
 export type { CapitalisedCostComparison, CapitalisedCostOptions, CompensationOption, LineLossInput, OptionCost } from './costs.ts';
 export { lineLoadability } from './loadability.ts';
 export type { LoadabilityCurve, LoadabilityLimit, LoadabilityPoint } from './loadability.ts';
+export type {
+  CorridorBusInput,
+  CorridorInput,
+  CorridorSectionInput,
+  CorridorSystemInput,
+  FixedLoadInput,
+  SegmentPosition,
+  SeriesSegmentInput,
+  ShuntUnitInput,
+  SvcInput,
+} from './corridor.ts';
+export { solveCorridorCase, solveCorridorCases } from './cases.ts';
+export type {
+  BusResult,
+  CaseLoading,
+  CaseSystemState,
+  CorridorCaseInput,
+  CorridorCaseSolution,
+  CorridorCaseTable,
+  EnergisationResult,
+  EnergisingGenerator,
+  SectionEndFlow,
+  SectionResult,
+  SegmentResult,
+  ShuntUnitResult,
+  SolvedCorridorCase,
+  SvcResult,
+  SystemResult,
+  UnsolvedCorridorCase,
+  VoltageControlInput,
+  VoltageControlResult,
+} from './cases.ts';
+export { switchingSteps } from './switchingSteps.ts';
+export type { BusVoltageChange, SwitchingStep, SwitchingSteps } from './switchingSteps.ts';
