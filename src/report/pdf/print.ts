@@ -154,7 +154,12 @@ async function shutDown(browser: Browser | undefined): Promise<void> {
     () => true,
     () => false,
   );
-  const inTime = await Promise.race([closed, new Promise<false>((resolve) => setTimeout(() => resolve(false), closeGraceMs))]);
+  let graceTimer: NodeJS.Timeout | undefined;
+  const graceOver = new Promise<false>((resolve) => {
+    graceTimer = setTimeout(() => resolve(false), closeGraceMs);
+  });
+  // A grace timer left pending after a clean close would hold the process open for its full length.
+  const inTime = await Promise.race([closed, graceOver]).finally(() => clearTimeout(graceTimer));
   const pid = browserProcess?.pid;
   if (pid === undefined) return;
   // puppeteer starts Chromium detached, so the browser leads its own process group and the negative
