@@ -69,6 +69,10 @@ async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ h
 }
 
 export async function runCommand(studyPath: string, options: RunOptions, terminal: Terminal): Promise<number> {
+  if (options.seal && !options.typecheck) {
+    // check always type-checks, and compares the body it renders with the sealed one, which records the type check.
+    throw new StudyFailure([{ code: 'seal-needs-typecheck', message: '--seal and --no-typecheck cannot go together: a sealed report is type-checked', hint: 'drop --no-typecheck when sealing' }]);
+  }
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();
   const { meta } = product.run.study;

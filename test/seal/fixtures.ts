@@ -47,6 +47,7 @@ export function sampleSubject(): SealSubject {
     revision: 'B',
     studyDate: '2025-03-14',
     title: 'Harrowgate–Lindqvist 400 kV line: shunt reactor sizing at light load',
+    studyFile: 'harrowgate-lindqvist.study.md',
     studySourceSha256: digestOf('a'),
     effectiveInputs: {
       lineLengthKm: { value: 310, unit: 'km', source: 'given' },
