@@ -1,12 +1,12 @@
 // `kvarbook check`: verify a sealed report step by step, re-run its study, and optionally counter-sign.
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join } from 'node:path';
 import { styleText } from 'node:util';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { runStudy, type RunProduct } from '../pipeline.ts';
 import { embeddedStudySource } from '../report/embed.ts';
-import { checkSealedReport, type CheckOutcome, type RerunRequest } from '../seal/check.ts';
+import { checkSealedReport, withStep, type CheckOutcome, type RerunRequest } from '../seal/check.ts';
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
 import { envelopeSha256 } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
@@ -17,7 +17,7 @@ import { installationFacts } from './environment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
 import { withSealErrors } from './sealErrors.ts';
-import { reportHtmlFromPdf } from './printPdf.ts';
+import { pdfAsPrintedStep, readPdfReport, type PdfInHand } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 
 export interface CheckOptions {
@@ -29,12 +29,26 @@ export interface CheckOptions {
   tolerance: number;
 }
 
-async function readReportHtml(reportPath: string): Promise<string> {
-  if (!existsSync(reportPath)) throw new StudyFailure([{ code: 'report-missing', message: `${reportPath} does not exist`, hint: 'name a sealed .html or .pdf report' }]);
+/** Far above any report kvarbook writes; a larger file is not a report, and is not read into memory. */
+export const MAX_CHECKED_FILE_BYTES = 256 * 1024 * 1024;
+
+async function readReport(reportPath: string): Promise<{ html: string; pdf?: PdfInHand }> {
+  let size: number;
+  try {
+    size = statSync(reportPath).size;
+  } catch {
+    throw new StudyFailure([{ code: 'report-missing', message: `${reportPath} does not exist`, hint: 'name a sealed .html or .pdf report' }]);
+  }
+  if (size > MAX_CHECKED_FILE_BYTES) {
+    throw new StudyFailure([{ code: 'report-too-large', message: `${reportPath} is ${(size / 1024 / 1024).toFixed(0)} MiB; a report to check may be at most ${MAX_CHECKED_FILE_BYTES / 1024 / 1024} MiB`, hint: 'name the .html or .pdf report kvarbook wrote' }]);
+  }
   const bytes = readFileSync(reportPath);
   // A PDF carries the sealed HTML as an attachment; the PDF alone is enough to check.
-  if (bytes.subarray(0, 5).toString('latin1') === '%PDF-') return reportHtmlFromPdf(bytes, reportPath);
-  return bytes.toString('utf8');
+  if (bytes.subarray(0, 5).toString('latin1') === '%PDF-') {
+    const pdf = await readPdfReport(bytes, reportPath);
+    return { html: pdf.html, pdf };
+  }
+  return { html: bytes.toString('utf8') };
 }
 
 function rerunFrom(sourcePath: string | undefined) {
@@ -105,11 +119,11 @@ function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: Trus
 }
 
 export async function checkCommand(reportPath: string, options: CheckOptions, terminal: Terminal): Promise<number> {
-  const html = await readReportHtml(reportPath);
+  const { html, pdf } = await readReport(reportPath);
   const embedded = embeddedStudySource(html);
   const source = options.source ? readStudyFile(options.source) : embedded;
   const trust = loadTrustedIdentities(options.trust);
-  const outcome = await checkSealedReport({
+  let outcome = await checkSealedReport({
     html,
     source,
     sourceOrigin: options.source ? options.source : 'carried in the report',
@@ -118,6 +132,8 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
     environment: installationFacts(),
     rerun: rerunFrom(options.source),
   });
+  // A PDF is what its reader sees: it verifies only as the exact print of the verified report.
+  if (pdf) outcome = withStep(outcome, await pdfAsPrintedStep(pdf, outcome, source));
   if (options.json) {
     const { rerun: _rerun, ...findings } = outcome;
     process.stdout.write(`${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`);

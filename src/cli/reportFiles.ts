@@ -3,6 +3,7 @@ import { existsSync, mkdirSync, readFileSync, renameSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { basename, join } from 'node:path';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
+import type { RunProduct } from '../pipeline.ts';
 import { readSealedHtml } from '../seal/sealedReport.ts';
 
 export interface ReportPaths {
@@ -13,6 +14,19 @@ export interface ReportPaths {
   pdf: string;
   check: string;
   checkedHtml: string;
+}
+
+/**
+ * The canonical text of results.json: two-space indented, keys in the order the document builds them.
+ * Locations name the study by its file name, as the report does, so that the file does not depend on
+ * the folder the study was run from: a checker's re-run, from wherever, writes the same bytes.
+ */
+export function resultsJsonText(product: Pick<RunProduct, 'results'>): string {
+  const byFileName = (key: string, value: unknown) =>
+    key === 'at' && typeof value === 'object' && value !== null && typeof (value as { file?: unknown }).file === 'string'
+      ? { ...value, file: basename((value as { file: string }).file) }
+      : value;
+  return `${JSON.stringify(product.results, byFileName, 2)}\n`;
 }
 
 export function reportPaths(outFolder: string, studyId: string, revision: number): ReportPaths {

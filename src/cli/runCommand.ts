@@ -11,7 +11,7 @@ import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedR
 import { installationFacts } from './environment.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
-import { protectSealedReport, reportPaths } from './reportFiles.ts';
+import { protectSealedReport, reportPaths, resultsJsonText } from './reportFiles.ts';
 import { withSealErrors } from './sealErrors.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
@@ -24,11 +24,6 @@ export interface RunOptions {
   pdf?: boolean;
   replaceSealed?: boolean;
   keys?: string;
-}
-
-/** The canonical text of results.json: two-space indented, keys in the order the document builds them. */
-export function resultsJsonText(product: RunProduct): string {
-  return `${JSON.stringify(product.results, null, 2)}\n`;
 }
 
 export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck'>, terminal: Terminal): Promise<RunProduct> {

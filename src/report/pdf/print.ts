@@ -61,7 +61,7 @@ export async function printReportPdf(options: PrintReportOptions): Promise<Uint8
     const printed = await Promise.race([printWithChromium(options, timeoutMs, profileDirectory, session), deadline]);
     // Header text, paper and the Chromium build shape the bytes too, so they join the identity.
     const identityText = JSON.stringify([options.html, options.headerText, options.paper, session.browserVersion ?? '']);
-    return await stampPdf(printed, { ...options, identityText });
+    return await stampPdf(printed, { ...options, identityText, printedBy: session.browserVersion ?? 'Chromium' });
   } finally {
     clearTimeout(timer);
     // A launch still in flight when the deadline hit settles within its own timeout; its browser

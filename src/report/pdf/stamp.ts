@@ -22,6 +22,8 @@ export interface StampOptions {
    * trailer /ID. Chromium's own identifier is random per print and would break reproducibility.
    */
   identityText: string;
+  /** The browser that printed the pages, e.g. `HeadlessChrome/131.0.6778.204`: named in /Producer. */
+  printedBy: string;
   metadata: PdfMetadata;
   /** Used for creation and modification dates of the document and of every attachment. */
   fixedDate: Date;
@@ -29,7 +31,11 @@ export interface StampOptions {
 }
 
 export const pdfCreator = 'kvarbook';
-export const pdfProducer = 'kvarbook (Chromium print, pdf-lib)';
+
+/** Names the browser build: a checker can print the same bytes again only with the same one. */
+export function pdfProducer(printedBy: string): string {
+  return `kvarbook (${printedBy} print, pdf-lib)`;
+}
 
 /** Returns a new PDF with metadata and attachments; the same inputs always give the same bytes. */
 export async function stampPdf(printed: Uint8Array, options: StampOptions): Promise<Uint8Array> {
@@ -43,7 +49,7 @@ export async function stampPdf(printed: Uint8Array, options: StampOptions): Prom
   // pdf-lib joins keywords with spaces, which would blur multi-word keywords together.
   document.setKeywords([options.metadata.keywords.join(', ')]);
   document.setCreator(pdfCreator);
-  document.setProducer(pdfProducer);
+  document.setProducer(pdfProducer(options.printedBy));
   document.setCreationDate(options.fixedDate);
   document.setModificationDate(options.fixedDate);
   for (const attachment of options.attachments) {
