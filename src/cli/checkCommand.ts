@@ -14,6 +14,7 @@ import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '.
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { writeFilesAtomically } from '../output/atomicWrite.ts';
 import { installationFacts } from './environment.ts';
+import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
 import { withSealErrors } from './sealErrors.ts';
@@ -137,7 +138,7 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
   if (options.json) {
     const { rerun: _rerun, ...findings } = outcome;
     process.stdout.write(`${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`);
-  } else describeOutcome(outcome, options.trust, trust, terminal, Boolean(process.stdout.isTTY) && !process.env.NO_COLOR);
+  } else describeOutcome(outcome, options.trust, trust, terminal, Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR);
   if (options.sign) await countersign(reportPath, html, outcome, options, terminal);
   return outcome.verdict === 'verified' ? 0 : 1;
 }

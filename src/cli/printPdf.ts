@@ -6,6 +6,7 @@ import type { CheckOutcome } from '../seal/check.ts';
 import type { CheckStep } from '../seal/checkRecord.ts';
 import { serializeEnvelope } from '../seal/manifest.ts';
 import type { StudyMeta } from '../study/model.ts';
+import { launchEnvironment } from './launchEnvironment.ts';
 import { reportPaths, resultsJsonText } from './reportFiles.ts';
 
 export interface PdfInputs {
@@ -20,7 +21,7 @@ export interface PdfInputs {
 
 export async function printStudyPdf(inputs: PdfInputs): Promise<Uint8Array> {
   const { findChromium, printReportPdf, PdfError } = await import('../report/pdf/index.ts');
-  const chromium = findChromium(process.env);
+  const chromium = findChromium(launchEnvironment());
   if ('error' in chromium) throw new StudyFailure([{ code: 'pdf-no-chromium', message: chromium.error }]);
   const { meta } = inputs;
   const encoder = new TextEncoder();

@@ -1,6 +1,7 @@
 // Writing report files so that a reader never sees half a file: temp file in the same folder, fsync, rename.
 import { closeSync, fsyncSync, mkdirSync, openSync, readdirSync, renameSync, rmSync, writeSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
+import { processIsRunning } from './liveProcess.ts';
 
 export interface PendingFile {
   path: string;
@@ -19,15 +20,6 @@ function temporaryOwner(path: string, name: string): number | undefined {
   return match ? Number(match[1]) : undefined;
 }
 
-function isRunning(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (error) {
-    return (error as NodeJS.ErrnoException).code === 'EPERM';
-  }
-}
-
 /** A run killed between writing and renaming leaves its temporary files; remove those of these names whose writer is gone. */
 function removeStaleTemporaries(files: readonly PendingFile[]): void {
   for (const file of files) {
@@ -39,7 +31,7 @@ function removeStaleTemporaries(files: readonly PendingFile[]): void {
     }
     for (const name of names) {
       const owner = temporaryOwner(file.path, name);
-      if (owner !== undefined && owner !== process.pid && !isRunning(owner)) rmSync(join(dirname(file.path), name), { force: true });
+      if (owner !== undefined && owner !== process.pid && !processIsRunning(owner)) rmSync(join(dirname(file.path), name), { force: true });
     }
   }
 }

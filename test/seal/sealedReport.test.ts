@@ -9,6 +9,7 @@ import { embeddedStudySource } from '../../src/report/embed.ts';
 import type { RunProduct } from '../../src/pipeline.ts';
 import { runStudy } from '../../src/pipeline.ts';
 import { TEST_ENVIRONMENT, runSource, studyText } from '../support/studies.ts';
+import { TEST_KEY_SCRYPT } from './fixtures.ts';
 
 const PASSPHRASE = 'a long test passphrase';
 const source = studyText({
@@ -19,7 +20,7 @@ const source = studyText({
 async function sealedFixture() {
   // Sealing requires the type check, and check re-runs with it: the provenance records it.
   const product = await runSource(source, { typecheck: true });
-  const engineer = createSigningKey({ name: 'Test Engineer', licence: 'T-0', jurisdiction: 'Testland', passphrase: PASSPHRASE });
+  const engineer = createSigningKey({ name: 'Test Engineer', licence: 'T-0', jurisdiction: 'Testland', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
   const privateKey = unlockSigningKey(engineer.encryptedPrivateKeyPem, PASSPHRASE);
   const envelope = signManifest(buildManifest(sealSubject(product.results, reportBodySha256(product.report))), privateKey, engineer.identity);
   return { product, engineer, envelope, html: sealedReportHtml(product.report, envelope) };
@@ -58,7 +59,7 @@ describe('checking a sealed report', () => {
   });
 
   it('fails when the signer is not in the trust folder, saying the signature itself is valid', async () => {
-    const stranger = createSigningKey({ name: 'Someone Else', licence: 'X-1', jurisdiction: 'Elsewhere', passphrase: PASSPHRASE });
+    const stranger = createSigningKey({ name: 'Someone Else', licence: 'X-1', jurisdiction: 'Elsewhere', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
     const outcome = await checkSealedReport(request({ rerun: sameFigures }, [stranger.identity]));
     expect(outcome.verdict).toBe('failed');
     expect(outcome.steps[0]?.detail).toContain('valid signature');
@@ -122,7 +123,7 @@ describe('checking a sealed report', () => {
   });
 
   it('fails when a trusted key other than the named engineer\'s sealed the report', async () => {
-    const other = createSigningKey({ name: 'Other Engineer', licence: 'O-9', jurisdiction: 'Testland', passphrase: PASSPHRASE });
+    const other = createSigningKey({ name: 'Other Engineer', licence: 'O-9', jurisdiction: 'Testland', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
     const envelope = signManifest(buildManifest(sealSubject(fixture.product.results, reportBodySha256(fixture.product.report))), unlockSigningKey(other.encryptedPrivateKeyPem, PASSPHRASE), other.identity);
     const outcome = await checkSealedReport(request({ html: sealedReportHtml(fixture.product.report, envelope), rerun: sameFigures }, [fixture.engineer.identity, other.identity]));
     expect(outcome.steps.find((step) => step.name === 'signature')).toMatchObject({ passed: true });

@@ -8,6 +8,7 @@ import { buildManifest, signManifest, type SealEnvelope } from '../../src/seal/m
 import { readSealedHtml, reportBodySha256, sealedReportHtml } from '../../src/seal/sealedReport.ts';
 import type { ReportParts } from '../../src/report/html.ts';
 import { scratchFolder } from '../support/cli.ts';
+import { TEST_KEY_SCRYPT } from '../seal/fixtures.ts';
 
 export const PASSPHRASE = 'a long enough passphrase';
 
@@ -26,7 +27,8 @@ export interface SealWorkspace {
 
 /** A signer whose public identity is put in `trustFolder` when given. */
 export function newSigner(name: string, licence: string, jurisdiction: string, trustFolder?: string, keysFolder?: string): Signer {
-  const created = createSigningKey({ name, licence, jurisdiction, passphrase: PASSPHRASE });
+  // A cheap scrypt: these keys guard nothing; the CLI reads the cost from the file as it does any.
+  const created = createSigningKey({ name, licence, jurisdiction, passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
   if (keysFolder) saveKey(keysFolder, created);
   if (trustFolder) writeFileSync(join(trustFolder, `${licence}.json`), exportIdentity(created.identity));
   return { identity: created.identity, privateKey: unlockSigningKey(created.encryptedPrivateKeyPem, PASSPHRASE) };
