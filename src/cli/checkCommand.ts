@@ -12,7 +12,7 @@ import { envelopeSha256 } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
-import { writeFilesAtomically } from '../output/atomicWrite.ts';
+import { addToSet } from '../output/reportSet.ts';
 import { installationFacts } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
@@ -174,10 +174,16 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     if (existsSync(checkPath) || existsSync(checkedHtmlPath)) {
       throw new StudyFailure([{ code: 'check-exists', message: `${checkPath} already exists; a check record is never overwritten`, hint: 'move the earlier check record aside first' }]);
     }
-    writeFilesAtomically([
-      { path: checkPath, content: `${serializeCheckRecord(record)}\n` },
-      { path: checkedHtmlPath, content: sealedReportHtml(reading.contents.parts, envelope, [...outcome.checks, record]) },
-    ]);
+    try {
+      // Into the report's own set when it is one, so that the counter-signature stays with it when superseded.
+      addToSet(reportPath, [
+        { name: basename(checkedHtmlPath), content: sealedReportHtml(reading.contents.parts, envelope, [...outcome.checks, record]) },
+        { name: basename(checkPath), content: `${serializeCheckRecord(record)}\n` },
+      ]);
+    } catch (error) {
+      if ((error as NodeJS.ErrnoException).code !== 'EEXIST') throw error;
+      throw new StudyFailure([{ code: 'check-exists', message: `${checkPath} already exists; a check record is never overwritten`, hint: 'move the earlier check record aside first' }]);
+    }
     terminal.say(`check record: ${checkPath}`);
     terminal.say(`report with both signatures: ${checkedHtmlPath}`);
   });
