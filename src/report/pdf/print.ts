@@ -158,7 +158,7 @@ async function printWithChromium(
  * the same bytes for the engineer and for the checker. Its scratch space stays the system's: it puts
  * a Unix socket there, whose path may not be longer than 107 bytes.
  */
-export function chromiumEnvironment(profileDirectory: string): NodeJS.ProcessEnv {
+function chromiumEnvironment(profileDirectory: string): NodeJS.ProcessEnv {
   return { PATH: process.env.PATH ?? '/usr/bin:/bin', HOME: profileDirectory, TMPDIR: tmpdir(), LANG: 'C.UTF-8', TZ: 'UTC' };
 }
 
