@@ -1,23 +1,24 @@
 // `kvarbook check`: verify a sealed report step by step, re-run its study, and optionally counter-sign.
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join } from 'node:path';
 import { styleText } from 'node:util';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
-import { runStudy } from '../pipeline.ts';
+import { runStudy, type RunProduct } from '../pipeline.ts';
 import { embeddedStudySource } from '../report/embed.ts';
-import { checkSealedReport, type CheckOutcome } from '../seal/check.ts';
+import { checkSealedReport, withStep, type CheckOutcome, type RerunRequest } from '../seal/check.ts';
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
 import { envelopeSha256 } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
-import { loadTrustedIdentities } from '../seal/trust.ts';
+import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
-import { writeFilesAtomically } from '../output/atomicWrite.ts';
+import { addToSet } from '../output/reportSet.ts';
 import { installationFacts } from './environment.ts';
+import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
 import { withSealErrors } from './sealErrors.ts';
-import { reportHtmlFromPdf } from './printPdf.ts';
+import { pdfAsPrintedStep, readPdfReport, type PdfInHand } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 
 export interface CheckOptions {
@@ -29,23 +30,37 @@ export interface CheckOptions {
   tolerance: number;
 }
 
-async function readReportHtml(reportPath: string): Promise<string> {
-  if (!existsSync(reportPath)) throw new StudyFailure([{ code: 'report-missing', message: `${reportPath} does not exist`, hint: 'name a sealed .html or .pdf report' }]);
+/** Far above any report kvarbook writes; a larger file is not a report, and is not read into memory. */
+export const MAX_CHECKED_FILE_BYTES = 256 * 1024 * 1024;
+
+async function readReport(reportPath: string): Promise<{ html: string; pdf?: PdfInHand }> {
+  let size: number;
+  try {
+    size = statSync(reportPath).size;
+  } catch {
+    throw new StudyFailure([{ code: 'report-missing', message: `${reportPath} does not exist`, hint: 'name a sealed .html or .pdf report' }]);
+  }
+  if (size > MAX_CHECKED_FILE_BYTES) {
+    throw new StudyFailure([{ code: 'report-too-large', message: `${reportPath} is ${(size / 1024 / 1024).toFixed(0)} MiB; a report to check may be at most ${MAX_CHECKED_FILE_BYTES / 1024 / 1024} MiB`, hint: 'name the .html or .pdf report kvarbook wrote' }]);
+  }
   const bytes = readFileSync(reportPath);
   // A PDF carries the sealed HTML as an attachment; the PDF alone is enough to check.
-  if (bytes.subarray(0, 5).toString('latin1') === '%PDF-') return reportHtmlFromPdf(bytes, reportPath);
-  return bytes.toString('utf8');
+  if (bytes.subarray(0, 5).toString('latin1') === '%PDF-') {
+    const pdf = await readPdfReport(bytes, reportPath);
+    return { html: pdf.html, pdf };
+  }
+  return { html: bytes.toString('utf8') };
 }
 
 function rerunFrom(sourcePath: string | undefined) {
-  return async (source: string, overrides: { name: string; text: string }[]) => {
+  return async (request: RerunRequest): Promise<RunProduct> => {
     // An embedded source runs from an empty scratch folder: it may read nothing of the checker's.
+    // Either way the run carries the sealed file name, so that the report it renders can be compared.
     const scratch = sourcePath ? undefined : mkdtempSync(join(tmpdir(), 'kvarbook-check-'));
-    const file = sourcePath ?? join(scratch as string, 'embedded.study.md');
-    if (scratch) writeFileSync(file, source);
+    const file = join(scratch ?? dirname(sourcePath as string), request.studyFile);
+    if (scratch) writeFileSync(file, request.source);
     try {
-      const product = await runStudy({ file, source, overrides, typecheck: true, environment: installationFacts() });
-      return product.results;
+      return await runStudy({ file, source: request.source, overrides: request.overrides, typecheck: true, environment: request.environment });
     } catch (error) {
       if (error instanceof StudyFailure) throw new Error(error.diagnostics.map((d) => `${d.at ? `${basename(d.at.file)}:${d.at.line}: ` : ''}${d.message}`).join('; '));
       throw error;
@@ -55,8 +70,36 @@ function rerunFrom(sourcePath: string | undefined) {
   };
 }
 
-function describeOutcome(outcome: CheckOutcome, terminal: Terminal, colour: boolean): void {
+/** One line on the trust folder, so that a checker never mistakes "no one is trusted" for a bad signature. */
+function trustLine(folder: string, trust: TrustedIdentities): string {
+  if (trust.folder === 'missing') return `trust folder: ${folder} does not exist, so no signer can be trusted`;
+  if (trust.folder === 'unreadable') return `trust folder: ${folder} cannot be read, so no signer can be trusted (${trust.problems[0]?.problems[0] ?? ''})`;
+  if (trust.identities.length === 0) return `trust folder: ${folder} holds no identities, so no signer can be trusted`;
+  return `trust folder: ${folder} (${trust.identities.length} trusted ${trust.identities.length === 1 ? 'identity' : 'identities'})`;
+}
+
+function hiddenCodeLine(blocks: CheckOutcome['blocks']): string {
+  if (blocks === null) return 'hidden code: not known, the study did not re-run';
+  const { total, hidden } = blocks;
+  if (hidden.length === 0) return `hidden code: none; the report shows the code of ${total === 1 ? 'its one block' : `all ${total} blocks`}`;
+  const spans = hidden.map((span) => `${span.fromLine}–${span.toLine}`);
+  const lines = spans.length === 1 ? spans[0] : `${spans.slice(0, -1).join(', ')} and ${spans.at(-1)}`;
+  const verb = hidden.length === 1 ? 'runs with its code' : 'run with their code';
+  return `hidden code: ${hidden.length} of ${total} blocks ${verb} left out of the report; read it in the study source, lines ${lines}`;
+}
+
+function verdictLine(outcome: CheckOutcome, paint: (style: Parameters<typeof styleText>[0], text: string) => string): string {
+  const verified = outcome.verdict === 'verified';
+  const word = verified ? paint(['bold', 'green'], 'VERIFIED') : paint(['bold', 'red'], 'NOT VERIFIED');
+  const what = outcome.study ? `study ${outcome.study.id}, revision ${outcome.study.revision}` : 'no readable seal';
+  const who = outcome.signer ? `, ${verified ? 'sealed' : 'seal signed'} by ${describeSigner(outcome.signer)}` : '';
+  return `verdict: ${word}: ${what}${who}`;
+}
+
+function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: TrustedIdentities, terminal: Terminal, colour: boolean): void {
   const paint = (style: Parameters<typeof styleText>[0], text: string) => (colour ? styleText(style, text) : text);
+  terminal.say(trustLine(trustFolder, trust));
+  for (const skipped of trust.problems.filter((problem) => problem.file !== trustFolder)) terminal.say(`   skipped ${skipped.file}: ${skipped.problems.join('; ')}`);
   outcome.steps.forEach((step, index) => {
     terminal.say(`${index + 1}. ${step.name.padEnd(18)} ${step.passed ? paint('green', 'pass') : paint('red', 'FAIL')}  ${step.detail}`);
   });
@@ -67,24 +110,35 @@ function describeOutcome(outcome: CheckOutcome, terminal: Terminal, colour: bool
   }
   for (const name of outcome.comparison?.missing ?? []) terminal.say(`   ${name}: sealed, but the re-run did not produce it`);
   for (const name of outcome.comparison?.extra ?? []) terminal.say(`   ${name}: produced by the re-run, but not sealed`);
-  terminal.say(`verdict: ${outcome.verdict === 'verified' ? paint(['bold', 'green'], 'VERIFIED') : paint(['bold', 'red'], 'NOT VERIFIED')}`);
+  if (outcome.bodyDifference) {
+    terminal.say(`   report body, line ${outcome.bodyDifference.line}:`);
+    terminal.say(`     sealed: ${outcome.bodyDifference.sealed}`);
+    terminal.say(`     re-run: ${outcome.bodyDifference.rerun}`);
+  }
+  terminal.say(hiddenCodeLine(outcome.blocks));
+  terminal.say(verdictLine(outcome, paint));
 }
 
 export async function checkCommand(reportPath: string, options: CheckOptions, terminal: Terminal): Promise<number> {
-  const html = await readReportHtml(reportPath);
+  const { html, pdf } = await readReport(reportPath);
   const embedded = embeddedStudySource(html);
   const source = options.source ? readStudyFile(options.source) : embedded;
   const trust = loadTrustedIdentities(options.trust);
-  const outcome = await checkSealedReport({
+  let outcome = await checkSealedReport({
     html,
     source,
     sourceOrigin: options.source ? options.source : 'carried in the report',
     trusted: trust.identities,
     defaultRelativeTolerance: options.tolerance,
+    environment: installationFacts(),
     rerun: rerunFrom(options.source),
   });
-  if (options.json) process.stdout.write(`${JSON.stringify({ report: reportPath, ...outcome, trustProblems: trust.problems }, null, 2)}\n`);
-  else describeOutcome(outcome, terminal, Boolean(process.stdout.isTTY) && !process.env.NO_COLOR);
+  // A PDF is what its reader sees: it verifies only as the exact print of the verified report.
+  if (pdf) outcome = withStep(outcome, await pdfAsPrintedStep(pdf, outcome, source));
+  if (options.json) {
+    const { rerun: _rerun, ...findings } = outcome;
+    process.stdout.write(`${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`);
+  } else describeOutcome(outcome, options.trust, trust, terminal, Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR);
   if (options.sign) await countersign(reportPath, html, outcome, options, terminal);
   return outcome.verdict === 'verified' ? 0 : 1;
 }
@@ -120,10 +174,16 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     if (existsSync(checkPath) || existsSync(checkedHtmlPath)) {
       throw new StudyFailure([{ code: 'check-exists', message: `${checkPath} already exists; a check record is never overwritten`, hint: 'move the earlier check record aside first' }]);
     }
-    writeFilesAtomically([
-      { path: checkPath, content: `${serializeCheckRecord(record)}\n` },
-      { path: checkedHtmlPath, content: sealedReportHtml(reading.contents.parts, envelope, [...outcome.checks, record]) },
-    ]);
+    try {
+      // Into the report's own set when it is one, so that the counter-signature stays with it when superseded.
+      addToSet(reportPath, [
+        { name: basename(checkedHtmlPath), content: sealedReportHtml(reading.contents.parts, envelope, [...outcome.checks, record]) },
+        { name: basename(checkPath), content: `${serializeCheckRecord(record)}\n` },
+      ]);
+    } catch (error) {
+      if ((error as NodeJS.ErrnoException).code !== 'EEXIST') throw error;
+      throw new StudyFailure([{ code: 'check-exists', message: `${checkPath} already exists; a check record is never overwritten`, hint: 'move the earlier check record aside first' }]);
+    }
     terminal.say(`check record: ${checkPath}`);
     terminal.say(`report with both signatures: ${checkedHtmlPath}`);
   });

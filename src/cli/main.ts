@@ -4,6 +4,7 @@ import type { RunOptions } from './runCommand.ts';
 import type { CheckOptions } from './checkCommand.ts';
 import type { KeyNewOptions } from './keyCommand.ts';
 import { homeFolders } from './homeFolders.ts';
+import { useLaunchEnvironment } from './launchEnvironment.ts';
 import { DEFAULT_RELATIVE_TOLERANCE } from '../seal/compare.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { installationFacts } from './environment.ts';
@@ -97,7 +98,9 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
   return program;
 }
 
-export async function main(argv: readonly string[]): Promise<number> {
+/** `environment`: what the process was started with (the executable narrows process.env for helpers). */
+export async function main(argv: readonly string[], environment: NodeJS.ProcessEnv = process.env): Promise<number> {
+  useLaunchEnvironment(environment);
   const terminal = processTerminal();
   let exitCode: number = EXIT.ok;
   const program = buildProgram(terminal, (code) => {

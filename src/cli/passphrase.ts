@@ -1,7 +1,8 @@
 // Getting the signing key's passphrase: from KVARBOOK_PASSPHRASE, or asked on the terminal without echo.
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
+import { launchEnvironment } from './launchEnvironment.ts';
 
-export async function readPassphrase(prompt: string, env: NodeJS.ProcessEnv = process.env): Promise<string> {
+export async function readPassphrase(prompt: string, env: NodeJS.ProcessEnv = launchEnvironment()): Promise<string> {
   const fromEnvironment = env.KVARBOOK_PASSPHRASE;
   if (fromEnvironment !== undefined && fromEnvironment !== '') return fromEnvironment;
   const input = process.stdin;

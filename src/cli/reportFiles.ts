@@ -1,9 +1,10 @@
 // The files of one report on disk, and the rule that nothing sealed is ever overwritten or lost.
-import { existsSync, mkdirSync, readFileSync, renameSync } from 'node:fs';
-import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
+import type { RunProduct } from '../pipeline.ts';
 import { readSealedHtml } from '../seal/sealedReport.ts';
+import { SUPERSEDED, type ReportFolder, type ReportSet } from '../output/reportSet.ts';
 
 export interface ReportPaths {
   base: string;
@@ -13,6 +14,19 @@ export interface ReportPaths {
   pdf: string;
   check: string;
   checkedHtml: string;
+}
+
+/**
+ * The canonical text of results.json: two-space indented, keys in the order the document builds them.
+ * Locations name the study by its file name, as the report does, so that the file does not depend on
+ * the folder the study was run from: a checker's re-run, from wherever, writes the same bytes.
+ */
+export function resultsJsonText(product: Pick<RunProduct, 'results'>): string {
+  const byFileName = (key: string, value: unknown) =>
+    key === 'at' && typeof value === 'object' && value !== null && typeof (value as { file?: unknown }).file === 'string'
+      ? { ...value, file: basename((value as { file: string }).file) }
+      : value;
+  return `${JSON.stringify(product.results, byFileName, 2)}\n`;
 }
 
 export function reportPaths(outFolder: string, studyId: string, revision: number): ReportPaths {
@@ -28,31 +42,35 @@ export function reportPaths(outFolder: string, studyId: string, revision: number
   };
 }
 
-function isSealed(paths: ReportPaths): boolean {
-  if (existsSync(paths.seal)) return true;
-  if (!existsSync(paths.html)) return false;
-  return readSealedHtml(readFileSync(paths.html, 'utf8')).ok;
+/** The output folder as a set of report files of one study id and revision. */
+export function reportFolder(outFolder: string, studyId: string, revision: number): ReportFolder {
+  const paths = reportPaths(outFolder, studyId, revision);
+  return { out: outFolder, base: basename(paths.base), names: [paths.html, paths.results, paths.seal, paths.pdf, paths.check, paths.checkedHtml].map((path) => basename(path)) };
 }
 
 /**
- * Before writing a report over an existing one: refuse if the existing one is sealed, unless the user
- * asked to replace it; then move the whole sealed set aside rather than delete it.
+ * A set is sealed when it has a seal file, a sealed HTML, or a PDF that carries a seal: deleting the
+ * first two never exposes a sealed PDF to being replaced. A PDF that cannot be read counts as sealed.
  */
-export function protectSealedReport(paths: ReportPaths, replaceSealed: boolean): string | undefined {
-  if (!isSealed(paths)) return undefined;
-  if (!replaceSealed) {
-    throw new StudyFailure([{
-      code: 'sealed-report-exists',
-      message: `${paths.html} is a sealed report of this study id and revision; kvarbook will not overwrite it`,
-      hint: 'raise "revision" in the front matter for a new issue of the study, or pass --replace-sealed to move the sealed set to superseded/ and write a new one',
-    }]);
+export async function isSealedSet(set: ReportSet): Promise<boolean> {
+  const named = (suffix: string) => [...set.files.entries()].find(([name]) => name.endsWith(suffix))?.[1];
+  if (named('.seal.json') !== undefined) return true;
+  const html = named('.html');
+  if (html !== undefined && readSealedHtml(readFileSync(html, 'utf8')).ok) return true;
+  const pdf = named('.pdf');
+  if (pdf === undefined) return false;
+  const { readPdfAttachments } = await import('../report/pdf/index.ts');
+  try {
+    return (await readPdfAttachments(readFileSync(pdf))).some((attachment) => attachment.fileName.endsWith('.seal.json'));
+  } catch {
+    return true;
   }
-  const sealBytes = existsSync(paths.seal) ? readFileSync(paths.seal) : readFileSync(paths.html);
-  const tag = createHash('sha256').update(sealBytes).digest('hex').slice(0, 12);
-  const folder = join(paths.base.slice(0, paths.base.length - basename(paths.base).length), 'superseded', `${basename(paths.base)}-${tag}`);
-  mkdirSync(folder, { recursive: true });
-  for (const path of [paths.html, paths.results, paths.seal, paths.pdf, paths.check, paths.checkedHtml]) {
-    if (existsSync(path)) renameSync(path, join(folder, basename(path)));
-  }
-  return folder;
+}
+
+export function sealedReportExists(paths: ReportPaths): StudyFailure {
+  return new StudyFailure([{
+    code: 'sealed-report-exists',
+    message: `${paths.html} is a sealed report of this study id and revision; kvarbook will not overwrite it`,
+    hint: `raise "revision" in the front matter for a new issue of the study, or pass --replace-sealed to move the sealed set to ${SUPERSEDED}/ and write a new one`,
+  }]);
 }

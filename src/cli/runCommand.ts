@@ -3,7 +3,7 @@ import { basename } from 'node:path';
 import { parseOverrideArguments } from '../study/inputs.ts';
 import { runStudy, type RunProduct } from '../pipeline.ts';
 import { UNSEALED_NOTICE, assembleReport, criteriaStatus } from '../report/html.ts';
-import { writeFilesAtomically, type PendingFile } from '../output/atomicWrite.ts';
+import { PendingSet, currentSet, openReportFolder } from '../output/reportSet.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { buildManifest, serializeEnvelope, signManifest, verifyEnvelope } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
@@ -11,7 +11,7 @@ import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedR
 import { installationFacts } from './environment.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
-import { protectSealedReport, reportPaths } from './reportFiles.ts';
+import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
 import { withSealErrors } from './sealErrors.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
@@ -24,11 +24,6 @@ export interface RunOptions {
   pdf?: boolean;
   replaceSealed?: boolean;
   keys?: string;
-}
-
-/** The canonical text of results.json: two-space indented, keys in the order the document builds them. */
-export function resultsJsonText(product: RunProduct): string {
-  return `${JSON.stringify(product.results, null, 2)}\n`;
 }
 
 export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck'>, terminal: Terminal): Promise<RunProduct> {
@@ -69,18 +64,54 @@ async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ h
 }
 
 export async function runCommand(studyPath: string, options: RunOptions, terminal: Terminal): Promise<number> {
+  if (options.seal && !options.typecheck) {
+    // check always type-checks, and compares the body it renders with the sealed one, which records the type check.
+    throw new StudyFailure([{ code: 'seal-needs-typecheck', message: '--seal and --no-typecheck cannot go together: a sealed report is type-checked', hint: 'drop --no-typecheck when sealing' }]);
+  }
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();
   const { meta } = product.run.study;
   const paths = reportPaths(options.out, meta.id, meta.revision);
   const sealed = options.seal ? await sealedFiles(product, options.keys as string) : undefined;
-  const superseded = protectSealedReport(paths, Boolean(options.replaceSealed));
-  const files: PendingFile[] = [
-    { path: paths.html, content: sealed ? sealed.html : assembleReport(product.report, UNSEALED_NOTICE) },
-    { path: paths.results, content: resultsJsonText(product) },
-    ...(sealed ? [{ path: paths.seal, content: sealed.seal }] : []),
-  ];
-  writeFilesAtomically(files);
+  const folder = reportFolder(options.out, meta.id, meta.revision);
+  await openReportFolder(folder, isSealedSet);
+  const previous = currentSet(folder);
+  const previousSealed = await isSealedSet(previous);
+  if (previousSealed && !options.replaceSealed) throw sealedReportExists(paths);
+  const html = sealed ? sealed.html : assembleReport(product.report, UNSEALED_NOTICE);
+  const resultsJson = resultsJsonText(product);
+  // Every file of the run goes into one fresh set, switched in only once all are written: a killed
+  // run shows the earlier set, never a mix, and a run without a PDF shows no earlier PDF.
+  const pending = new PendingSet(folder);
+  let pdfFailure: StudyFailure | undefined;
+  let superseded: string | undefined;
+  try {
+    pending.write(basename(paths.html), html);
+    pending.write(basename(paths.results), resultsJson);
+    if (sealed) pending.write(basename(paths.seal), sealed.seal);
+    if (options.pdf || meta.report.pdf) {
+      try {
+        const pdf = await printStudyPdf({
+          html,
+          meta,
+          studyFileName: studyPath,
+          studySource: product.run.study.source,
+          resultsJson,
+          ...(sealed ? { sealJson: sealed.seal } : {}),
+          htmlFileName: basename(paths.html),
+        });
+        pending.write(basename(paths.pdf), pdf);
+      } catch (error) {
+        // A missing browser costs the PDF only: the rest of the run is still shown.
+        if (!(error instanceof StudyFailure)) throw error;
+        pdfFailure = error;
+      }
+    }
+    superseded = pending.publish(previous, previousSealed);
+  } catch (error) {
+    pending.abandon();
+    throw error;
+  }
   const criteria = product.results.criteria;
   const failed = criteria.filter((criterion) => !criterion.passed).length;
   if (superseded) terminal.say(`the earlier sealed report was moved to ${superseded}`);
@@ -88,19 +119,7 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   terminal.say(`results: ${paths.results}`);
   if (sealed) terminal.say(`seal: ${paths.seal}`);
   terminal.say(`criteria: ${criteriaStatus(failed, criteria.length)}`);
-  if (options.pdf || meta.report.pdf) {
-    // After the HTML is safely written: a missing browser costs the PDF only.
-    const pdf = await printStudyPdf({
-      html: files[0]!.content as string,
-      meta,
-      studyFileName: studyPath,
-      studySource: product.run.study.source,
-      resultsJson: files[1]!.content as string,
-      ...(sealed ? { sealJson: sealed.seal } : {}),
-      htmlFileName: basename(paths.html),
-    });
-    writeFilesAtomically([{ path: paths.pdf, content: pdf }]);
-    terminal.say(`pdf: ${paths.pdf}`);
-  }
+  if (pdfFailure) throw pdfFailure;
+  if (options.pdf || meta.report.pdf) terminal.say(`pdf: ${paths.pdf}`);
   return 0;
 }

@@ -1,12 +1,33 @@
-// The checker's procedure on a sealed report: signature, unchanged body, matching source, re-run, verdict.
-import { createHash } from 'node:crypto';
+// The checker's procedure on a sealed report: signature, unchanged report, source, re-run, re-rendered body, engineer, verdict.
+import type { RunProduct } from '../pipeline.ts';
 import type { ResultsDocument } from '../report/studyRun.ts';
+import type { CalcBlock, Person } from '../study/model.ts';
 import { compareResults, type ResultComparison } from './compare.ts';
 import { checkRecordSchema, verifyCheckRecord, type CheckRecord, type CheckStep } from './checkRecord.ts';
+import { sha256Hex } from './digest.ts';
 import type { PublicIdentity } from './keys.ts';
 import { verifyEnvelope, type SealEnvelope, type SealManifest } from './manifest.ts';
 import { describeSigner } from './trust.ts';
-import { readSealedHtml, reportBodySha256, sealedReportHtml } from './sealedReport.ts';
+import { readSealedHtml, reportBody, sealedReportHtml } from './sealedReport.ts';
+
+/** The versions and lock-file digest a report records: the sealed ones, or this machine's. */
+export interface RunEnvironment {
+  kvarbookVersion: string;
+  nodeVersion: string;
+  lockfileSha256: string;
+}
+
+export interface RerunRequest {
+  source: string;
+  /** The file name the sealed report shows; the re-run renders under the same name. */
+  studyFile: string;
+  overrides: { name: string; text: string }[];
+  /**
+   * The sealed environment, so that the re-rendered provenance reads as the sealed one does; the
+   * calculation itself runs on this machine (`CheckRequest.environment`).
+   */
+  environment: RunEnvironment;
+}
 
 export interface CheckRequest {
   html: string;
@@ -15,8 +36,24 @@ export interface CheckRequest {
   sourceOrigin: string;
   trusted: readonly PublicIdentity[];
   defaultRelativeTolerance: number;
-  /** Runs the study again with the sealed input overrides; injected so this stage stays free of processes. */
-  rerun: (source: string, overrides: { name: string; text: string }[]) => Promise<ResultsDocument>;
+  /** This machine's kvarbook, Node.js and lock file: a difference from the sealed ones is said, not judged. */
+  environment: RunEnvironment;
+  /** Runs the study again; injected so this stage stays free of processes. A type-checked run, as sealing requires. */
+  rerun: (request: RerunRequest) => Promise<RunProduct>;
+}
+
+/** A calculation block the report shows without its code: its study lines, fences included. */
+export interface HiddenBlock {
+  fromLine: number;
+  toLine: number;
+}
+
+/** Where the re-rendered report body first differs from the one in hand. */
+export interface BodyDifference {
+  /** 1-based line of the report body: the report file without its seal section. */
+  line: number;
+  sealed: string;
+  rerun: string;
 }
 
 export interface CheckOutcome {
@@ -26,16 +63,21 @@ export interface CheckOutcome {
   envelope: SealEnvelope | null;
   checks: CheckRecord[];
   comparison: ResultComparison | null;
+  /** Which study and revision the seal is for; null when no seal could be read. */
+  study: { id: string; revision: string; title: string } | null;
+  /** From the re-run: how many calculation blocks there are, and which keep their code out of the report. */
+  blocks: { total: number; hidden: HiddenBlock[] } | null;
+  bodyDifference: BodyDifference | null;
+  /** The re-run itself, for steps the edge adds (the PDF); not part of any record. */
+  rerun: RunProduct | null;
 }
-
-const sha256 = (text: string) => createHash('sha256').update(text, 'utf8').digest('hex');
 
 export async function checkSealedReport(request: CheckRequest): Promise<CheckOutcome> {
   const steps: CheckStep[] = [];
   const reading = readSealedHtml(request.html);
   if (!reading.ok) {
     steps.push({ name: 'seal', passed: false, detail: reading.problem });
-    return { verdict: 'failed', steps, signer: null, envelope: null, checks: [], comparison: null };
+    return { verdict: 'failed', steps, signer: null, envelope: null, checks: [], comparison: null, study: null, blocks: null, bodyDifference: null, rerun: null };
   }
   const { parts } = reading.contents;
 
@@ -52,10 +94,10 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
       : `the signature does not hold: ${verification.problems.join('; ') || 'the signed manifest was changed'}`,
   });
 
-  // 2. The report body is the one that was sealed, and the seal section itself is untouched.
+  // 2. The report in hand is the one that was sealed, and the seal section itself is untouched.
   const checks: CheckRecord[] = [];
   if (manifest && envelope) {
-    const bodyMatches = reportBodySha256(parts) === manifest.reportBodySha256;
+    const bodyMatches = sha256Hex(reportBody(parts)) === manifest.reportBodySha256;
     for (const raw of reading.contents.checks) {
       const parsed = checkRecordSchema.safeParse(raw);
       if (parsed.success) checks.push(parsed.data);
@@ -75,7 +117,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
   }
 
   // 3. The study source is the one that was sealed.
-  const sourceMatches = manifest !== null && request.source !== undefined && sha256(request.source) === manifest.studySourceSha256;
+  const sourceMatches = manifest !== null && request.source !== undefined && sha256Hex(request.source) === manifest.studySourceSha256;
   steps.push({
     name: 'study source',
     passed: sourceMatches,
@@ -89,18 +131,20 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
 
   // 4. Re-run, and compare every named result and criterion.
   let comparison: ResultComparison | null = null;
+  let rerun: RunProduct | null = null;
   if (manifest && request.source !== undefined && sourceMatches) {
     try {
-      const rerun = await request.rerun(request.source, overridesOf(manifest));
-      comparison = compareResults(sealedFigures(manifest), rerunFigures(rerun), { defaultRelativeTolerance: request.defaultRelativeTolerance });
+      rerun = await request.rerun({ source: request.source, studyFile: manifest.studyFile, overrides: overridesOf(manifest), environment: sealedEnvironment(manifest) });
+      comparison = compareResults(sealedFigures(manifest), rerunFigures(rerun.results), { defaultRelativeTolerance: request.defaultRelativeTolerance });
       const problems = comparison.mismatches.length + comparison.missing.length + comparison.extra.length;
       steps.push({
         name: 're-run',
         passed: problems === 0,
-        detail:
+        detail: `${
           problems === 0
-            ? `all ${comparison.matched} sealed figures reproduced`
-            : `${comparison.mismatches.length} figures differ, ${comparison.missing.length} missing, ${comparison.extra.length} not sealed`,
+            ? `${comparison.matched === 1 ? 'the one sealed figure' : `all ${comparison.matched} sealed figures`} reproduced`
+            : `${comparison.mismatches.length} figures differ, ${comparison.missing.length} missing, ${comparison.extra.length} not sealed`
+        }${environmentNote(manifest, request.environment)}`,
       });
     } catch (error) {
       steps.push({ name: 're-run', passed: false, detail: `the study did not run: ${(error as Error).message}` });
@@ -108,6 +152,27 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
   } else {
     steps.push({ name: 're-run', passed: false, detail: 'not attempted: the sealed source is not available' });
   }
+
+  // 5. The body the study renders is the body that was sealed: runs are byte-identical, so any
+  //    difference is an edit the figures alone would not show (a verdict, a caption, a sentence).
+  let bodyDifference: BodyDifference | null = null;
+  if (manifest && rerun) {
+    const rendered = reportBody(rerun.report);
+    const passed = sha256Hex(rendered) === manifest.reportBodySha256;
+    if (!passed) bodyDifference = firstDifference(reportBody(parts), rendered);
+    steps.push({
+      name: 'report body',
+      passed,
+      detail: passed
+        ? 'the re-run renders the sealed report body byte for byte'
+        : `the re-run renders a different report body than the one sealed${bodyDifference ? `, first at line ${bodyDifference.line} of the body` : ''}: the sealed report says something the study does not`,
+    });
+  } else {
+    steps.push({ name: 'report body', passed: false, detail: 'not compared: the study did not re-run' });
+  }
+
+  // 6. The seal is by the engineer the study names, not by some other trusted key.
+  steps.push(engineerStep(verification.signer, rerun?.results.study.engineer));
 
   // Counter-signatures already on the report, if any.
   if (envelope && checks.length > 0) {
@@ -119,8 +184,80 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
     });
   }
 
-  // 5. The verdict.
-  return { verdict: steps.every((step) => step.passed) ? 'verified' : 'failed', steps, signer: verification.signer, envelope, checks, comparison };
+  return {
+    verdict: verdictOf(steps),
+    steps,
+    signer: verification.signer,
+    envelope,
+    checks,
+    comparison,
+    study: manifest ? { id: manifest.studyId, revision: manifest.revision, title: manifest.title } : null,
+    blocks: rerun ? { total: rerun.run.study.blocks.length, hidden: hiddenBlocks(rerun.run.study.blocks) } : null,
+    bodyDifference,
+    rerun,
+  };
+}
+
+/** A step the edge adds after the procedure (the PDF as printed); the verdict follows every step. */
+export function withStep(outcome: CheckOutcome, step: CheckStep): CheckOutcome {
+  const steps = [...outcome.steps, step];
+  return { ...outcome, steps, verdict: verdictOf(steps) };
+}
+
+function verdictOf(steps: readonly CheckStep[]): 'verified' | 'failed' {
+  return steps.every((step) => step.passed) ? 'verified' : 'failed';
+}
+
+function engineerStep(signer: PublicIdentity | null, engineer: Person | undefined): CheckStep {
+  if (signer === null) return { name: 'engineer', passed: false, detail: 'not compared: the seal names no readable signer' };
+  if (engineer === undefined) return { name: 'engineer', passed: false, detail: 'not compared: the study did not re-run, so the engineer it names is not known' };
+  const named = `${engineer.name}, licence ${engineer.licence ?? '(none given)'} (${engineer.jurisdiction ?? 'no jurisdiction given'})`;
+  const same = signer.name === engineer.name && signer.licence === engineer.licence && signer.jurisdiction === engineer.jurisdiction;
+  return same
+    ? { name: 'engineer', passed: true, detail: `the seal is by ${named}, the engineer the study names` }
+    : { name: 'engineer', passed: false, detail: `the seal is by ${describeSigner(signer)}, but the study names ${named}` };
+}
+
+/** Study lines of every block whose code the report leaves out, opening to closing fence. */
+export function hiddenBlocks(blocks: readonly CalcBlock[]): HiddenBlock[] {
+  return blocks
+    .filter((block) => block.options.hideCode)
+    .map((block) => {
+      const codeLines = block.code === '' ? 0 : block.code.split('\n').length - (block.code.endsWith('\n') ? 1 : 0);
+      return { fromLine: block.fenceLine, toLine: block.firstCodeLine + codeLines };
+    });
+}
+
+function firstDifference(sealed: string, rerun: string): BodyDifference | null {
+  let index = 0;
+  while (index < sealed.length && index < rerun.length && sealed[index] === rerun[index]) index += 1;
+  if (index === sealed.length && index === rerun.length) return null;
+  const lineStart = sealed.lastIndexOf('\n', index - 1) + 1;
+  const lineOf = (text: string) => {
+    const end = text.indexOf('\n', index);
+    return excerpt(text.slice(lineStart, end < 0 ? undefined : end), index - lineStart);
+  };
+  return { line: sealed.slice(0, lineStart).split('\n').length, sealed: lineOf(sealed), rerun: lineOf(rerun) };
+}
+
+/** At most 160 characters of a line, around the column where it differs. */
+function excerpt(line: string, column: number): string {
+  if (line.length <= 160) return line;
+  const from = Math.max(0, column - 60);
+  return `${from > 0 ? '…' : ''}${line.slice(from, from + 160)}${from + 160 < line.length ? '…' : ''}`;
+}
+
+function sealedEnvironment(manifest: SealManifest): RunEnvironment {
+  return { kvarbookVersion: manifest.kvarbookVersion, nodeVersion: manifest.nodeVersion, lockfileSha256: manifest.lockfileSha256 };
+}
+
+function environmentNote(manifest: SealManifest, here: RunEnvironment): string {
+  const differences = [
+    manifest.kvarbookVersion !== here.kvarbookVersion ? `kvarbook ${here.kvarbookVersion} (sealed with ${manifest.kvarbookVersion})` : '',
+    manifest.nodeVersion !== here.nodeVersion ? `Node.js ${here.nodeVersion} (sealed with ${manifest.nodeVersion})` : '',
+    manifest.lockfileSha256 !== here.lockfileSha256 ? 'a different package-lock.json' : '',
+  ].filter(Boolean);
+  return differences.length ? `; re-run here with ${differences.join(', ')}` : '';
 }
 
 function overridesOf(manifest: SealManifest): { name: string; text: string }[] {

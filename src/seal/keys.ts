@@ -4,6 +4,7 @@ import { z } from 'zod';
 import { SealError } from './errors.ts';
 import { sha256Hex } from './digest.ts';
 import { describeIssues } from './shapes.ts';
+import { KeyFileCostRefused, KeyFileDecryptFailed, decryptScryptKeyFile, encryptPrivateKey, type ScryptCost } from './keyFile.ts';
 
 export const IDENTITY_FORMAT = 'kvarbook-identity/1';
 
@@ -43,11 +44,12 @@ export interface SignerDetails {
 
 export interface NewSigningKey {
   identity: PublicIdentity;
-  /** PKCS #8, encrypted with AES-256-CBC under a key derived from the passphrase (PBES2/PBKDF2). */
+  /** PKCS #8, encrypted with AES-256-CBC under a key derived from the passphrase with scrypt (PBES2). */
   encryptedPrivateKeyPem: string;
 }
 
-export function createSigningKey(request: SignerDetails & { passphrase: string }): NewSigningKey {
+/** `scrypt` is for tests that make many keys; every key kvarbook itself makes uses `KEY_FILE_SCRYPT`. */
+export function createSigningKey(request: SignerDetails & { passphrase: string; scrypt?: ScryptCost }): NewSigningKey {
   const details = validateSignerDetails(request);
   const passphraseCharacters = [...request.passphrase].length;
   if (passphraseCharacters < MIN_PASSPHRASE_CHARACTERS) {
@@ -61,12 +63,7 @@ export function createSigningKey(request: SignerDetails & { passphrase: string }
     });
   }
   const { publicKey, privateKey } = generateKeyPairSync('ed25519');
-  const encryptedPrivateKeyPem = privateKey.export({
-    type: 'pkcs8',
-    format: 'pem',
-    cipher: 'aes-256-cbc',
-    passphrase: request.passphrase,
-  }) as string;
+  const encryptedPrivateKeyPem = encryptPrivateKey(privateKey, request.passphrase, request.scrypt);
   const identity: PublicIdentity = {
     format: IDENTITY_FORMAT,
     ...details,
@@ -91,21 +88,21 @@ export function unlockSigningKey(encryptedPrivateKeyPem: string, passphrase: str
   }
   let privateKey: KeyObject;
   try {
-    privateKey = createPrivateKey({ key: encryptedPrivateKeyPem, format: 'pem', passphrase });
+    const der = Buffer.from(ENCRYPTED_PEM_PATTERN.exec(encryptedPrivateKeyPem)![1]!.replace(/\s+/g, ''), 'base64');
+    const reading = decryptScryptKeyFile(der, passphrase);
+    // Files of earlier kvarbook versions are PBKDF2; OpenSSL reads those.
+    privateKey = reading.kind === 'scrypt' ? reading.privateKey : createPrivateKey({ key: encryptedPrivateKeyPem, format: 'pem', passphrase });
   } catch (cause) {
-    // With CBC padding about 1 wrong passphrase in 256 decrypts "cleanly" and then fails to decode
-    // (ERR_OSSL_UNSUPPORTED), so every OpenSSL failure past the PEM check is reported as the passphrase.
-    if (isOpenSslError(cause)) {
+    if (cause instanceof KeyFileDecryptFailed) throw wrongPassphrase(cause);
+    if (cause instanceof KeyFileCostRefused) {
       throw new SealError(
-        {
-          code: 'wrong-passphrase',
-          message: 'The passphrase does not unlock this signing key.',
-          quantity: 'passphrase',
-          hint: 'Check the passphrase (it is case-sensitive). If you are sure of it, the key file may be damaged: restore it from your backup.',
-        },
+        { code: 'malformed-key', message: `The key file cannot be unlocked safely: ${cause.message}.`, quantity: 'private key file', hint: 'A kvarbook key file asks for 128 MiB; this one was not written by kvarbook. Restore it from your backup.' },
         { cause },
       );
     }
+    // With CBC padding about 1 wrong passphrase in 256 decrypts "cleanly" and then fails to decode
+    // (ERR_OSSL_UNSUPPORTED), so every OpenSSL failure past the PEM check is reported as the passphrase.
+    if (isOpenSslError(cause)) throw wrongPassphrase(cause);
     throw new SealError(
       {
         code: 'malformed-key',
@@ -127,6 +124,18 @@ export function unlockSigningKey(encryptedPrivateKeyPem: string, passphrase: str
     });
   }
   return privateKey;
+}
+
+function wrongPassphrase(cause: unknown): SealError {
+  return new SealError(
+    {
+      code: 'wrong-passphrase',
+      message: 'The passphrase does not unlock this signing key.',
+      quantity: 'passphrase',
+      hint: 'Check the passphrase (it is case-sensitive). If you are sure of it, the key file may be damaged: restore it from your backup.',
+    },
+    { cause },
+  );
 }
 
 /** SHA-256 of the SubjectPublicKeyInfo DER, as 16 colon-separated groups of 4 hex digits. */

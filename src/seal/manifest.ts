@@ -8,7 +8,7 @@ import { publicIdentitySchema, type PublicIdentity } from './keys.ts';
 import { describeIssues, formatPath } from './shapes.ts';
 import { checkSignedParts, signatureBase64Schema, signCanonical, type SignatureCheck } from './signature.ts';
 
-export const MANIFEST_FORMAT = 'kvarbook-seal-manifest/1';
+export const MANIFEST_FORMAT = 'kvarbook-seal-manifest/2';
 export const ENVELOPE_FORMAT = 'kvarbook-seal/1';
 
 const sha256Hex = z.string().regex(SHA256_HEX_PATTERN, 'must be a SHA-256 digest in 64 lowercase hex digits');
@@ -44,6 +44,13 @@ const subjectFields = {
   revision: label,
   studyDate: z.iso.date('must be a calendar date written YYYY-MM-DD'),
   title: label,
+  /** The study file's name as the report shows it: a checker re-renders the report under this name. */
+  studyFile: z
+    .string()
+    .min(1, 'must not be empty')
+    .max(255, 'must be at most 255 characters')
+    .regex(/^[^/\\\u0000]+$/, 'must be a file name without a folder')
+    .refine((name) => name !== '.' && name !== '..', 'must be a file name without a folder'),
   studySourceSha256: sha256Hex,
   effectiveInputs: z.record(label, effectiveInputSchema),
   results: z.array(sealedResultSchema).superRefine(rejectDuplicateNames),

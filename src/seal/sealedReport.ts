@@ -28,6 +28,7 @@ export function sealSubject(results: ResultsDocument, bodySha256: string): SealS
     revision: String(results.study.revision),
     studyDate: results.study.date,
     title: results.study.title,
+    studyFile: results.provenance.studyFile,
     studySourceSha256: results.provenance.studySourceSha256,
     effectiveInputs,
     results: results.results.map((result) => ({

@@ -10,6 +10,8 @@ export interface TrustFileProblem {
 }
 
 export interface TrustedIdentities {
+  /** Whether the folder itself could be listed; a checker must be told plainly when it could not. */
+  folder: 'read' | 'missing' | 'unreadable';
   identities: PublicIdentity[];
   /** Files that were skipped, each with why; a bad file never stops the good ones from loading. */
   problems: TrustFileProblem[];
@@ -24,8 +26,9 @@ export function loadTrustedIdentities(dir: string): TrustedIdentities {
       .map((entry) => entry.name)
       .sort();
   } catch (cause) {
-    const reason = (cause as NodeJS.ErrnoException).code === 'ENOENT' ? 'the trust folder does not exist' : `the trust folder cannot be read (${String(cause)})`;
-    return { identities: [], problems: [{ file: dir, problems: [reason] }] };
+    const missing = (cause as NodeJS.ErrnoException).code === 'ENOENT';
+    const reason = missing ? 'the trust folder does not exist' : `the trust folder cannot be read (${String(cause)})`;
+    return { folder: missing ? 'missing' : 'unreadable', identities: [], problems: [{ file: dir, problems: [reason] }] };
   }
   const identities: PublicIdentity[] = [];
   const problems: TrustFileProblem[] = [];
@@ -34,7 +37,7 @@ export function loadTrustedIdentities(dir: string): TrustedIdentities {
     const fileProblems = readIdentityFile(file, identities);
     if (fileProblems.length > 0) problems.push({ file, problems: fileProblems });
   }
-  return { identities, problems };
+  return { folder: 'read', identities, problems };
 }
 
 function readIdentityFile(file: string, identities: PublicIdentity[]): string[] {

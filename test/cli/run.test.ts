@@ -46,7 +46,7 @@ describe('kvarbook on the command line', () => {
     expect(stderr).toContain('deliberate');
     expect(stderr).not.toMatch(/\n\s+at /);
     expect(readFileSync(join(folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
-    expect(readdirSync(join(folder, 'build')).sort()).toEqual(['TEST-1-r1.html', 'TEST-1-r1.results.json']);
+    expect(readdirSync(join(folder, 'build')).sort()).toEqual(['.kvarbook', 'TEST-1-r1.html', 'TEST-1-r1.results.json']);
   });
 
   it('says in one line how to install Chromium when --pdf cannot find it, and still writes the HTML', () => {

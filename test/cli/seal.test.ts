@@ -33,7 +33,7 @@ describe('sealing and checking from the command line', () => {
   });
 
   it('writes the sealed report, its seal file and a PDF, and the check verifies them', () => {
-    expect(readdirSync(join(space.folder, 'build')).sort()).toEqual(['TEST-1-r1.html', 'TEST-1-r1.pdf', 'TEST-1-r1.results.json', 'TEST-1-r1.seal.json']);
+    expect(readdirSync(join(space.folder, 'build')).sort()).toEqual(['.kvarbook', 'TEST-1-r1.html', 'TEST-1-r1.pdf', 'TEST-1-r1.results.json', 'TEST-1-r1.seal.json']);
     const check = kvarbook(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
     expect(check.stdout).toContain('verdict: VERIFIED');
     expect(check.status).toBe(0);
@@ -118,7 +118,7 @@ describe('sealing and checking from the command line', () => {
     const keysFolder = join(space.folder, 'home', 'keys');
     const keyFile = readdirSync(keysFolder).find((name) => name.endsWith('.key.pem'))!;
     const pemLines = readFileSync(join(keysFolder, keyFile), 'utf8').split('\n').filter((line) => line && !line.startsWith('-----'));
-    const outputs = readdirSync(join(space.folder, 'build')).filter((name) => existsSync(join(space.folder, 'build', name)) && !name.startsWith('superseded'));
+    const outputs = readdirSync(join(space.folder, 'build')).filter((name) => name.startsWith('TEST-1-r1.') && existsSync(join(space.folder, 'build', name)));
     for (const name of outputs) {
       const content = readFileSync(join(space.folder, 'build', name)).toString('latin1');
       expect(content).not.toMatch(/PRIVATE KEY/);

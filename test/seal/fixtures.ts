@@ -7,9 +7,16 @@ import { join } from 'node:path';
 import type { KeyObject } from 'node:crypto';
 import { createSigningKey, unlockSigningKey, type NewSigningKey, type PublicIdentity } from '../../src/seal/keys.ts';
 import type { SealSubject } from '../../src/seal/manifest.ts';
+import type { ScryptCost } from '../../src/seal/keyFile.ts';
 
 export const ENGINEER_PASSPHRASE = 'copper kestrel under a tin moon';
 export const CHECKER_PASSPHRASE = 'seven lanterns over harrow ford';
+
+/**
+ * A cheaper scrypt for tests that make many keys (about a millisecond instead of a second); the
+ * default, KEY_FILE_SCRYPT, is what kvarbook writes and is tested on its own.
+ */
+export const TEST_KEY_SCRYPT: ScryptCost = { N: 2 ** 10, r: 8, p: 1 };
 
 export interface TestSigner extends NewSigningKey {
   privateKey: KeyObject;
@@ -17,7 +24,7 @@ export interface TestSigner extends NewSigningKey {
 }
 
 export function makeSigner(name: string, licence: string, passphrase = ENGINEER_PASSPHRASE): TestSigner {
-  const created = createSigningKey({ name, licence, jurisdiction: 'Province of Vestmark', passphrase });
+  const created = createSigningKey({ name, licence, jurisdiction: 'Province of Vestmark', passphrase, scrypt: TEST_KEY_SCRYPT });
   return { ...created, passphrase, privateKey: unlockSigningKey(created.encryptedPrivateKeyPem, passphrase) };
 }
 
@@ -47,6 +54,7 @@ export function sampleSubject(): SealSubject {
     revision: 'B',
     studyDate: '2025-03-14',
     title: 'Harrowgate–Lindqvist 400 kV line: shunt reactor sizing at light load',
+    studyFile: 'harrowgate-lindqvist.study.md',
     studySourceSha256: digestOf('a'),
     effectiveInputs: {
       lineLengthKm: { value: 310, unit: 'km', source: 'given' },

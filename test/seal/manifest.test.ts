@@ -167,7 +167,7 @@ describe('signManifest and verifyEnvelope', () => {
 
 describe('buildManifest', () => {
   it('stamps the manifest format and keeps the subject as given', () => {
-    expect(buildManifest(sampleSubject())).toEqual({ format: 'kvarbook-seal-manifest/1', ...sampleSubject() });
+    expect(buildManifest(sampleSubject())).toEqual({ format: 'kvarbook-seal-manifest/2', ...sampleSubject() });
   });
 
   it('drops optional members given as undefined, so the manifest stays signable', () => {

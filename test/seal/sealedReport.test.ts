@@ -6,8 +6,10 @@ import { createSigningKey, unlockSigningKey, type PublicIdentity } from '../../s
 import { buildManifest, signManifest } from '../../src/seal/manifest.ts';
 import { reportBodySha256, sealSubject, sealedReportHtml } from '../../src/seal/sealedReport.ts';
 import { embeddedStudySource } from '../../src/report/embed.ts';
-import type { ResultsDocument } from '../../src/report/studyRun.ts';
-import { runSource, studyText } from '../support/studies.ts';
+import type { RunProduct } from '../../src/pipeline.ts';
+import { runStudy } from '../../src/pipeline.ts';
+import { TEST_ENVIRONMENT, runSource, studyText } from '../support/studies.ts';
+import { TEST_KEY_SCRYPT } from './fixtures.ts';
 
 const PASSPHRASE = 'a long test passphrase';
 const source = studyText({
@@ -16,8 +18,9 @@ const source = studyText({
 });
 
 async function sealedFixture() {
-  const product = await runSource(source);
-  const engineer = createSigningKey({ name: 'Test Engineer', licence: 'T-0', jurisdiction: 'Testland', passphrase: PASSPHRASE });
+  // Sealing requires the type check, and check re-runs with it: the provenance records it.
+  const product = await runSource(source, { typecheck: true });
+  const engineer = createSigningKey({ name: 'Test Engineer', licence: 'T-0', jurisdiction: 'Testland', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
   const privateKey = unlockSigningKey(engineer.encryptedPrivateKeyPem, PASSPHRASE);
   const envelope = signManifest(buildManifest(sealSubject(product.results, reportBodySha256(product.report))), privateKey, engineer.identity);
   return { product, engineer, envelope, html: sealedReportHtml(product.report, envelope) };
@@ -32,13 +35,14 @@ function request(overrides: Partial<CheckRequest> = {}, trusted: PublicIdentity[
     sourceOrigin: 'carried in the report',
     trusted,
     defaultRelativeTolerance: 1e-9,
-    rerun: async (text, inputOverrides) => (await runSource(text, { overrides: inputOverrides })).results,
+    environment: TEST_ENVIRONMENT,
+    rerun: (rerun) => runStudy({ file: rerun.studyFile, source: rerun.source, overrides: rerun.overrides, typecheck: true, environment: rerun.environment }),
     ...overrides,
   };
 }
 
-/** A re-run that returns the sealed figures without running anything: for tests about the other steps. */
-const sameFigures = async (): Promise<ResultsDocument> => fixture.product.results;
+/** A re-run that returns the sealed run without running anything: for tests about the other steps. */
+const sameFigures = async (): Promise<RunProduct> => fixture.product;
 
 describe('checking a sealed report', () => {
   it('verifies an untouched report with a trusted signer, re-running every figure', async () => {
@@ -48,12 +52,14 @@ describe('checking a sealed report', () => {
       ['report unchanged', true],
       ['study source', true],
       ['re-run', true],
+      ['report body', true],
+      ['engineer', true],
     ]);
     expect(outcome.verdict).toBe('verified');
   });
 
   it('fails when the signer is not in the trust folder, saying the signature itself is valid', async () => {
-    const stranger = createSigningKey({ name: 'Someone Else', licence: 'X-1', jurisdiction: 'Elsewhere', passphrase: PASSPHRASE });
+    const stranger = createSigningKey({ name: 'Someone Else', licence: 'X-1', jurisdiction: 'Elsewhere', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
     const outcome = await checkSealedReport(request({ rerun: sameFigures }, [stranger.identity]));
     expect(outcome.verdict).toBe('failed');
     expect(outcome.steps[0]?.detail).toContain('valid signature');
@@ -88,9 +94,9 @@ describe('checking a sealed report', () => {
   });
 
   it('reports by name a figure that a changed calculation moves, with both values', async () => {
-    const moved: ResultsDocument = {
-      ...fixture.product.results,
-      results: fixture.product.results.results.map((result) => (result.name === 'Charging' ? { ...result, value: 128.5 } : result)),
+    const moved: RunProduct = {
+      ...fixture.product,
+      results: { ...fixture.product.results, results: fixture.product.results.results.map((result) => (result.name === 'Charging' ? { ...result, value: 128.5 } : result)) },
     };
     const outcome = await checkSealedReport(request({ rerun: async () => moved }));
     expect(outcome.verdict).toBe('failed');
@@ -100,11 +106,39 @@ describe('checking a sealed report', () => {
   });
 
   it('re-runs with the input overrides that were sealed', async () => {
-    const product = await runSource(source, { overrides: [{ name: 'lineLength', text: '280 km' }] });
+    const product = await runSource(source, { overrides: [{ name: 'lineLength', text: '280 km' }], typecheck: true });
     const key = unlockSigningKey(fixture.engineer.encryptedPrivateKeyPem, PASSPHRASE);
     const envelope = signManifest(buildManifest(sealSubject(product.results, reportBodySha256(product.report))), key, fixture.engineer.identity);
     const outcome = await checkSealedReport(request({ html: sealedReportHtml(product.report, envelope) }));
     expect(outcome.verdict).toBe('verified');
+  });
+
+  it('fails, saying where, when the re-run renders another report body than the sealed one', async () => {
+    const otherBody: RunProduct = { ...fixture.product, report: { ...fixture.product.report, body: fixture.product.report.body.replace('Route length', 'Route lenght') } };
+    const outcome = await checkSealedReport(request({ rerun: async () => otherBody }));
+    expect(outcome.steps.find((step) => step.name === 'report body')).toMatchObject({ passed: false });
+    expect(outcome.bodyDifference?.sealed).toContain('Route length');
+    expect(outcome.bodyDifference?.rerun).toContain('Route lenght');
+    expect(outcome.verdict).toBe('failed');
+  });
+
+  it('fails when a trusted key other than the named engineer\'s sealed the report', async () => {
+    const other = createSigningKey({ name: 'Other Engineer', licence: 'O-9', jurisdiction: 'Testland', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
+    const envelope = signManifest(buildManifest(sealSubject(fixture.product.results, reportBodySha256(fixture.product.report))), unlockSigningKey(other.encryptedPrivateKeyPem, PASSPHRASE), other.identity);
+    const outcome = await checkSealedReport(request({ html: sealedReportHtml(fixture.product.report, envelope), rerun: sameFigures }, [fixture.engineer.identity, other.identity]));
+    expect(outcome.steps.find((step) => step.name === 'signature')).toMatchObject({ passed: true });
+    expect(outcome.steps.find((step) => step.name === 'engineer')).toEqual({
+      name: 'engineer',
+      passed: false,
+      detail: 'the seal is by Other Engineer, licence O-9 (Testland), but the study names Test Engineer, licence T-0 (Testland)',
+    });
+    expect(outcome.verdict).toBe('failed');
+  });
+
+  it('names the study and revision it checked, and counts the blocks', async () => {
+    const outcome = await checkSealedReport(request({ rerun: sameFigures }));
+    expect(outcome.study).toEqual({ id: 'TEST-1', revision: '1', title: 'Test study' });
+    expect(outcome.blocks).toEqual({ total: 1, hidden: [] });
   });
 
   it('puts no private key material in the sealed report', () => {

@@ -1,8 +1,9 @@
 // Prints a self-contained HTML report to a reproducible PDF with the system Chromium, offline.
-import { mkdtemp, rm } from 'node:fs/promises';
+import { mkdtemp, readdir, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import puppeteer, { type Browser } from 'puppeteer-core';
+import { processIsRunning } from '../../output/liveProcess.ts';
 import { PdfError, messageOf } from './errors.ts';
 import { stampPdf, type PdfAttachment, type PdfMetadata } from './stamp.ts';
 import { pageLayout, footerTemplate, headerTemplate } from './layout.ts';
@@ -34,6 +35,9 @@ export const chromiumFlags = [
 ] as const;
 
 const defaultTimeoutMs = 60_000;
+/** Scratch profiles are named after the process that made them, so a later print can tell orphans. */
+const PROFILE_PREFIX = 'kvarbook-chromium-';
+const ORPHAN_PATTERN = new RegExp(`^${PROFILE_PREFIX}(\\d+)-[A-Za-z0-9]+$`);
 const closeGraceMs = 5_000;
 
 /**
@@ -42,7 +46,8 @@ const closeGraceMs = 5_000;
  */
 export async function printReportPdf(options: PrintReportOptions): Promise<Uint8Array> {
   const timeoutMs = checkOptions(options);
-  const profileDirectory = await mkdtemp(join(tmpdir(), 'kvarbook-chromium-'));
+  await removeOrphanedProfiles();
+  const profileDirectory = await mkdtemp(join(tmpdir(), `${PROFILE_PREFIX}${process.pid}-`));
   const session: ChromiumSession = {};
   let timer: NodeJS.Timeout | undefined;
   const deadline = new Promise<never>((_, reject) => {
@@ -61,7 +66,7 @@ export async function printReportPdf(options: PrintReportOptions): Promise<Uint8
     const printed = await Promise.race([printWithChromium(options, timeoutMs, profileDirectory, session), deadline]);
     // Header text, paper and the Chromium build shape the bytes too, so they join the identity.
     const identityText = JSON.stringify([options.html, options.headerText, options.paper, session.browserVersion ?? '']);
-    return await stampPdf(printed, { ...options, identityText });
+    return await stampPdf(printed, { ...options, identityText, printedBy: session.browserVersion ?? 'Chromium' });
   } finally {
     clearTimeout(timer);
     // A launch still in flight when the deadline hit settles within its own timeout; its browser
@@ -94,6 +99,7 @@ async function printWithChromium(
     handleSIGINT: false,
     handleSIGTERM: false,
     handleSIGHUP: false,
+    env: chromiumEnvironment(profileDirectory),
   });
   let browser: Browser;
   try {
@@ -146,6 +152,36 @@ async function printWithChromium(
   }
 }
 
+/**
+ * Chromium gets a minimal environment: no passphrase or token of the user's, its home inside the
+ * profile that is removed afterwards, and a fixed locale and zone so that the same HTML prints to
+ * the same bytes for the engineer and for the checker. Its scratch space stays the system's: it puts
+ * a Unix socket there, whose path may not be longer than 107 bytes.
+ */
+function chromiumEnvironment(profileDirectory: string): NodeJS.ProcessEnv {
+  return { PATH: process.env.PATH ?? '/usr/bin:/bin', HOME: profileDirectory, TMPDIR: tmpdir(), LANG: 'C.UTF-8', TZ: 'UTC' };
+}
+
+/**
+ * A print whose process was killed (kill -9, a power cut) never reached its clean-up; its profile is
+ * removed by the next print once the process that made it is gone. Chromium itself exits when the
+ * pipe to that process closes.
+ */
+async function removeOrphanedProfiles(): Promise<void> {
+  let names: string[];
+  try {
+    names = await readdir(tmpdir());
+  } catch {
+    return;
+  }
+  for (const name of names) {
+    const owner = ORPHAN_PATTERN.exec(name)?.[1];
+    if (owner !== undefined && Number(owner) !== process.pid && !processIsRunning(Number(owner))) {
+      await rm(join(tmpdir(), name), { recursive: true, force: true, maxRetries: 3 });
+    }
+  }
+}
+
 /** Closes the browser politely; if it does not go within a grace period, kills its process group. */
 async function shutDown(browser: Browser | undefined): Promise<void> {
   if (browser === undefined) return;
@@ -154,7 +190,12 @@ async function shutDown(browser: Browser | undefined): Promise<void> {
     () => true,
     () => false,
   );
-  const inTime = await Promise.race([closed, new Promise<false>((resolve) => setTimeout(() => resolve(false), closeGraceMs))]);
+  let graceTimer: NodeJS.Timeout | undefined;
+  const graceOver = new Promise<false>((resolve) => {
+    graceTimer = setTimeout(() => resolve(false), closeGraceMs);
+  });
+  // A grace timer left pending after a clean close would hold the process open for its full length.
+  const inTime = await Promise.race([closed, graceOver]).finally(() => clearTimeout(graceTimer));
   const pid = browserProcess?.pid;
   if (pid === undefined) return;
   // puppeteer starts Chromium detached, so the browser leads its own process group and the negative

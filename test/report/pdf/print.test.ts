@@ -1,6 +1,6 @@
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawn, spawnSync } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
-import { mkdirSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
@@ -14,15 +14,15 @@ import { printReportPdf, type PrintReportOptions } from '../../../src/report/pdf
 
 const scratch = mkdtempSync(join(tmpdir(), 'kvarbook-print-test-'));
 
-// Every Chromium started from this test file inherits this variable, so its processes can be told
-// apart from browsers that other test files start at the same time.
-const processMarker = `KVARBOOK_PRINT_TEST_MARKER=${randomUUID()}`;
-process.env.KVARBOOK_PRINT_TEST_MARKER = processMarker.split('=')[1];
-
-// Profile directories go to os.tmpdir(), which follows TMPDIR; a private one shows leftovers.
+// Profile directories go to os.tmpdir(), which follows TMPDIR; a private one shows leftovers. Chromium
+// and every process it starts have their HOME inside their profile, so this folder also tells this
+// file's browsers apart from those other test files start at the same time.
 const profileParent = join(scratch, 'profiles');
 mkdirSync(profileParent);
 process.env.TMPDIR = profileParent;
+// A variable of the user's that no browser may inherit.
+const userSecret = `KVARBOOK_PRINT_TEST_SECRET=${randomUUID()}`;
+process.env.KVARBOOK_PRINT_TEST_SECRET = userSecret.split('=')[1];
 
 let chromiumPath = '';
 
@@ -33,18 +33,21 @@ beforeAll(() => {
   chromiumPath = found.path;
 });
 
-function markedProcessCount(): number {
-  let count = 0;
+function browserEnvironments(): string[][] {
+  const found: string[][] = [];
   for (const entry of readdirSync('/proc')) {
     if (!/^\d+$/.test(entry)) continue;
     try {
-      if (readFileSync(`/proc/${entry}/environ`, 'latin1').split('\0').includes(processMarker)) count += 1;
+      const environment = readFileSync(`/proc/${entry}/environ`, 'latin1').split('\0');
+      if (environment.some((variable) => variable.startsWith(`HOME=${profileParent}/`))) found.push(environment);
     } catch {
       // The process ended while we looked.
     }
   }
-  return count;
+  return found;
 }
+
+const markedProcessCount = () => browserEnvironments().length;
 
 const sourceBytes = new TextEncoder().encode('---\nstudy: KB-017\n---\n# Northbrook–Saltmere 400 kV\n');
 const binaryBytes = Uint8Array.from({ length: 4096 }, (_, index) => (index * 37) % 256);
@@ -173,6 +176,31 @@ describe('printReportPdf', () => {
     // Guards the leftover checks below: a count that is always 0 would prove nothing.
     expect(markedProcessCount()).toBeGreaterThan(0);
     await printing;
+  });
+
+  it('gives Chromium and its helpers a minimal environment, none of the user’s variables', async () => {
+    const hanging = '<body><script>for (;;) {}</script></body>';
+    const printing = printReportPdf(options(hanging, { timeoutMs: 4000 })).catch(() => undefined);
+    await new Promise((resolve) => setTimeout(resolve, 2000));
+    const environments = browserEnvironments();
+    await printing;
+    expect(environments.length).toBeGreaterThan(0);
+    for (const environment of environments) expect(environment).not.toContain(userSecret);
+  });
+
+  it('removes the profile a killed print left behind, and keeps one of a print still running', async () => {
+    const gone = spawnSync(process.execPath, ['-e', '0']).pid!;
+    const running = spawn(process.execPath, ['-e', 'setTimeout(() => {}, 60000)'], { stdio: 'ignore' });
+    try {
+      const orphan = join(profileParent, `kvarbook-chromium-${gone}-Ab12Cd`);
+      const live = join(profileParent, `kvarbook-chromium-${running.pid}-Ef34Gh`);
+      for (const folder of [orphan, live]) mkdirSync(join(folder, 'Default'), { recursive: true });
+      await printReportPdf(options(shortReport, { attachments: [] }));
+      expect(readdirSync(profileParent)).toEqual([`kvarbook-chromium-${running.pid}-Ef34Gh`]);
+    } finally {
+      running.kill('SIGKILL');
+      rmSync(join(profileParent, `kvarbook-chromium-${running.pid}-Ef34Gh`), { recursive: true, force: true });
+    }
   });
 
   it('leaves no Chromium process and no profile directory behind after a print', async () => {
