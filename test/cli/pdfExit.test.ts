@@ -15,8 +15,10 @@ describe('run --pdf', () => {
     expect(run.status, run.stderr).toBe(0);
     const line = run.stderr.split('\n').find((text) => text.startsWith(PROBE_PREFIX));
     expect(line, 'the probe saw the PDF announced').toBeDefined();
-    const alive: string[] = JSON.parse(line!.slice(PROBE_PREFIX.length));
-    // Only the pipes of stdout and stderr may remain; anything else would hold the process open.
-    expect(alive.filter((resource) => resource !== 'PipeWrap')).toEqual([]);
+    const alive: { resources: string[]; holdingTimersMs: number[] } = JSON.parse(line!.slice(PROBE_PREFIX.length));
+    // Pipes may still be closing and libraries arm millisecond timers meanwhile; no helper process, no
+    // other resource, and no timer that would hold the process open for a second or more.
+    expect(alive.resources.filter((resource) => resource !== 'PipeWrap' && resource !== 'Timeout')).toEqual([]);
+    expect(alive.holdingTimersMs).toEqual([]);
   });
 });
