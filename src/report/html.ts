@@ -276,6 +276,19 @@ function provenanceList(run: StudyRun): string {
   ].join('')}</dl>`;
 }
 
+/** "12", "12 and 40", "12, 40 and 77". */
+function listed(items: readonly (string | number)[]): string {
+  return items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
+/** Where the code of hide-code blocks is, so that a reader knows there is code the report does not show. */
+export function hiddenCodeText(run: StudyRun): string {
+  const lines = run.study.blocks.filter((block) => block.options.hideCode).map((block) => block.fenceLine);
+  if (lines.length === 0) return 'none: every calculation block shows its code';
+  const count = lines.length === 1 ? '1 calculation block hides its code' : `${lines.length} calculation blocks hide their code`;
+  return `${count} (study ${lines.length === 1 ? 'line' : 'lines'} ${listed(lines)}); ${lines.length === 1 ? 'its' : 'their'} code is in the study source carried in this report`;
+}
+
 function titleBlock(run: StudyRun, failed: number, total: number): string {
   const { meta } = run.study;
   const person = (p: { name: string; licence?: string; jurisdiction?: string } | undefined) =>
@@ -291,6 +304,7 @@ function titleBlock(run: StudyRun, failed: number, total: number): string {
 <div><dt>Engineer</dt><dd>${person(meta.engineer)}</dd></div>
 <div><dt>Checker</dt><dd>${person(meta.checker)}</dd></div>
 <div><dt>Status</dt><dd class="${failed > 0 ? 'fail' : 'pass'}">${escape(status)}</dd></div>
+<div><dt>Hidden code</dt><dd>${escape(hiddenCodeText(run))}</dd></div>
 ${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escape(input.name)} = ${escape(formatQuantity(formatStated(input.value, 15), input.unit))}`).join(', ')}</dd></div>` : ''}
 </dl>
 </header>`;

@@ -4,6 +4,7 @@ import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../re
 import { DEFAULT_DIGITS, formatQuantity, formatStated } from '../../report/format.ts';
 import { UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
 import { summarise } from './summarise.ts';
+import { freezeDeep } from './harden.ts';
 
 /** A thrown block-API misuse: the message names what and the hint says how to fix it. */
 export class BlockApiError extends Error {
@@ -26,6 +27,7 @@ export class Figure {
     this.value = value;
     this.unit = unit;
     this.digits = digits;
+    Object.freeze(this);
   }
   valueOf(): ScalarValue {
     return this.value;
@@ -269,7 +271,10 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     log: (...parts: unknown[]) => emit({ kind: 'text', text: parts.map(String).join(' ') }),
   };
 
-  return Object.freeze({ inputs, result, criterion, caution, table, chart, figure, solver, charts: Object.freeze({ ...chartModule }), console });
+  // The classes of what the API returns and throws: their prototypes are reachable from every instance.
+  freezeDeep([Figure, InputValue, BlockApiError]);
+  // Deeply: the functions with their own properties, the namespaces, the inputs.
+  return freezeDeep({ inputs, result, criterion, caution, table, chart, figure, solver, charts: { ...chartModule }, console });
 }
 
 /** Every exported solver function, recorded in the calculation log when a block calls it. */
@@ -287,7 +292,8 @@ function wrapSolver(
     wrapped[name] = (...args: unknown[]) => {
       const returned = fn(...args);
       log(name, args, returned);
-      return returned;
+      // A result one block keeps is read by later ones: no block may change it for them.
+      return freezeDeep(returned);
     };
   }
   return Object.freeze(wrapped);

@@ -8,6 +8,9 @@ import * as solverModule from '../../solver/index.ts';
 import * as chartModule from '../../report/chart/builders.ts';
 import { BlockApiError, Figure, InputValue, createBlockApi } from './blockApi.ts';
 import { lockDown } from './lockDown.ts';
+import { freezeDeep, hardenContext } from './harden.ts';
+import { ChartInputError } from '../../report/chart/errors.ts';
+import { UnitProblem } from '../../study/units.ts';
 
 let context: vm.Context | undefined;
 let blockMilliseconds = 10_000;
@@ -55,8 +58,12 @@ function createContext(inputs: InputData[]): vm.Context {
   for (const [name, value] of Object.entries(api)) {
     Object.defineProperty(sandbox, name, { value, writable: false, configurable: false, enumerable: true });
   }
+  // Errors the builders and unit conversions throw reach blocks too, and with them their classes.
+  freezeDeep([ChartInputError, UnitProblem]);
   // Blocks and inline values need no code generation from strings; refusing it closes one more door.
-  return vm.createContext(sandbox, { codeGeneration: { strings: false, wasm: false } });
+  const created = vm.createContext(sandbox, { codeGeneration: { strings: false, wasm: false } });
+  hardenContext(created);
+  return created;
 }
 
 /** Names a block declares become accessors on the shared scope: visible to later blocks, constant ones locked after. */
