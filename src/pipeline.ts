@@ -8,6 +8,8 @@ import { typecheckStudy } from './execute/typecheck.ts';
 import { type ExecutionHooks, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
+import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
+import { HOST_STAGE_LIMITS } from './execute/limits.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -60,26 +62,37 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   return { run, report: renderReportParts(run, charts), results: resultsDocument(run) };
 }
 
+/** Charts are drawn by Vega in a limited worker: a specification that asks for endless work ends that worker, not the run's host. */
 async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
   const rendered: RenderedCharts = new Map();
   const problems: Diagnostic[] = [];
   const chartRecords = recordsOf(run, 'chart');
   if (chartRecords.length === 0) return rendered;
-  // Vega is large; load it only for a study that draws.
-  const { renderChartSvg } = await import('./report/chart/render.ts');
-  for (const record of chartRecords) {
-    try {
-      rendered.set(record, await renderChartSvg(record.spec));
-    } catch (error) {
+  const renderer = openLimitedWorker(new URL('./report/chart/render.ts', import.meta.url), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
+  try {
+    for (const record of chartRecords) {
       const at = record.at ?? { file: run.study.file, line: 1 };
-      problems.push({
-        code: 'chart-spec',
-        message: `chart "${record.caption}" cannot be drawn: ${(error as Error).message}`,
-        at,
-        excerpt: excerptAround(run.study.source, at.line, at.column),
-        hint: 'the specification must be valid Vega-Lite with inline data (values); see the charts.* builders',
-      });
+      try {
+        const svg = await renderer.call(record.spec);
+        if (typeof svg !== 'string') throw new Error('the chart worker answered without an SVG');
+        rendered.set(record, svg);
+      } catch (error) {
+        const limited = error instanceof WorkerLimitError;
+        problems.push({
+          code: limited ? 'chart-limit' : 'chart-spec',
+          message: `chart "${record.caption}" cannot be drawn: ${limited ? `drawing it ${(error as Error).message}` : (error as Error).message}`,
+          at,
+          excerpt: excerptAround(run.study.source, at.line, at.column),
+          hint: limited
+            ? `a chart is drawn within ${HOST_STAGE_LIMITS.chart.callSeconds} s and ${HOST_STAGE_LIMITS.chart.heapMb} MB; draw fewer points or split the chart`
+            : 'the specification must be valid Vega-Lite with inline data (values); see the charts.* builders',
+        });
+        // A worker past its limits is gone; the charts after it are not drawn.
+        if (limited) break;
+      }
     }
+  } finally {
+    await renderer.close();
   }
   if (problems.length > 0) throw new StudyFailure(problems);
   return rendered;
