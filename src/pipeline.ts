@@ -9,7 +9,7 @@ import { type ExecutionHooks, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
 import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
-import { HOST_STAGE_LIMITS } from './execute/limits.ts';
+import { HOST_STAGE_LIMITS, OUTPUT_LIMITS } from './execute/limits.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -58,8 +58,28 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   };
   // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
   const charts = await renderCharts(run);
-  // 7. Render the report and the results document.
-  return { run, report: renderReportParts(run, charts), results: resultsDocument(run) };
+  // 7. Render the report and the results document, within the size a report may have.
+  const report = renderReportParts(run, charts);
+  requireReportSize(run, report);
+  return { run, report, results: resultsDocument(run) };
+}
+
+/** The report as a whole is bounded too (prose and the source it carries count); the refusal names the block that wrote most. */
+function requireReportSize(run: StudyRun, report: ReportParts): void {
+  const bytes = Buffer.byteLength(report.head) + Buffer.byteLength(report.body);
+  if (bytes <= OUTPUT_LIMITS.reportBytes) return;
+  const sizes = run.outcome.blocks.map((block) => ({ blockIndex: block.blockIndex, characters: JSON.stringify(block.records).length }));
+  const largest = sizes.reduce((best, next) => (next.characters > best.characters ? next : best), { blockIndex: -1, characters: 0 });
+  const block = run.study.blocks.find((candidate) => candidate.index === largest.blockIndex);
+  // A block that wrote megabytes is where to look; otherwise it is the study text itself.
+  const line = block && largest.characters > 1024 * 1024 ? block.fenceLine : 1;
+  throw new StudyFailure([{
+    code: 'report-too-large',
+    message: `the report would be ${(bytes / 1024 / 1024).toFixed(1)} MB; a report may be at most ${OUTPUT_LIMITS.reportBytes / 1024 / 1024} MB${block && line !== 1 ? ` (the block at line ${line} wrote ${(largest.characters / 1024 / 1024).toFixed(1)} MB of it)` : ''}`,
+    at: { file: run.study.file, line },
+    excerpt: excerptAround(run.study.source, line),
+    hint: 'write less: summarise long series, and keep bulky data out of the study text',
+  }]);
 }
 
 /** Charts are drawn by Vega in a limited worker: a specification that asks for endless work ends that worker, not the run's host. */

@@ -8,3 +8,19 @@ export const HOST_STAGE_LIMITS = {
   /** The type check of all blocks together. */
   typecheck: { heapMb: 2048, callSeconds: 120 },
 } as const satisfies Record<string, WorkerLimits>;
+
+/** How much a study may write: checked in the calculation process at the call, and again in the host. */
+export const OUTPUT_LIMITS = {
+  /** A result or criterion name, a column label, a unit, a caption. */
+  nameCharacters: 200,
+  /** Any other one text: a note, a caution, a printed line, a text value, a table cell, an inline value. */
+  textCharacters: 10_000,
+  /** Cells of one table. */
+  tableCells: 100_000,
+  /** One chart specification, as JSON. */
+  chartSpecCharacters: 2_000_000,
+  /** Everything one study writes (records and inline values, as JSON). */
+  studyOutputBytes: 32 * 1024 * 1024,
+  /** The HTML report, including the study source it carries. */
+  reportBytes: 96 * 1024 * 1024,
+} as const;

@@ -9,7 +9,8 @@ import type { ChildMessage, InputData, ParentMessage } from './protocol.ts';
 import type { BlockErrorReport, BlockRecord } from './records.ts';
 import { type TranspiledBlock, type TranspiledInline, studyPositionOf } from './transpile.ts';
 import { childBundlePath } from './childBundle.ts';
-import { sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
+import { type OutputBudget, sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
+import { TEXT_PROBLEM_HINTS, outputTextProblem } from './outputText.ts';
 import { DENIAL_MARK } from './child/lockDown.ts';
 
 export type LocatedRecord = Exclude<BlockRecord, never> & { at?: SourceLocation };
@@ -96,11 +97,17 @@ export async function executeStudy(
       }
     };
     const outcome: ExecutionOutcome = { blocks: [], inlineTexts: new Map() };
+    const written: OutputBudget = { characters: 0 };
     const evaluateInlinesAfter = async (runnableCount: number) => {
       for (const inline of inlines.filter((candidate) => candidate.inline.afterRunnableBlocks === runnableCount)) {
         const reply = await ask({ type: 'evaluate-inline', inlineId: inline.inlineId, script: inline.script }, inline.inline.at, `the inline value {{ ${inline.inline.expression} }}`);
         if (reply.type === 'inline-failed' && reply.inlineId === inline.inlineId) throw new StudyFailure([inlineFailure(study, inline, sanitizeErrorReport(reply.error))]);
         if (reply.type !== 'inline-done' || reply.inlineId !== inline.inlineId || typeof reply.text !== 'string') throw new StudyFailure([outOfTurn(inline.inline.at)]);
+        const problem = outputTextProblem('text', reply.text);
+        if (problem) {
+          throw new StudyFailure([{ code: `inline-${problem.code}`, message: `the inline value {{ ${inline.inline.expression} }}: its text ${problem.message}`, at: inline.inline.at, hint: TEXT_PROBLEM_HINTS[problem.code] }]);
+        }
+        written.characters += reply.text.length;
         outcome.inlineTexts.set(inline.inlineId, reply.text);
       }
     };
@@ -111,7 +118,7 @@ export async function executeStudy(
       const reply = await ask({ type: 'run-block', blockIndex: block.blockIndex, script: block.script, declarations: block.declarations }, at, `the block at line ${block.block.fenceLine}`);
       if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex) throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), limits.blockSeconds)]);
       if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) throw new StudyFailure([outOfTurn(at)]);
-      outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at)) });
+      outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at, written)) });
       await evaluateInlinesAfter(position + 1);
     }
     return outcome;
@@ -207,7 +214,7 @@ function refusedCapability(error: BlockErrorReport): string | undefined {
 function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
   const notDefined = /(\w+) is not defined/.exec(error.message);
   return {
-    code: notDefined ? 'inline-undefined' : 'inline-failed',
+    code: notDefined ? 'inline-undefined' : error.code && error.code in TEXT_PROBLEM_HINTS ? `inline-${error.code}` : 'inline-failed',
     message: notDefined
       ? `the inline value {{ ${inline.inline.expression} }} refers to "${notDefined[1]}", which no block above it defines`
       : `the inline value {{ ${inline.inline.expression} }} failed: ${error.message}`,

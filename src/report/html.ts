@@ -10,6 +10,7 @@ import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
 import { formatNumber, formatQuantity, formatStated } from './format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
+import { describeLimits } from './provenance.ts';
 
 const md = createMarkdown();
 const escape = md.utils.escapeHtml;
@@ -272,7 +273,7 @@ function provenanceList(run: StudyRun): string {
     item('SHA-256 of package-lock.json', `<code class="hash">${escape(p.lockfileSha256)}</code>`),
     item('Type check of the blocks', p.typeChecked ? 'done' : 'skipped at the author’s request'),
     item('Isolation of the blocks', escape(p.isolation)),
-    item('Limits', escape(`${p.limits.blockSeconds} s per block, ${p.limits.studySeconds} s per study, ${p.limits.heapMb} MB heap`)),
+    item('Limits', escape(describeLimits(p))),
   ].join('')}</dl>`;
 }
 

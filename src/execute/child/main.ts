@@ -6,7 +6,7 @@ import type { BlockErrorReport, BlockPosition, BlockRecord } from '../records.ts
 import { DEFAULT_DIGITS, formatQuantity } from '../../report/format.ts';
 import * as solverModule from '../../solver/index.ts';
 import * as chartModule from '../../report/chart/builders.ts';
-import { BlockApiError, Figure, InputValue, createBlockApi } from './blockApi.ts';
+import { BlockApiError, Figure, InputValue, checkedText, createBlockApi } from './blockApi.ts';
 import { lockDown } from './lockDown.ts';
 import { freezeDeep, hardenContext } from './harden.ts';
 import { ChartInputError } from '../../report/chart/errors.ts';
@@ -124,7 +124,7 @@ async function evaluateInline(inlineId: number, code: string): Promise<void> {
   try {
     const script = new vm.Script(code, { filename: inlineScriptName(inlineId) });
     const value = await script.runInContext(context, { timeout: blockMilliseconds });
-    send({ type: 'inline-done', inlineId, text: inlineText(value) });
+    send({ type: 'inline-done', inlineId, text: checkedText('the inline value', 'its text', inlineText(value), 'text') });
   } catch (error) {
     send({ type: 'inline-failed', inlineId, error: report(error) });
   }
