@@ -37,15 +37,6 @@ export function formatLocation(at: SourceLocation | undefined): string {
   return at.column ? `${at.file}:${at.line}:${at.column}` : `${at.file}:${at.line}`;
 }
 
-/** path:line:col: message [code], then the excerpt and the hint, as printed at the edge. */
-export function formatDiagnostic(diagnostic: Diagnostic): string {
-  const where = formatLocation(diagnostic.at);
-  const lines = [`${where ? where + ': ' : ''}error: ${diagnostic.message} [${diagnostic.code}]`];
-  if (diagnostic.excerpt) lines.push(diagnostic.excerpt);
-  if (diagnostic.hint) lines.push(`  hint: ${diagnostic.hint}`);
-  return lines.join('\n');
-}
-
 /** Numbered lines of `source` around `line` (1-based), with a caret under `column` when known. */
 export function excerptAround(source: string, line: number, column?: number, context = 2): string {
   const all = source.split('\n');
