@@ -25,6 +25,12 @@ export interface ReportParts {
   body: string;
 }
 
+/**
+ * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
+ * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
+ */
+export const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
 
@@ -334,6 +340,7 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
 <html lang="en">
 <head>
 <meta charset="utf-8">
+<meta http-equiv="Content-Security-Policy" content="${CONTENT_SECURITY_POLICY}">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <meta name="generator" content="kvarbook ${escape(run.provenance.kvarbookVersion)}">
 <meta name="kvarbook-study" content="${escape(meta.id)}">
