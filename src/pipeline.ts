@@ -9,7 +9,8 @@ import { type ExecutionHooks, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
 import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
-import { HOST_STAGE_LIMITS, OUTPUT_LIMITS } from './execute/limits.ts';
+import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from './execute/limits.ts';
+import type { RunLimits } from './study/model.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -17,6 +18,8 @@ export interface RunRequest {
   source: string;
   overrides: readonly InputOverride[];
   typecheck: boolean;
+  /** The most the run grants whatever the study asks; DEFAULT_CEILINGS when absent. */
+  ceilings?: RunLimits;
   /** Facts from the edge: versions and the lock-file hash, so this stage reads no files of its own. */
   environment: { kvarbookVersion: string; nodeVersion: string; lockfileSha256: string };
   hooks?: ExecutionHooks;
@@ -41,8 +44,9 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   const inlines = transpileInlines(study);
   // 4. Type-check against the block API, unless the author skipped it while drafting.
   if (request.typecheck) await typecheckStudy(study);
-  // 5. Execute in the sandboxed child.
-  const outcome = await executeStudy(study, inputs, blocks, inlines, request.hooks);
+  // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
+  const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
+  const outcome = await executeStudy(study, inputs, blocks, inlines, { ...(request.hooks ? { hooks: request.hooks } : {}), granted });
   const run: StudyRun = {
     study,
     inputs,
@@ -51,7 +55,8 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
       ...request.environment,
       studyFile: request.file.split(/[\\/]/).pop() ?? request.file,
       studySourceSha256: study.sourceSha256,
-      limits: study.meta.limits,
+      limits: granted.limits,
+      ...(Object.keys(granted.asked).length > 0 ? { limitsAsked: granted.asked } : {}),
       typeChecked: request.typecheck,
       isolation: ISOLATION_DESCRIPTION,
     },

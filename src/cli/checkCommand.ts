@@ -19,6 +19,7 @@ import { readStudyFile } from './readStudy.ts';
 import { withSealErrors } from './sealErrors.ts';
 import { reportHtmlFromPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
+import type { RunLimits } from '../study/model.ts';
 
 export interface CheckOptions {
   source?: string;
@@ -27,6 +28,8 @@ export interface CheckOptions {
   sign?: boolean;
   keys: string;
   tolerance: number;
+  /** The most the re-run grants whatever the study asks. */
+  ceilings?: RunLimits;
 }
 
 async function readReportHtml(reportPath: string): Promise<string> {
@@ -37,14 +40,14 @@ async function readReportHtml(reportPath: string): Promise<string> {
   return bytes.toString('utf8');
 }
 
-function rerunFrom(sourcePath: string | undefined) {
+function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined) {
   return async (source: string, overrides: { name: string; text: string }[]) => {
     // An embedded source runs from an empty scratch folder: it may read nothing of the checker's.
     const scratch = sourcePath ? undefined : mkdtempSync(join(tmpdir(), 'kvarbook-check-'));
     const file = sourcePath ?? join(scratch as string, 'embedded.study.md');
     if (scratch) writeFileSync(file, source);
     try {
-      const product = await runStudy({ file, source, overrides, typecheck: true, environment: installationFacts() });
+      const product = await runStudy({ file, source, overrides, typecheck: true, ...(ceilings ? { ceilings } : {}), environment: installationFacts() });
       return product.results;
     } catch (error) {
       if (error instanceof StudyFailure) throw new Error(error.diagnostics.map((d) => `${d.at ? `${basename(d.at.file)}:${d.at.line}: ` : ''}${d.message}`).join('; '));
@@ -81,7 +84,7 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
     sourceOrigin: options.source ? options.source : 'carried in the report',
     trusted: trust.identities,
     defaultRelativeTolerance: options.tolerance,
-    rerun: rerunFrom(options.source),
+    rerun: rerunFrom(options.source, options.ceilings),
   });
   if (options.json) process.stdout.write(`${JSON.stringify({ report: reportPath, ...outcome, trustProblems: trust.problems }, null, 2)}\n`);
   else describeOutcome(outcome, terminal, Boolean(process.stdout.isTTY) && !process.env.NO_COLOR);

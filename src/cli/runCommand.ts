@@ -15,6 +15,7 @@ import { protectSealedReport, reportPaths } from './reportFiles.ts';
 import { withSealErrors } from './sealErrors.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
+import type { RunLimits } from '../study/model.ts';
 
 export interface RunOptions {
   out: string;
@@ -24,6 +25,8 @@ export interface RunOptions {
   pdf?: boolean;
   replaceSealed?: boolean;
   keys?: string;
+  /** The most the run grants whatever the study asks. */
+  ceilings?: RunLimits;
 }
 
 /** The canonical text of results.json: two-space indented, keys in the order the document builds them. */
@@ -31,13 +34,14 @@ export function resultsJsonText(product: RunProduct): string {
   return `${JSON.stringify(product.results, null, 2)}\n`;
 }
 
-export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck'>, terminal: Terminal): Promise<RunProduct> {
+export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
   return runStudy({
     file: studyPath,
     source,
     overrides: parseOverrideArguments(options.set),
     typecheck: options.typecheck,
+    ...(options.ceilings ? { ceilings: options.ceilings } : {}),
     environment: installationFacts(),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),

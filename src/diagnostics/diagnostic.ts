@@ -39,7 +39,7 @@ export function formatLocation(at: SourceLocation | undefined): string {
 
 /** Numbered lines of `source` around `line` (1-based), with a caret under `column` when known. */
 export function excerptAround(source: string, line: number, column?: number, context = 2): string {
-  const all = source.split('\n');
+  const all = linesOf(source);
   const first = Math.max(1, line - context);
   const last = Math.min(all.length, line + context);
   const width = String(last).length;
@@ -52,4 +52,12 @@ export function excerptAround(source: string, line: number, column?: number, con
     }
   }
   return out.join('\n');
+}
+
+/** The lines of the last source excerpted: a study with many problems is split once, not once per problem. */
+let split: { source: string; lines: string[] } | undefined;
+
+function linesOf(source: string): string[] {
+  if (split?.source !== source) split = { source, lines: source.split('\n') };
+  return split.lines;
 }

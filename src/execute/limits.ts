@@ -1,5 +1,45 @@
-// The bounds of a run besides the study's own limits: how long and how large the host's own stages may grow on study data.
+// The bounds of a run besides the study's own limits: the checker's ceilings over them, the host stages' limits, the size of output.
 import type { WorkerLimits } from './limitedWorker.ts';
+import type { RunLimits } from '../study/model.ts';
+
+/**
+ * The most a run grants whatever the study asks (a study may ask for up to an hour per block and 16 GB): the
+ * checker's machine is the checker's. Raised on the command line with --ceiling-block-seconds and the like.
+ */
+export const DEFAULT_CEILINGS: RunLimits = { blockSeconds: 60, studySeconds: 600, heapMb: 2048 };
+
+/** The values a ceiling may take on the command line. */
+export const CEILING_RANGES: Record<keyof RunLimits, { min: number; max: number; integer: boolean }> = {
+  blockSeconds: { min: 0.1, max: 86_400, integer: false },
+  studySeconds: { min: 1, max: 864_000, integer: false },
+  heapMb: { min: 32, max: 65_536, integer: true },
+};
+
+/** The options that set each ceiling, so that a message can say how to raise one. */
+export const CEILING_OPTIONS: Record<keyof RunLimits, string> = {
+  blockSeconds: '--ceiling-block-seconds',
+  studySeconds: '--ceiling-study-seconds',
+  heapMb: '--ceiling-heap-mb',
+};
+
+export interface GrantedLimits {
+  /** What the run holds the study to: what it asked, but no more than the ceilings. */
+  limits: RunLimits;
+  /** What the study asked for where a ceiling cut it down; empty when nothing was capped. */
+  asked: Partial<RunLimits>;
+}
+
+export function grantLimits(asked: RunLimits, ceilings: RunLimits): GrantedLimits {
+  const limits = { ...asked };
+  const capped: Partial<RunLimits> = {};
+  for (const key of Object.keys(asked) as (keyof RunLimits)[]) {
+    if (asked[key] > ceilings[key]) {
+      limits[key] = ceilings[key];
+      capped[key] = asked[key];
+    }
+  }
+  return { limits, asked: capped };
+}
 
 /** Host stages that work on study data run in limited workers: these are their bounds, stated in every report. */
 export const HOST_STAGE_LIMITS = {

@@ -4,6 +4,11 @@ import type ts from 'typescript';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
 import { KVARBOOK_ROOT } from './childBundle.ts';
+import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
+import { HOST_STAGE_LIMITS } from './limits.ts';
+
+/** What the type check reads of a study: plain data, so that it can be handed to the worker that runs the compiler. */
+export type CheckedStudy = Pick<Study, 'file' | 'source' | 'inputs' | 'blocks' | 'inlines'>;
 
 const VIRTUAL_FILE = join(KVARBOOK_ROOT, '.kvarbook-study-check.ts');
 
@@ -34,7 +39,7 @@ function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
 }
 
 /** The block API's globals from blockGlobals.d.ts, and this study's inputs added to them. */
-function preamble(study: Study): string {
+function preamble(study: CheckedStudy): string {
   const globals = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/blockGlobals.d.ts'));
   const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/child/blockApi.ts'));
   const inputFields = study.inputs.map((input) => `    readonly ${input.name}: InputValue;`).join('\n');
@@ -45,8 +50,35 @@ function preamble(study: Study): string {
   ].join('\n');
 }
 
-/** Inline values are checked too, each as an expression after the blocks it follows. */
-export async function typecheckStudy(study: Study): Promise<void> {
+/**
+ * The compiler runs in a limited worker: a study's types can make it work for a long time (deeply recursive or
+ * combinatorial types), and that work must end at a deadline and a heap limit without taking the host with it.
+ */
+export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck): Promise<void> {
+  const checked: CheckedStudy = { file: study.file, source: study.source, inputs: study.inputs, blocks: study.blocks, inlines: study.inlines };
+  const worker = openLimitedWorker(new URL(import.meta.url), 'typecheckDiagnostics', limits);
+  let diagnostics: Diagnostic[];
+  try {
+    diagnostics = (await worker.call(checked)) as Diagnostic[];
+  } catch (error) {
+    if (!(error instanceof WorkerLimitError)) throw error;
+    const { callSeconds, heapMb } = limits;
+    const line = study.blocks[0]?.fenceLine ?? 1;
+    throw new StudyFailure([{
+      code: 'typecheck-limit',
+      message: `the type check of the blocks ${error.message} (it may take ${callSeconds} s and ${heapMb} MB)`,
+      at: { file: study.file, line },
+      excerpt: excerptAround(study.source, line),
+      hint: 'look for types that expand without end (recursive or combinatorial types); --no-typecheck skips the step while drafting',
+    }]);
+  } finally {
+    await worker.close();
+  }
+  if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
+}
+
+/** Every type problem of the study's blocks and inline values, each at its study line; inline values are checked as expressions after the blocks they follow. */
+export async function typecheckDiagnostics(study: CheckedStudy): Promise<Diagnostic[]> {
   // The compiler is large; load it only when a study is checked.
   const { default: typescript } = await import('typescript');
   const options = compilerOptions(typescript);
@@ -54,8 +86,14 @@ export async function typecheckStudy(study: Study): Promise<void> {
   const parts: string[] = [preamble(study)];
   let line = parts[0]!.split('\n').length;
   const runnable = study.blocks.filter((block) => !block.options.noRun);
+  const inlinesAfter = new Map<number, CheckedStudy['inlines']>();
+  for (const inline of study.inlines) {
+    const group = inlinesAfter.get(inline.afterRunnableBlocks);
+    if (group) group.push(inline);
+    else inlinesAfter.set(inline.afterRunnableBlocks, [inline]);
+  }
   const addInlines = (afterRunnableBlocks: number) => {
-    for (const inline of study.inlines.filter((candidate) => candidate.afterRunnableBlocks === afterRunnableBlocks)) {
+    for (const inline of inlinesAfter.get(afterRunnableBlocks) ?? []) {
       const prefix = 'void (';
       segments.push({ virtualStart: line, lineCount: 1, studyLine: inline.at.line, studyColumn: (inline.at.column ?? 1) + 3, prefixLength: prefix.length });
       parts.push(`${prefix}${inline.expression.replace(/\n/g, ' ')});`);
@@ -78,7 +116,7 @@ export async function typecheckStudy(study: Study): Promise<void> {
 
   const parsed = typescript.createSourceFile(VIRTUAL_FILE, text, options.target ?? typescript.ScriptTarget.ES2022, true);
   const studyAt = (position: ts.LineAndCharacter) => {
-    const segment = segments.find((candidate) => position.line >= candidate.virtualStart && position.line < candidate.virtualStart + candidate.lineCount);
+    const segment = segmentAt(segments, position.line);
     if (!segment) return undefined;
     const studyLine = segment.studyLine + (position.line - segment.virtualStart);
     const column = position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
@@ -86,7 +124,7 @@ export async function typecheckStudy(study: Study): Promise<void> {
   };
   // Before the compiler resolves anything: a study that names another file is refused, and no file is read.
   const refused = moduleRefusals(typescript, parsed, text, studyAt, study);
-  if (refused.length > 0) throw new StudyFailure(refused);
+  if (refused.length > 0) return refused;
 
   const program = typescript.createProgram([VIRTUAL_FILE], options, confinedHost(typescript, options, parsed));
   const sourceFile = program.getSourceFile(VIRTUAL_FILE)!;
@@ -110,7 +148,21 @@ export async function typecheckStudy(study: Study): Promise<void> {
       hint: 'the block API and solver are typed; run with --no-typecheck to skip this step while drafting',
     });
   }
-  if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
+  return diagnostics;
+}
+
+/** The segment holding a line of the virtual file; segments are in line order, so a binary search finds it. */
+function segmentAt(segments: readonly Segment[], line: number): Segment | undefined {
+  let low = 0;
+  let high = segments.length - 1;
+  while (low <= high) {
+    const middle = (low + high) >> 1;
+    const segment = segments[middle]!;
+    if (line < segment.virtualStart) high = middle - 1;
+    else if (line >= segment.virtualStart + segment.lineCount) low = middle + 1;
+    else return segment;
+  }
+  return undefined;
 }
 
 const MODULE_REFUSED_HINT =
@@ -122,7 +174,7 @@ function moduleRefusals(
   sourceFile: ts.SourceFile,
   text: string,
   studyAt: (position: ts.LineAndCharacter) => { line: number; column: number } | undefined,
-  study: Study,
+  study: CheckedStudy,
 ): Diagnostic[] {
   const refusals: Diagnostic[] = [];
   const refuse = (position: number, what: string) => {

@@ -43,11 +43,20 @@ function where(at: SourceLocation | undefined): string {
   return `<span class="where">line ${at.line}</span>`;
 }
 
-function slug(text: string, taken: Set<string>): string {
+/** Ids taken so far, and for each base the next number to try, so that a hundred equal headings cost a hundred steps. */
+interface Slugs {
+  taken: Set<string>;
+  next: Map<string, number>;
+}
+
+function slug(text: string, slugs: Slugs): string {
   const base = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'section';
   let candidate = base;
-  for (let n = 2; taken.has(candidate); n++) candidate = `${base}-${n}`;
-  taken.add(candidate);
+  for (let n = slugs.next.get(base) ?? 2; slugs.taken.has(candidate); n++) {
+    candidate = `${base}-${n}`;
+    slugs.next.set(base, n + 1);
+  }
+  slugs.taken.add(candidate);
   return candidate;
 }
 
@@ -161,7 +170,7 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
 function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
   const blocksByFence = new Map(run.study.blocks.map((block) => [block.fenceLine, block]));
   const outcomes = new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome]));
-  const taken = new Set<string>(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']);
+  const slugs: Slugs = { taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']), next: new Map() };
   const renderer = md.renderer;
   const rules = { ...renderer.rules };
   renderer.rules[INLINE_VALUE_TOKEN] = (tokens: Token[], index: number) => {
@@ -172,7 +181,7 @@ function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, hea
   renderer.rules.heading_open = (tokens: Token[], index: number) => {
     const token = tokens[index]!;
     const text = tokens[index + 1]?.children?.map((child) => (child.type === INLINE_VALUE_TOKEN ? '' : child.content)).join('') ?? '';
-    const id = slug(text, taken);
+    const id = slug(text, slugs);
     const level = Number(token.tag.slice(1));
     // The report's own h1 is the title; body headings move one level down.
     const shifted = Math.min(6, level + 1);

@@ -119,15 +119,21 @@ function inlineText(value: unknown): string {
   throw new BlockApiError('inline-type', `the inline value is ${value === null ? 'null' : typeof value}, which has no written form`, 'show a number, text, a result, or figure(value, unit)');
 }
 
-async function evaluateInline(inlineId: number, code: string): Promise<void> {
+/** Evaluates the values in order and answers once: all their texts, or the first that failed. */
+async function evaluateInlines(inlines: { inlineId: number; script: string }[]): Promise<void> {
   if (!context) throw new Error('the child was not started');
-  try {
-    const script = new vm.Script(code, { filename: inlineScriptName(inlineId) });
-    const value = await script.runInContext(context, { timeout: blockMilliseconds });
-    send({ type: 'inline-done', inlineId, text: checkedText('the inline value', 'its text', inlineText(value), 'text') });
-  } catch (error) {
-    send({ type: 'inline-failed', inlineId, error: report(error) });
+  const texts: { inlineId: number; text: string }[] = [];
+  for (const { inlineId, script: code } of inlines) {
+    try {
+      const script = new vm.Script(code, { filename: inlineScriptName(inlineId) });
+      const value = await script.runInContext(context, { timeout: blockMilliseconds });
+      texts.push({ inlineId, text: checkedText('the inline value', 'its text', inlineText(value), 'text') });
+    } catch (error) {
+      send({ type: 'inline-failed', inlineId, error: report(error) });
+      return;
+    }
   }
+  send({ type: 'inlines-done', texts });
 }
 
 let queue: Promise<void> = Promise.resolve();
@@ -142,8 +148,8 @@ process.on('message', (message: ParentMessage) => {
       case 'run-block':
         await runBlock(message.blockIndex, message.script, message.declarations);
         break;
-      case 'evaluate-inline':
-        await evaluateInline(message.inlineId, message.script);
+      case 'evaluate-inlines':
+        await evaluateInlines(message.inlines);
         break;
     }
   });
