@@ -2,6 +2,7 @@
 import { runProfileBench } from './profile.bench.ts';
 import { runPdfBench } from './pdf.bench.ts';
 import { runCheckBench } from './check.bench.ts';
+import { runScalingBench, scalingTable } from './scaling.bench.ts';
 
 const rows: string[] = [];
 const profile = await runProfileBench();
@@ -14,3 +15,5 @@ const check = await runCheckBench();
 rows.push(`check vs run of the demo  run ${check.runMs.toFixed(0)} ms   check ${check.checkMs.toFixed(0)} ms   ratio ${check.ratio.toFixed(2)} (target 1.15)`);
 
 console.log(rows.join('\n'));
+console.log('\nstages against study size (declarations, results and inline values each; x2.0 per doubling is linear):');
+console.log(scalingTable(await runScalingBench()));

@@ -20,6 +20,7 @@ import { readStudyFile } from './readStudy.ts';
 import { withSealErrors } from './sealErrors.ts';
 import { pdfAsPrintedStep, readPdfReport, type PdfInHand } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
+import type { RunLimits } from '../study/model.ts';
 
 export interface CheckOptions {
   source?: string;
@@ -28,6 +29,8 @@ export interface CheckOptions {
   sign?: boolean;
   keys: string;
   tolerance: number;
+  /** The most the re-run grants whatever the study asks. */
+  ceilings?: RunLimits;
 }
 
 /** Far above any report kvarbook writes; a larger file is not a report, and is not read into memory. */
@@ -52,7 +55,7 @@ async function readReport(reportPath: string): Promise<{ html: string; pdf?: Pdf
   return { html: bytes.toString('utf8') };
 }
 
-function rerunFrom(sourcePath: string | undefined) {
+function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined) {
   return async (request: RerunRequest): Promise<RunProduct> => {
     // An embedded source runs from an empty scratch folder: it may read nothing of the checker's.
     // Either way the run carries the sealed file name, so that the report it renders can be compared.
@@ -60,7 +63,7 @@ function rerunFrom(sourcePath: string | undefined) {
     const file = join(scratch ?? dirname(sourcePath as string), request.studyFile);
     if (scratch) writeFileSync(file, request.source);
     try {
-      return await runStudy({ file, source: request.source, overrides: request.overrides, typecheck: true, environment: request.environment });
+      return await runStudy({ file, source: request.source, overrides: request.overrides, typecheck: true, ...(ceilings ? { ceilings } : {}), environment: request.environment });
     } catch (error) {
       if (error instanceof StudyFailure) throw new Error(error.diagnostics.map((d) => `${d.at ? `${basename(d.at.file)}:${d.at.line}: ` : ''}${d.message}`).join('; '));
       throw error;
@@ -131,7 +134,7 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
     trusted: trust.identities,
     defaultRelativeTolerance: options.tolerance,
     environment: installationFacts(),
-    rerun: rerunFrom(options.source),
+    rerun: rerunFrom(options.source, options.ceilings),
   });
   // A PDF is what its reader sees: it verifies only as the exact print of the verified report.
   if (pdf) outcome = withStep(outcome, await pdfAsPrintedStep(pdf, outcome, source));

@@ -7,6 +7,8 @@ import { homeFolders } from './homeFolders.ts';
 import { useLaunchEnvironment } from './launchEnvironment.ts';
 import { DEFAULT_RELATIVE_TOLERANCE } from '../seal/compare.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
+import { CEILING_OPTIONS, CEILING_RANGES, DEFAULT_CEILINGS } from '../execute/limits.ts';
+import type { RunLimits } from '../study/model.ts';
 import { installationFacts } from './environment.ts';
 import { newCommand, templateNames } from './newCommand.ts';
 import { processTerminal, type Terminal } from './terminal.ts';
@@ -23,6 +25,30 @@ function parseTolerance(text: string): number {
   return value;
 }
 
+/** --ceiling-block-seconds and the like on a command: the most the run grants whatever the study asks. */
+function withCeilings(command: Command): Command {
+  const described: Record<keyof RunLimits, string> = { blockSeconds: 'seconds per block', studySeconds: 'seconds per study', heapMb: 'MB of heap' };
+  for (const key of Object.keys(CEILING_OPTIONS) as (keyof RunLimits)[]) {
+    const range = CEILING_RANGES[key];
+    const parse = (text: string) => {
+      const value = Number(text);
+      if (!Number.isFinite(value) || value < range.min || value > range.max || (range.integer && !Number.isInteger(value))) {
+        throw new InvalidArgumentError(`${text} is outside the allowed range (${range.min} to ${range.max}${range.integer ? ', whole' : ''})`);
+      }
+      return value;
+    };
+    command.option(`${CEILING_OPTIONS[key]} <${key === 'heapMb' ? 'mb' : 's'}>`, `the most ${described[key]} this run grants, whatever the study asks`, parse, DEFAULT_CEILINGS[key]);
+  }
+  return command;
+}
+
+/** The ceilings commander parsed, as the limits they bound. */
+function ceilingsOf(options: { ceilingBlockSeconds: number; ceilingStudySeconds: number; ceilingHeapMb: number }): RunLimits {
+  return { blockSeconds: options.ceilingBlockSeconds, studySeconds: options.ceilingStudySeconds, heapMb: options.ceilingHeapMb };
+}
+
+type WithCeilingOptions<T> = T & { ceilingBlockSeconds: number; ceilingStudySeconds: number; ceilingHeapMb: number };
+
 export function buildProgram(terminal: Terminal, setExit: (code: number) => void): Command {
   const folders = homeFolders();
   const program = new Command('kvarbook')
@@ -32,7 +58,7 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .exitOverride()
     .configureOutput({ writeErr: (text) => process.stderr.write(text), writeOut: (text) => process.stdout.write(text) });
 
-  program
+  withCeilings(program
     .command('run')
     .description('run a study and write build/<id>-r<revision>.html and .results.json')
     .argument('<study>', 'the study file (.study.md)')
@@ -42,14 +68,14 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .option('--pdf', 'also print the report to PDF with the system Chromium (or set report.pdf in the front matter)')
     .option('--seal', "seal the report with the engineer's signing key")
     .option('--replace-sealed', 'move an existing sealed report of the same id and revision to superseded/ instead of refusing')
-    .option('--keys <dir>', 'folder of signing keys', folders.keys)
-    .action(async (study: string, options: RunOptions) => {
+    .option('--keys <dir>', 'folder of signing keys', folders.keys))
+    .action(async (study: string, options: WithCeilingOptions<RunOptions>) => {
       // Loaded on demand so that --help and usage errors answer at once.
       const { runCommand } = await import('./runCommand.ts');
-      setExit(await runCommand(study, options, terminal));
+      setExit(await runCommand(study, { ...options, ceilings: ceilingsOf(options) }, terminal));
     });
 
-  program
+  withCeilings(program
     .command('check')
     .description('verify a sealed report: signature, unchanged body, study source, re-run of every figure')
     .argument('<report>', 'the sealed report (.html, or the .pdf that carries it)')
@@ -58,10 +84,10 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .option('--tolerance <relative>', 'relative tolerance for re-computed figures without their own', parseTolerance, DEFAULT_RELATIVE_TOLERANCE)
     .option('--json', 'print the outcome as JSON for machines')
     .option('--sign', "counter-sign the outcome with the checker's key (writes .check.json and .checked.html)")
-    .option('--keys <dir>', 'folder of signing keys', folders.keys)
-    .action(async (report: string, options: CheckOptions) => {
+    .option('--keys <dir>', 'folder of signing keys', folders.keys))
+    .action(async (report: string, options: WithCeilingOptions<CheckOptions>) => {
       const { checkCommand } = await import('./checkCommand.ts');
-      setExit(await checkCommand(report, options, terminal));
+      setExit(await checkCommand(report, { ...options, ceilings: ceilingsOf(options) }, terminal));
     });
 
   const key = program.command('key').description('signing keys of licensed engineers');

@@ -15,6 +15,7 @@ import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportEx
 import { withSealErrors } from './sealErrors.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
+import type { RunLimits } from '../study/model.ts';
 
 export interface RunOptions {
   out: string;
@@ -24,15 +25,18 @@ export interface RunOptions {
   pdf?: boolean;
   replaceSealed?: boolean;
   keys?: string;
+  /** The most the run grants whatever the study asks. */
+  ceilings?: RunLimits;
 }
 
-export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck'>, terminal: Terminal): Promise<RunProduct> {
+export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
   return runStudy({
     file: studyPath,
     source,
     overrides: parseOverrideArguments(options.set),
     typecheck: options.typecheck,
+    ...(options.ceilings ? { ceilings: options.ceilings } : {}),
     environment: installationFacts(),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),

@@ -1,5 +1,5 @@
-// What the command line prints: results on stdout, diagnostics on stderr, a progress line only on a terminal.
-import { type Diagnostic, formatDiagnostic } from '../diagnostics/diagnostic.ts';
+// What the command line prints: results on stdout, diagnostics on stderr, a progress line only on a terminal; every text escaped.
+import { type Diagnostic, formatLocation } from '../diagnostics/diagnostic.ts';
 
 export interface Terminal {
   say(line: string): void;
@@ -8,28 +8,83 @@ export interface Terminal {
   problems(diagnostics: readonly Diagnostic[]): void;
 }
 
-export function processTerminal(): Terminal {
-  const interactive = Boolean(process.stderr.isTTY);
+/**
+ * The styles kvarbook paints with itself (node:util styleText: bold, red, green and their resets). They are the only
+ * escape sequences a printed line may keep; a study's text could contain them too, but no other sequence (no
+ * cursor movement, clearing, hiding, titles or links) and no line break.
+ */
+const OWN_STYLE = /^\u001b\[(?:1|22|31|32|39)m/;
+/** C0 and C1 controls, DEL, line and paragraph separators, direction controls, and invisible format characters. */
+const UNPRINTABLE = /[\u0000-\u001f\u007f-\u009f\u00ad\u061c\u180e\u200b-\u200f\u2028-\u202e\u2060-\u2069\ufeff\ufff9-\ufffb]|\p{Cs}/gu;
+
+function escaped(character: string): string {
+  const code = character.codePointAt(0)!;
+  if (character === '\n') return '\\n';
+  if (character === '\r') return '\\r';
+  if (character === '\t') return '\\t';
+  return code <= 0xff ? `\\x${code.toString(16).padStart(2, '0')}` : `\\u${code.toString(16).padStart(4, '0')}`;
+}
+
+/** `text` as one printable line: every control or invisible character written as an escape (\x1b, \u202e, \n). */
+export function printable(text: string, keepOwnStyles = false): string {
+  if (!keepOwnStyles) return text.replace(UNPRINTABLE, escaped);
+  let out = '';
+  let from = 0;
+  for (const match of text.matchAll(UNPRINTABLE)) {
+    const at = match.index;
+    if (at < from) continue;
+    out += text.slice(from, at);
+    const style = match[0] === '\u001b' ? OWN_STYLE.exec(text.slice(at, at + 5)) : null;
+    out += style ? style[0] : escaped(match[0]);
+    from = at + (style ? style[0].length : match[0].length);
+  }
+  return out + text.slice(from);
+}
+
+/** A text that may run over several lines (a type error, a hint): each line printable, continuations indented. */
+function printableLines(text: string, indent: string): string {
+  return text
+    .split('\n')
+    .map((line, index) => (index === 0 ? printable(line) : `${indent}${printable(line)}`))
+    .join('\n');
+}
+
+/** path:line:col: error: message [code], then the excerpt and the hint, with nothing of the study printed raw. */
+export function printableDiagnostic(diagnostic: Diagnostic): string {
+  const where = printable(formatLocation(diagnostic.at));
+  const lines = [`${where ? `${where}: ` : ''}error: ${printableLines(diagnostic.message, '    ')} [${printable(diagnostic.code)}]`];
+  if (diagnostic.excerpt) lines.push(diagnostic.excerpt.split('\n').map((line) => printable(line)).join('\n'));
+  if (diagnostic.hint) lines.push(`  hint: ${printableLines(diagnostic.hint, '        ')}`);
+  return lines.join('\n');
+}
+
+interface Streams {
+  out: NodeJS.WritableStream;
+  err: NodeJS.WritableStream & { isTTY?: boolean };
+}
+
+export function processTerminal(streams: Streams = { out: process.stdout, err: process.stderr }): Terminal {
+  const interactive = Boolean(streams.err.isTTY);
   let showing = false;
   const clear = () => {
-    if (showing) process.stderr.write('\r\x1b[2K');
+    if (showing) streams.err.write('\r\x1b[2K');
     showing = false;
   };
   return {
     say: (line) => {
       clear();
-      process.stdout.write(`${line}\n`);
+      streams.out.write(`${printable(line, true)}\n`);
     },
     progress: (line) => {
       if (!interactive) return;
       clear();
-      process.stderr.write(`kvarbook: ${line}`);
+      streams.err.write(`kvarbook: ${printable(line)}`);
       showing = true;
     },
     progressDone: clear,
     problems: (diagnostics) => {
       clear();
-      for (const diagnostic of diagnostics) process.stderr.write(`${formatDiagnostic(diagnostic)}\n`);
+      for (const diagnostic of diagnostics) streams.err.write(`${printableDiagnostic(diagnostic)}\n`);
     },
   };
 }

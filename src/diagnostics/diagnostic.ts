@@ -37,18 +37,9 @@ export function formatLocation(at: SourceLocation | undefined): string {
   return at.column ? `${at.file}:${at.line}:${at.column}` : `${at.file}:${at.line}`;
 }
 
-/** path:line:col: message [code], then the excerpt and the hint, as printed at the edge. */
-export function formatDiagnostic(diagnostic: Diagnostic): string {
-  const where = formatLocation(diagnostic.at);
-  const lines = [`${where ? where + ': ' : ''}error: ${diagnostic.message} [${diagnostic.code}]`];
-  if (diagnostic.excerpt) lines.push(diagnostic.excerpt);
-  if (diagnostic.hint) lines.push(`  hint: ${diagnostic.hint}`);
-  return lines.join('\n');
-}
-
 /** Numbered lines of `source` around `line` (1-based), with a caret under `column` when known. */
 export function excerptAround(source: string, line: number, column?: number, context = 2): string {
-  const all = source.split('\n');
+  const all = linesOf(source);
   const first = Math.max(1, line - context);
   const last = Math.min(all.length, line + context);
   const width = String(last).length;
@@ -61,4 +52,12 @@ export function excerptAround(source: string, line: number, column?: number, con
     }
   }
   return out.join('\n');
+}
+
+/** The lines of the last source excerpted: a study with many problems is split once, not once per problem. */
+let split: { source: string; lines: string[] } | undefined;
+
+function linesOf(source: string): string[] {
+  if (split?.source !== source) split = { source, lines: source.split('\n') };
+  return split.lines;
 }

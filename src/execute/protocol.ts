@@ -22,13 +22,14 @@ export interface Declaration {
 export type ParentMessage =
   | { type: 'start'; inputs: InputData[]; blockMilliseconds: number }
   | { type: 'run-block'; blockIndex: number; script: string; declarations: Declaration[] }
-  | { type: 'evaluate-inline'; inlineId: number; script: string };
+  /** Every inline value that follows one block, in one message: a round trip per value would cost more than the values. */
+  | { type: 'evaluate-inlines'; inlines: { inlineId: number; script: string }[] };
 
 export type ChildMessage =
   | { type: 'ready' }
   | { type: 'block-done'; blockIndex: number; records: BlockRecord[] }
   | { type: 'block-failed'; blockIndex: number; records: BlockRecord[]; error: BlockErrorReport }
-  | { type: 'inline-done'; inlineId: number; text: string }
+  | { type: 'inlines-done'; texts: { inlineId: number; text: string }[] }
   | { type: 'inline-failed'; inlineId: number; error: BlockErrorReport };
 
 /** The file name a block's script carries inside the child, so stack frames can be traced back to it. */

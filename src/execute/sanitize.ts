@@ -2,6 +2,8 @@
 import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
 import type { BlockErrorReport, BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
+import { OUTPUT_LIMITS } from './limits.ts';
+import { TEXT_PROBLEM_HINTS, type TextProblem, type TextRole, outputTextProblem } from './outputText.ts';
 
 const isText = (value: unknown): value is string => typeof value === 'string';
 const isFiniteNumber = (value: unknown): value is number => typeof value === 'number' && Number.isFinite(value);
@@ -123,21 +125,80 @@ function one(raw: unknown): BlockRecord | undefined {
   }
 }
 
-export function sanitizeRecords(raw: unknown, study: Study, at: SourceLocation): BlockRecord[] {
+/** The texts of a record with the role each plays in a report. */
+function textsOf(record: BlockRecord): [string, string, TextRole][] {
+  switch (record.kind) {
+    case 'result':
+      return [
+        ['the name', record.name, 'name'],
+        ['the unit', record.unit, 'name'],
+        ...(typeof record.value === 'string' ? [['the value', record.value, 'text'] as [string, string, TextRole]] : []),
+        ...(record.note !== undefined ? [['the note', record.note, 'text'] as [string, string, TextRole]] : []),
+      ];
+    case 'criterion':
+      return [['the name', record.name, 'name'], ['the unit', record.unit, 'name'], ...(record.note !== undefined ? [['the note', record.note, 'text'] as [string, string, TextRole]] : [])];
+    case 'caution':
+    case 'text':
+      return [['the text', record.text, 'text']];
+    case 'table':
+      return [
+        ...(record.caption !== undefined ? [['the caption', record.caption, 'caption'] as [string, string, TextRole]] : []),
+        ...record.columns.flatMap((column): [string, string, TextRole][] => [['a column label', column.label, 'name'], ['a column unit', column.unit, 'name']]),
+        ...record.rows.flatMap((row) => row.flatMap((cell): [string, string, TextRole][] => (typeof cell === 'string' ? [['a cell', cell, 'text']] : []))),
+      ];
+    case 'chart':
+      return [['the caption', record.caption, 'caption']];
+    case 'solver-call':
+      return [['the solver function', record.functionName, 'name']];
+  }
+}
+
+/** What makes a well-formed record too large or unfit to show, or undefined when it may reach the report. */
+function outputProblem(record: BlockRecord): { what: string; problem: TextProblem } | undefined {
+  if (record.kind === 'table' && record.rows.length * record.columns.length > OUTPUT_LIMITS.tableCells) {
+    return { what: 'a table', problem: { code: 'output-limit', message: `has ${record.rows.length * record.columns.length} cells; a report table holds at most ${OUTPUT_LIMITS.tableCells}` } };
+  }
+  if (record.kind === 'chart') {
+    const characters = JSON.stringify(record.spec).length;
+    if (characters > OUTPUT_LIMITS.chartSpecCharacters) {
+      return { what: `chart "${record.caption.slice(0, 80)}"`, problem: { code: 'output-limit', message: `has a specification of ${characters} characters; a chart may have at most ${OUTPUT_LIMITS.chartSpecCharacters}` } };
+    }
+  }
+  for (const [what, text, role] of textsOf(record)) {
+    const problem = outputTextProblem(role, text);
+    if (problem) return { what: `${record.kind}: ${what}`, problem };
+  }
+  return undefined;
+}
+
+/** What the whole study has written so far, across its blocks. */
+export interface OutputBudget {
+  characters: number;
+}
+
+export function sanitizeRecords(raw: unknown, study: Study, at: SourceLocation, budget: OutputBudget = { characters: 0 }): BlockRecord[] {
   if (!Array.isArray(raw)) return [];
   const out: BlockRecord[] = [];
   const problems: Diagnostic[] = [];
   for (const item of raw) {
     const record = one(item);
-    if (record) out.push(record);
-    else {
+    if (!record) {
       problems.push({
         code: 'record-malformed',
         message: 'the calculation process sent a malformed record (a result, table or criterion with a missing or non-finite value)',
         at,
         hint: `this should not happen through the block API; check the block at line ${at.line} of ${study.file}`,
       });
+      continue;
     }
+    // The calculation process checks all of this at the call; a process that did not is stopped here.
+    budget.characters += JSON.stringify(item).length;
+    const found =
+      budget.characters > OUTPUT_LIMITS.studyOutputBytes
+        ? { what: 'the study', problem: { code: 'output-limit', message: `has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all` } satisfies TextProblem }
+        : outputProblem(record);
+    if (found) problems.push({ code: `block-${found.problem.code}`, message: `${found.what} ${found.problem.message}`, at, hint: TEXT_PROBLEM_HINTS[found.problem.code] });
+    else out.push(record);
   }
   if (problems.length > 0) throw new StudyFailure(problems.slice(0, 1));
   return out;

@@ -3,13 +3,15 @@ import { fork, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
-import type { Study } from '../study/model.ts';
+import type { RunLimits, Study } from '../study/model.ts';
+import { CEILING_OPTIONS, type GrantedLimits } from './limits.ts';
 import type { EffectiveInput } from '../study/inputs.ts';
 import type { ChildMessage, InputData, ParentMessage } from './protocol.ts';
 import type { BlockErrorReport, BlockRecord } from './records.ts';
 import { type TranspiledBlock, type TranspiledInline, studyPositionOf } from './transpile.ts';
 import { childBundlePath } from './childBundle.ts';
-import { sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
+import { type OutputBudget, sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
+import { TEXT_PROBLEM_HINTS, outputTextProblem } from './outputText.ts';
 import { DENIAL_MARK } from './child/lockDown.ts';
 
 export type LocatedRecord = Exclude<BlockRecord, never> & { at?: SourceLocation };
@@ -62,22 +64,30 @@ export function childEnvironment(): NodeJS.ProcessEnv {
   return kept;
 }
 
+export interface ExecutionOptions {
+  hooks?: ExecutionHooks;
+  /** The limits granted to the study; the study's own when absent. */
+  granted?: GrantedLimits;
+}
+
 export async function executeStudy(
   study: Study,
   inputs: readonly EffectiveInput[],
   blocks: readonly TranspiledBlock[],
   inlines: readonly TranspiledInline[],
-  hooks: ExecutionHooks = {},
+  options: ExecutionOptions = {},
 ): Promise<ExecutionOutcome> {
+  const hooks = options.hooks ?? {};
+  const granted = options.granted ?? { limits: study.meta.limits, asked: {} };
+  const limits = granted.limits;
   const bundlePath = childBundlePath();
   const child = fork(bundlePath, [], {
-    execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, study.meta.limits.heapMb),
+    execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, limits.heapMb),
     env: childEnvironment(),
     stdio: ['ignore', 'ignore', 'pipe', 'ipc'],
     serialization: 'json',
   });
-  const conversation = new Conversation(child, residentLimitBytes(study.meta.limits.heapMb));
-  const limits = study.meta.limits;
+  const conversation = new Conversation(child, residentLimitBytes(limits.heapMb));
   const studyDeadline = Date.now() + limits.studySeconds * 1000;
   try {
     const notStarted = (): Diagnostic => ({ code: 'child-start', message: 'the calculation process did not start', hint: 'run `npm ci` and try again' });
@@ -87,31 +97,52 @@ export async function executeStudy(
       if (error instanceof ChildExit) throw new StudyFailure([notStarted()]);
       throw error;
     }
-    const ask = async (message: ParentMessage, at: SourceLocation, what: string): Promise<ChildMessage> => {
+    const ask = async (message: ParentMessage, at: SourceLocation, what: string, steps = 1): Promise<ChildMessage> => {
       try {
-        return await conversation.ask(message, budget(limits.blockSeconds, studyDeadline), () => timeoutDiagnostic(study, at, what, limits.blockSeconds));
+        return await conversation.ask(message, budget(limits.blockSeconds * steps, studyDeadline), () => timeoutDiagnostic(study, at, what, granted));
       } catch (error) {
-        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(study, at, what, error)]);
+        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(study, at, what, error, granted)]);
         throw error;
       }
     };
     const outcome: ExecutionOutcome = { blocks: [], inlineTexts: new Map() };
+    const written: OutputBudget = { characters: 0 };
+    const inlinesAfter = new Map<number, TranspiledInline[]>();
+    for (const inline of inlines) {
+      const group = inlinesAfter.get(inline.inline.afterRunnableBlocks);
+      if (group) group.push(inline);
+      else inlinesAfter.set(inline.inline.afterRunnableBlocks, [inline]);
+    }
     const evaluateInlinesAfter = async (runnableCount: number) => {
-      for (const inline of inlines.filter((candidate) => candidate.inline.afterRunnableBlocks === runnableCount)) {
-        const reply = await ask({ type: 'evaluate-inline', inlineId: inline.inlineId, script: inline.script }, inline.inline.at, `the inline value {{ ${inline.inline.expression} }}`);
-        if (reply.type === 'inline-failed' && reply.inlineId === inline.inlineId) throw new StudyFailure([inlineFailure(study, inline, sanitizeErrorReport(reply.error))]);
-        if (reply.type !== 'inline-done' || reply.inlineId !== inline.inlineId || typeof reply.text !== 'string') throw new StudyFailure([outOfTurn(inline.inline.at)]);
-        outcome.inlineTexts.set(inline.inlineId, reply.text);
+      const group = inlinesAfter.get(runnableCount);
+      if (!group) return;
+      const first = group[0]!.inline;
+      const what = group.length === 1 ? `the inline value {{ ${first.expression} }}` : `the ${group.length} inline values from line ${first.at.line} on`;
+      const reply = await ask({ type: 'evaluate-inlines', inlines: group.map(({ inlineId, script }) => ({ inlineId, script })) }, first.at, what, group.length);
+      if (reply.type === 'inline-failed') {
+        const failed = group.find((inline) => inline.inlineId === reply.inlineId);
+        if (failed) throw new StudyFailure([inlineFailure(study, failed, sanitizeErrorReport(reply.error))]);
       }
+      if (reply.type !== 'inlines-done' || !Array.isArray(reply.texts) || reply.texts.length !== group.length) throw new StudyFailure([outOfTurn(first.at)]);
+      group.forEach((inline, index) => {
+        const answer = reply.texts[index] as { inlineId?: unknown; text?: unknown } | undefined;
+        if (answer?.inlineId !== inline.inlineId || typeof answer.text !== 'string') throw new StudyFailure([outOfTurn(inline.inline.at)]);
+        const problem = outputTextProblem('text', answer.text);
+        if (problem) {
+          throw new StudyFailure([{ code: `inline-${problem.code}`, message: `the inline value {{ ${inline.inline.expression} }}: its text ${problem.message}`, at: inline.inline.at, hint: TEXT_PROBLEM_HINTS[problem.code] }]);
+        }
+        written.characters += answer.text.length;
+        outcome.inlineTexts.set(inline.inlineId, answer.text);
+      });
     };
     await evaluateInlinesAfter(0);
     for (const [position, block] of blocks.entries()) {
       hooks.onBlockStart?.(block, position, blocks.length);
       const at = { file: study.file, line: block.block.fenceLine };
       const reply = await ask({ type: 'run-block', blockIndex: block.blockIndex, script: block.script, declarations: block.declarations }, at, `the block at line ${block.block.fenceLine}`);
-      if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex) throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), limits.blockSeconds)]);
+      if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex) throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), granted)]);
       if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) throw new StudyFailure([outOfTurn(at)]);
-      outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at)) });
+      outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at, written)) });
       await evaluateInlinesAfter(position + 1);
     }
     return outcome;
@@ -148,24 +179,37 @@ function locate(study: Study, block: TranspiledBlock, records: BlockRecord[]): L
   });
 }
 
-function timeoutDiagnostic(study: Study, at: SourceLocation, what: string, blockSeconds: number): Diagnostic {
+/** How to get more of a limit: the front matter, or, where the run's ceiling capped what the study asked, that ceiling. */
+function raiseHint(granted: GrantedLimits, keys: readonly (keyof RunLimits)[], unit: Record<keyof RunLimits, string>): string {
+  const capped = keys.filter((key) => granted.asked[key] !== undefined);
+  if (capped.length === 0) return `may raise limits.${keys.join(' or limits.')} in the front matter`;
+  return capped
+    .map((key) => `the study asks limits.${key}: ${granted.asked[key]}, but this run's ceiling is ${granted.limits[key]} ${unit[key]} (raise it with ${CEILING_OPTIONS[key]})`)
+    .join('; ');
+}
+
+const LIMIT_UNITS: Record<keyof RunLimits, string> = { blockSeconds: 's', studySeconds: 's', heapMb: 'MB' };
+
+function timeoutDiagnostic(study: Study, at: SourceLocation, what: string, granted: GrantedLimits): Diagnostic {
+  const { limits } = granted;
   return {
     code: 'time-limit',
-    message: `${what} ran longer than its time limit (${blockSeconds} s per block, ${study.meta.limits.studySeconds} s per study) and was stopped`,
+    message: `${what} ran longer than its time limit (${limits.blockSeconds} s per block, ${limits.studySeconds} s per study) and was stopped`,
     at,
     excerpt: excerptAround(study.source, at.line, at.column),
-    hint: 'look for a loop that never ends; a long calculation may raise limits.blockSeconds in the front matter',
+    hint: `look for a loop that never ends; a long calculation ${raiseHint(granted, ['blockSeconds', 'studySeconds'], LIMIT_UNITS)}`,
   };
 }
 
-function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: ChildExit): Diagnostic {
+function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: ChildExit, granted: GrantedLimits): Diagnostic {
   if (exit.outOfMemory) {
+    const { heapMb } = granted.limits;
     return {
       code: 'memory-limit',
-      message: `${what} used more memory than its limits allow (${study.meta.limits.heapMb} MB heap, ${residentLimitBytes(study.meta.limits.heapMb) / 1024 / 1024} MB in all) and was stopped`,
+      message: `${what} used more memory than its limits allow (${heapMb} MB heap, ${residentLimitBytes(heapMb) / 1024 / 1024} MB in all) and was stopped`,
       at,
       excerpt: excerptAround(study.source, at.line),
-      hint: 'look for an array or string that grows without bound; a large study may raise limits.heapMb in the front matter',
+      hint: `look for an array or string that grows without bound; a large study ${raiseHint(granted, ['heapMb'], LIMIT_UNITS)}`,
     };
   }
   return {
@@ -177,11 +221,11 @@ function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: Ch
   };
 }
 
-function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorReport, blockSeconds: number): Diagnostic {
+function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorReport, granted: GrantedLimits): Diagnostic {
   const own = error.positions.find((position) => position.blockIndex === block.blockIndex);
   const mapped = own ? studyPositionOf(block, own.line, own.column) : { line: block.block.fenceLine, column: 1 };
   const at = { file: study.file, line: mapped.line, column: mapped.column };
-  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, blockSeconds);
+  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, granted);
   const refused = refusedCapability(error);
   if (refused) {
     return { code: 'block-denied', message: `a calculation block may not ${refused}`, at, excerpt: excerptAround(study.source, mapped.line, mapped.column), hint: DENIED_HINT };
@@ -207,7 +251,7 @@ function refusedCapability(error: BlockErrorReport): string | undefined {
 function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
   const notDefined = /(\w+) is not defined/.exec(error.message);
   return {
-    code: notDefined ? 'inline-undefined' : 'inline-failed',
+    code: notDefined ? 'inline-undefined' : error.code && error.code in TEXT_PROBLEM_HINTS ? `inline-${error.code}` : 'inline-failed',
     message: notDefined
       ? `the inline value {{ ${inline.inline.expression} }} refers to "${notDefined[1]}", which no block above it defines`
       : `the inline value {{ ${inline.inline.expression} }} failed: ${error.message}`,
@@ -243,7 +287,7 @@ class Conversation {
     child.on('message', (message: unknown) => {
       const waiting = this.waiting;
       if (!waiting || !isChildMessage(message)) return;
-      if (message.type === 'ready' || message.type === 'block-done' || message.type === 'block-failed' || message.type === 'inline-done' || message.type === 'inline-failed') {
+      if (message.type === 'ready' || message.type === 'block-done' || message.type === 'block-failed' || message.type === 'inlines-done' || message.type === 'inline-failed') {
         this.waiting = undefined;
         waiting.resolve(message);
       }

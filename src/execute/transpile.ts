@@ -15,8 +15,8 @@ export interface TranspiledBlock {
   declarations: Declaration[];
   /** Maps positions in esbuild's output back to the block's TypeScript. */
   traceMap: TraceMap;
-  /** The edits between esbuild's output and `script`, undone before the source map is consulted. */
-  shifts: ColumnShift[];
+  /** The edits between esbuild's output and `script` by script line, in column order, undone before the source map is consulted. */
+  shifts: Map<number, ColumnShift[]>;
   block: CalcBlock;
 }
 
@@ -90,15 +90,17 @@ function transpileOne(study: Study, block: CalcBlock, diagnostics: Diagnostic[])
   }
   let program: Program;
   try {
-    program = parse(code, { ecmaVersion: 'latest', sourceType: 'module', allowAwaitOutsideFunction: true, locations: true });
+    program = parse(code, { ecmaVersion: 'latest', sourceType: 'module', allowAwaitOutsideFunction: true });
   } catch (error) {
     diagnostics.push({ code: 'block-syntax', message: (error as Error).message, at: { file: study.file, line: block.fenceLine }, hint: 'check the block syntax' });
     return undefined;
   }
   const traceMap = new TraceMap(map);
   const rewritten = rewriteTopLevel(program, code, (node, message, hint) => {
-    const original = originalPositionFor(traceMap, { line: node.loc!.start.line, column: node.loc!.start.column });
-    const line = (original.line ?? node.loc!.start.line) + block.firstCodeLine - 1;
+    // Positions only for the rare refusal: acorn's own line tracking would cost every block a third more.
+    const start = lineAndColumn(lineStarts(code), node.start);
+    const original = originalPositionFor(traceMap, { line: start.line, column: start.column });
+    const line = (original.line ?? start.line) + block.firstCodeLine - 1;
     const column = (original.column ?? 0) + 1;
     diagnostics.push({ code: 'block-module-syntax', message, at: { file: study.file, line, column }, excerpt: excerptAround(study.source, line, column), hint });
   });
@@ -115,10 +117,22 @@ interface ColumnShift {
   delta: number;
 }
 
-function lineAndColumn(code: string, offset: number): { line: number; column: number } {
-  const before = code.slice(0, offset);
-  const line = before.split('\n').length;
-  return { line, column: offset - (before.lastIndexOf('\n') + 1) };
+/** Offsets where each line of `code` starts, so that any offset finds its line by binary search. */
+function lineStarts(code: string): number[] {
+  const starts = [0];
+  for (let index = code.indexOf('\n'); index >= 0; index = code.indexOf('\n', index + 1)) starts.push(index + 1);
+  return starts;
+}
+
+function lineAndColumn(starts: readonly number[], offset: number): { line: number; column: number } {
+  let low = 0;
+  let high = starts.length - 1;
+  while (low < high) {
+    const middle = (low + high + 1) >> 1;
+    if (starts[middle]! <= offset) low = middle;
+    else high = middle - 1;
+  }
+  return { line: low + 1, column: offset - starts[low]! };
 }
 
 /**
@@ -129,7 +143,7 @@ function rewriteTopLevel(
   program: Program,
   code: string,
   complain: Complaint,
-): { code: string; declarations: Declaration[]; shifts: ColumnShift[] } | undefined {
+): { code: string; declarations: Declaration[]; shifts: Map<number, ColumnShift[]> } | undefined {
   const declarations: Declaration[] = [];
   const edits: { start: number; end: number; text: string }[] = [];
   const exported: string[] = [];
@@ -178,19 +192,27 @@ function rewriteTopLevel(
     }
   }
   if (!ok) return undefined;
-  let rewritten = code;
-  // From the back; at one offset the replacement goes first so that an insertion there ends up before it (`x = undefined);`).
-  for (const edit of [...edits].sort((a, b) => b.start - a.start || b.end - a.end)) {
-    rewritten = rewritten.slice(0, edit.start) + edit.text + rewritten.slice(edit.end);
+  // One pass from the front, in the order the edits were made; at one offset an insertion made first stays first (`x = undefined);`).
+  const ordered = edits.map((edit, order) => ({ ...edit, order })).sort((a, b) => a.start - b.start || a.order - b.order);
+  const pieces: string[] = [];
+  let cursor = 0;
+  for (const edit of ordered) {
+    pieces.push(code.slice(cursor, edit.start), edit.text);
+    cursor = edit.end;
   }
+  pieces.push(code.slice(cursor));
   // Function declarations are hoisted inside the wrapper; publish them to the shared scope before anything runs.
   const publish = exported.map((name) => `globalThis[${JSON.stringify(name)}] = ${name};`).join(' ');
-  const shifts: ColumnShift[] = [{ line: 1, column: 0, delta: WRAPPER_START.length + publish.length }];
-  for (const edit of edits) {
-    const { line, column } = lineAndColumn(code, edit.start);
-    shifts.push({ line, column, delta: edit.text.length - (edit.end - edit.start) });
+  const shifts = new Map<number, ColumnShift[]>([[1, [{ line: 1, column: 0, delta: WRAPPER_START.length + publish.length }]]]);
+  const starts = lineStarts(code);
+  for (const edit of ordered) {
+    const { line, column } = lineAndColumn(starts, edit.start);
+    const onLine = shifts.get(line) ?? [];
+    onLine.push({ line, column, delta: edit.text.length - (edit.end - edit.start) });
+    shifts.set(line, onLine);
   }
-  return { code: publish + rewritten, declarations, shifts };
+  // Columns ascend within a line already (edits are in offset order), except for the wrapper's shift at column 0, which comes first.
+  return { code: publish + pieces.join(''), declarations, shifts };
 }
 
 function patternNames(pattern: Pattern): string[] {
@@ -210,33 +232,92 @@ function patternNames(pattern: Pattern): string[] {
   }
 }
 
+const INLINE_NAME = '__kvarbookInline';
+
+/**
+ * All inline values are stripped of their types in one esbuild call (one call each would cost a round trip per
+ * value): each becomes `__kvarbookInlineN = (expression);` on lines of its own, and acorn reads the JavaScript of
+ * each back out of esbuild's output. A text that is not exactly one expression is refused.
+ */
 export function transpileInlines(study: Study): TranspiledInline[] {
+  if (study.inlines.length === 0) return [];
+  const startLines: number[] = [];
+  let line = 1;
+  const combined = study.inlines
+    .map((inline, index) => {
+      startLines.push(line);
+      line += inline.expression.split('\n').length + 1;
+      return `${INLINE_NAME}${index} = (${inline.expression}\n);`;
+    })
+    .join('\n');
+  let code: string;
+  try {
+    code = transformSync(combined, { loader: 'ts', target: 'es2022' }).code;
+  } catch (error) {
+    const errors = (error as { errors?: Message[] }).errors ?? [];
+    const failing = new Set(errors.map((message) => inlineAtLine(startLines, message.location?.line ?? 1)));
+    throw new StudyFailure([...failing].map((index) => inlineSyntax(study, study.inlines[index]!, errors.find((message) => inlineAtLine(startLines, message.location?.line ?? 1) === index)?.text)));
+  }
+  const statements = parse(code, { ecmaVersion: 'latest', sourceType: 'module', allowAwaitOutsideFunction: true }).body;
+  // Each inline value must be exactly one statement; extra statements mean that a text closed its parenthesis and
+  // went on (`x); other(`), and they count against the value they follow.
+  const scripts = new Map<number, string>();
+  const statementCounts = new Map<number, number>();
+  let current: number | undefined;
+  for (const statement of statements) {
+    const index = assignedInline(statement);
+    if (index !== undefined && !scripts.has(index)) {
+      const right = (statement as unknown as { expression: { right: AcornNode } }).expression.right;
+      scripts.set(index, code.slice(right.start, right.end));
+      current = index;
+    }
+    const owner = current ?? 0;
+    statementCounts.set(owner, (statementCounts.get(owner) ?? 0) + 1);
+  }
   const diagnostics: Diagnostic[] = [];
   const out: TranspiledInline[] = [];
-  for (const inline of study.inlines) {
-    try {
-      const { code } = transformSync(`(${inline.expression})`, { loader: 'ts', target: 'es2022' });
-      const expression = code.trim().replace(/;$/, '');
-      out.push({ inlineId: inline.id, script: `(async function () { "use strict"; return ${expression}; })()`, inline });
-    } catch (error) {
-      const first = (error as { errors?: Message[] }).errors?.[0];
-      diagnostics.push({
-        code: 'inline-syntax',
-        message: `the inline value {{ ${inline.expression} }} is not an expression${first ? `: ${first.text}` : ''}`,
-        at: inline.at,
-        excerpt: excerptAround(study.source, inline.at.line, inline.at.column),
-        hint: 'write a single expression between the braces, e.g. {{ chargingMvar }}',
-      });
-    }
-  }
+  study.inlines.forEach((inline, index) => {
+    const script = scripts.get(index);
+    if (script === undefined || statementCounts.get(index) !== 1) diagnostics.push(inlineSyntax(study, inline, 'it is not a single expression'));
+    else out.push({ inlineId: inline.id, script: `(async function () { "use strict"; return ${script}; })()`, inline });
+  });
   if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
   return out;
+}
+
+/** Which inline value a line of the combined text belongs to. */
+function inlineAtLine(startLines: readonly number[], line: number): number {
+  let low = 0;
+  let high = startLines.length - 1;
+  while (low < high) {
+    const middle = (low + high + 1) >> 1;
+    if (startLines[middle]! <= line) low = middle;
+    else high = middle - 1;
+  }
+  return low;
+}
+
+function assignedInline(statement: AcornNode): number | undefined {
+  const expression = (statement as { expression?: { type: string; operator?: string; left?: { type: string; name?: string } } }).expression;
+  if (statement.type !== 'ExpressionStatement' || expression?.type !== 'AssignmentExpression' || expression.operator !== '=') return undefined;
+  const name = expression.left?.type === 'Identifier' ? expression.left.name : undefined;
+  return name?.startsWith(INLINE_NAME) ? Number(name.slice(INLINE_NAME.length)) : undefined;
+}
+
+function inlineSyntax(study: Study, inline: InlineExpression, detail: string | undefined): Diagnostic {
+  return {
+    code: 'inline-syntax',
+    message: `the inline value {{ ${inline.expression} }} is not an expression${detail ? `: ${detail}` : ''}`,
+    at: inline.at,
+    excerpt: excerptAround(study.source, inline.at.line, inline.at.column),
+    hint: 'write a single expression between the braces, e.g. {{ chargingMvar }}',
+  };
 }
 
 /** A position in a transpiled block's script, as a study line and column. */
 export function studyPositionOf(block: TranspiledBlock, scriptLine: number, scriptColumn: number): { line: number; column: number } {
   let column0 = scriptColumn - 1;
-  const lineShifts = block.shifts.filter((shift) => shift.line === scriptLine).sort((a, b) => a.column - b.column);
+  const lineShifts = block.shifts.get(scriptLine) ?? [];
   let applied = 0;
   for (const shift of lineShifts) {
     if (column0 - applied - shift.delta >= shift.column) applied += shift.delta;

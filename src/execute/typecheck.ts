@@ -1,9 +1,14 @@
 // Type-checks all calculation blocks together against the block API, with every error mapped to its study line.
-import { join } from 'node:path';
+import { dirname, join, resolve, sep } from 'node:path';
 import type ts from 'typescript';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
 import { KVARBOOK_ROOT } from './childBundle.ts';
+import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
+import { HOST_STAGE_LIMITS } from './limits.ts';
+
+/** What the type check reads of a study: plain data, so that it can be handed to the worker that runs the compiler. */
+export type CheckedStudy = Pick<Study, 'file' | 'source' | 'inputs' | 'blocks' | 'inlines'>;
 
 const VIRTUAL_FILE = join(KVARBOOK_ROOT, '.kvarbook-study-check.ts');
 
@@ -34,7 +39,7 @@ function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
 }
 
 /** The block API's globals from blockGlobals.d.ts, and this study's inputs added to them. */
-function preamble(study: Study): string {
+function preamble(study: CheckedStudy): string {
   const globals = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/blockGlobals.d.ts'));
   const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/child/blockApi.ts'));
   const inputFields = study.inputs.map((input) => `    readonly ${input.name}: InputValue;`).join('\n');
@@ -45,8 +50,35 @@ function preamble(study: Study): string {
   ].join('\n');
 }
 
-/** Inline values are checked too, each as an expression after the blocks it follows. */
-export async function typecheckStudy(study: Study): Promise<void> {
+/**
+ * The compiler runs in a limited worker: a study's types can make it work for a long time (deeply recursive or
+ * combinatorial types), and that work must end at a deadline and a heap limit without taking the host with it.
+ */
+export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck): Promise<void> {
+  const checked: CheckedStudy = { file: study.file, source: study.source, inputs: study.inputs, blocks: study.blocks, inlines: study.inlines };
+  const worker = openLimitedWorker(new URL(import.meta.url), 'typecheckDiagnostics', limits);
+  let diagnostics: Diagnostic[];
+  try {
+    diagnostics = (await worker.call(checked)) as Diagnostic[];
+  } catch (error) {
+    if (!(error instanceof WorkerLimitError)) throw error;
+    const { callSeconds, heapMb } = limits;
+    const line = study.blocks[0]?.fenceLine ?? 1;
+    throw new StudyFailure([{
+      code: 'typecheck-limit',
+      message: `the type check of the blocks ${error.message} (it may take ${callSeconds} s and ${heapMb} MB)`,
+      at: { file: study.file, line },
+      excerpt: excerptAround(study.source, line),
+      hint: 'look for types that expand without end (recursive or combinatorial types); --no-typecheck skips the step while drafting',
+    }]);
+  } finally {
+    await worker.close();
+  }
+  if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
+}
+
+/** Every type problem of the study's blocks and inline values, each at its study line; inline values are checked as expressions after the blocks they follow. */
+export async function typecheckDiagnostics(study: CheckedStudy): Promise<Diagnostic[]> {
   // The compiler is large; load it only when a study is checked.
   const { default: typescript } = await import('typescript');
   const options = compilerOptions(typescript);
@@ -54,8 +86,14 @@ export async function typecheckStudy(study: Study): Promise<void> {
   const parts: string[] = [preamble(study)];
   let line = parts[0]!.split('\n').length;
   const runnable = study.blocks.filter((block) => !block.options.noRun);
+  const inlinesAfter = new Map<number, CheckedStudy['inlines']>();
+  for (const inline of study.inlines) {
+    const group = inlinesAfter.get(inline.afterRunnableBlocks);
+    if (group) group.push(inline);
+    else inlinesAfter.set(inline.afterRunnableBlocks, [inline]);
+  }
   const addInlines = (afterRunnableBlocks: number) => {
-    for (const inline of study.inlines.filter((candidate) => candidate.afterRunnableBlocks === afterRunnableBlocks)) {
+    for (const inline of inlinesAfter.get(afterRunnableBlocks) ?? []) {
       const prefix = 'void (';
       segments.push({ virtualStart: line, lineCount: 1, studyLine: inline.at.line, studyColumn: (inline.at.column ?? 1) + 3, prefixLength: prefix.length });
       parts.push(`${prefix}${inline.expression.replace(/\n/g, ' ')});`);
@@ -76,14 +114,19 @@ export async function typecheckStudy(study: Study): Promise<void> {
   parts.push('export {};');
   const text = parts.join('\n');
 
-  const host = typescript.createCompilerHost(options, true);
-  const readFile = host.readFile.bind(host);
-  const getSourceFile = host.getSourceFile.bind(host);
-  host.readFile = (fileName) => (fileName === VIRTUAL_FILE ? text : readFile(fileName));
-  host.fileExists = ((original) => (fileName: string) => fileName === VIRTUAL_FILE || original(fileName))(host.fileExists.bind(host));
-  host.getSourceFile = (fileName, languageVersion, onError, shouldCreate) =>
-    fileName === VIRTUAL_FILE ? typescript.createSourceFile(fileName, text, languageVersion, true) : getSourceFile(fileName, languageVersion, onError, shouldCreate);
-  const program = typescript.createProgram([VIRTUAL_FILE], options, host);
+  const parsed = typescript.createSourceFile(VIRTUAL_FILE, text, options.target ?? typescript.ScriptTarget.ES2022, true);
+  const studyAt = (position: ts.LineAndCharacter) => {
+    const segment = segmentAt(segments, position.line);
+    if (!segment) return undefined;
+    const studyLine = segment.studyLine + (position.line - segment.virtualStart);
+    const column = position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
+    return { line: studyLine, column };
+  };
+  // Before the compiler resolves anything: a study that names another file is refused, and no file is read.
+  const refused = moduleRefusals(typescript, parsed, text, studyAt, study);
+  if (refused.length > 0) return refused;
+
+  const program = typescript.createProgram([VIRTUAL_FILE], options, confinedHost(typescript, options, parsed));
   const sourceFile = program.getSourceFile(VIRTUAL_FILE)!;
   const found = [...program.getSyntacticDiagnostics(sourceFile), ...program.getSemanticDiagnostics(sourceFile)];
   const diagnostics: Diagnostic[] = [];
@@ -91,13 +134,12 @@ export async function typecheckStudy(study: Study): Promise<void> {
   for (const problem of found) {
     if (problem.start === undefined) continue;
     const position = sourceFile.getLineAndCharacterOfPosition(problem.start);
-    const segment = segments.find((candidate) => position.line >= candidate.virtualStart && position.line < candidate.virtualStart + candidate.lineCount);
-    if (!segment) continue;
-    const studyLine = segment.studyLine + (position.line - segment.virtualStart);
+    const mapped = studyAt(position);
+    if (!mapped) continue;
+    const { line: studyLine, column } = mapped;
     const key = `${problem.code}:${position.line}:${position.character}`;
     if (seen.has(key)) continue;
     seen.add(key);
-    const column = position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
     diagnostics.push({
       code: `type-${problem.code}`,
       message: typescript.flattenDiagnosticMessageText(problem.messageText, '\n  '),
@@ -106,5 +148,104 @@ export async function typecheckStudy(study: Study): Promise<void> {
       hint: 'the block API and solver are typed; run with --no-typecheck to skip this step while drafting',
     });
   }
-  if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
+  return diagnostics;
+}
+
+/** The segment holding a line of the virtual file; segments are in line order, so a binary search finds it. */
+function segmentAt(segments: readonly Segment[], line: number): Segment | undefined {
+  let low = 0;
+  let high = segments.length - 1;
+  while (low <= high) {
+    const middle = (low + high) >> 1;
+    const segment = segments[middle]!;
+    if (line < segment.virtualStart) high = middle - 1;
+    else if (line >= segment.virtualStart + segment.lineCount) low = middle + 1;
+    else return segment;
+  }
+  return undefined;
+}
+
+const MODULE_REFUSED_HINT =
+  'a calculation block sees only the study and the block API: inputs, result, table, chart, solver.… and charts.… are globals, so nothing needs importing';
+
+/** Every place in the study's code that would make the compiler look for another file: imports, import types, references. */
+function moduleRefusals(
+  typescript: typeof ts,
+  sourceFile: ts.SourceFile,
+  text: string,
+  studyAt: (position: ts.LineAndCharacter) => { line: number; column: number } | undefined,
+  study: CheckedStudy,
+): Diagnostic[] {
+  const refusals: Diagnostic[] = [];
+  const refuse = (position: number, what: string) => {
+    const at = studyAt(sourceFile.getLineAndCharacterOfPosition(position));
+    if (!at) return;
+    refusals.push({
+      code: 'type-module-refused',
+      message: `the type check refuses ${what}: it reads no file but the study and the block API's declarations`,
+      at: { file: study.file, ...at },
+      excerpt: excerptAround(study.source, at.line, at.column),
+      hint: MODULE_REFUSED_HINT,
+    });
+  };
+  const named = (specifier: ts.Node | undefined) =>
+    specifier && typescript.isStringLiteralLike(specifier) ? `the module ${JSON.stringify(specifier.text)}` : 'a module';
+  const visit = (node: ts.Node): void => {
+    if (typescript.isImportDeclaration(node) || typescript.isExportDeclaration(node)) {
+      if (node.moduleSpecifier) refuse(node.getStart(sourceFile), named(node.moduleSpecifier));
+    } else if (typescript.isImportEqualsDeclaration(node) && typescript.isExternalModuleReference(node.moduleReference)) {
+      refuse(node.getStart(sourceFile), named(node.moduleReference.expression));
+    } else if (typescript.isImportTypeNode(node)) {
+      const literal = typescript.isLiteralTypeNode(node.argument) ? node.argument.literal : undefined;
+      refuse(node.getStart(sourceFile), named(literal));
+    } else if (typescript.isCallExpression(node) && node.expression.kind === typescript.SyntaxKind.ImportKeyword) {
+      refuse(node.getStart(sourceFile), named(node.arguments[0]));
+    } else if (typescript.isModuleDeclaration(node) && typescript.isStringLiteral(node.name)) {
+      // An augmentation of a module by name makes the compiler resolve that name.
+      refuse(node.getStart(sourceFile), named(node.name));
+    }
+    typescript.forEachChild(node, visit);
+  };
+  typescript.forEachChild(sourceFile, visit);
+  // Triple-slash directives are comments to the parser; each one would name a file, a type package or a library.
+  const lines = text.split('\n');
+  lines.forEach((line, index) => {
+    const directive = /^(\s*)\/\/\/\s*<(reference|amd-module|amd-dependency)\b/.exec(line);
+    if (directive) refuse(sourceFile.getPositionOfLineAndCharacter(index, directive[1]!.length), `the directive "${line.trim()}"`);
+  });
+  return refusals.sort((a, b) => a.at!.line - b.at!.line || (a.at!.column ?? 0) - (b.at!.column ?? 0));
+}
+
+/**
+ * A compiler host that sees only the study (in memory), TypeScript's own library files and the block API's
+ * declarations inside kvarbook: every other path on the checker's machine does not exist for it.
+ */
+function confinedHost(typescript: typeof ts, options: ts.CompilerOptions, studyFile: ts.SourceFile): ts.CompilerHost {
+  const host = typescript.createCompilerHost(options, true);
+  const libraryFolder = resolve(dirname(typescript.getDefaultLibFilePath(options))) + sep;
+  const sourceFolder = resolve(KVARBOOK_ROOT, 'src') + sep;
+  const dependencyFolder = resolve(KVARBOOK_ROOT, 'node_modules') + sep;
+  const visible = (fileName: string): boolean => {
+    const path = resolve(fileName);
+    if (path === VIRTUAL_FILE) return true;
+    if (path.startsWith(libraryFolder) || path.startsWith(sourceFolder)) return true;
+    // Dependencies of the block API's types (units, chart themes): their declarations and package manifests only.
+    return path.startsWith(dependencyFolder) && !path.includes(`${sep}.cache${sep}`) && /(\.d\.[cm]?ts|[\\/]package\.json)$/.test(path);
+  };
+  const folderVisible = (folder: string): boolean => {
+    const path = resolve(folder) + sep;
+    return [libraryFolder, sourceFolder, dependencyFolder].some((allowed) => path.startsWith(allowed) || allowed.startsWith(path));
+  };
+  const { readFile, fileExists, getSourceFile, directoryExists, getDirectories, realpath } = host;
+  host.readFile = (fileName) => (resolve(fileName) === VIRTUAL_FILE ? studyFile.text : visible(fileName) ? readFile.call(host, fileName) : undefined);
+  host.fileExists = (fileName) => visible(fileName) && (resolve(fileName) === VIRTUAL_FILE || fileExists.call(host, fileName));
+  host.getSourceFile = (fileName, languageVersion, onError, shouldCreate) => {
+    if (resolve(fileName) === VIRTUAL_FILE) return studyFile;
+    return visible(fileName) ? getSourceFile.call(host, fileName, languageVersion, onError, shouldCreate) : undefined;
+  };
+  host.directoryExists = (folder) => folderVisible(folder) && (directoryExists?.call(host, folder) ?? true);
+  host.getDirectories = (folder) => (folderVisible(folder) ? (getDirectories?.call(host, folder) ?? []) : []);
+  // Following a link could lead out of the visible folders; paths are taken as they are.
+  host.realpath = (path) => (visible(path) && realpath ? realpath.call(host, path) : path);
+  return host;
 }

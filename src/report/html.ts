@@ -10,6 +10,7 @@ import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
 import { formatNumber, formatQuantity, formatStated } from './format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
+import { describeLimits } from './provenance.ts';
 
 const md = createMarkdown();
 const escape = md.utils.escapeHtml;
@@ -24,6 +25,12 @@ export interface ReportParts {
   body: string;
 }
 
+/**
+ * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
+ * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
+ */
+export const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
 
@@ -36,11 +43,20 @@ function where(at: SourceLocation | undefined): string {
   return `<span class="where">line ${at.line}</span>`;
 }
 
-function slug(text: string, taken: Set<string>): string {
+/** Ids taken so far, and for each base the next number to try, so that a hundred equal headings cost a hundred steps. */
+interface Slugs {
+  taken: Set<string>;
+  next: Map<string, number>;
+}
+
+function slug(text: string, slugs: Slugs): string {
   const base = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'section';
   let candidate = base;
-  for (let n = 2; taken.has(candidate); n++) candidate = `${base}-${n}`;
-  taken.add(candidate);
+  for (let n = slugs.next.get(base) ?? 2; slugs.taken.has(candidate); n++) {
+    candidate = `${base}-${n}`;
+    slugs.next.set(base, n + 1);
+  }
+  slugs.taken.add(candidate);
   return candidate;
 }
 
@@ -154,7 +170,7 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
 function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
   const blocksByFence = new Map(run.study.blocks.map((block) => [block.fenceLine, block]));
   const outcomes = new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome]));
-  const taken = new Set<string>(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']);
+  const slugs: Slugs = { taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']), next: new Map() };
   const renderer = md.renderer;
   const rules = { ...renderer.rules };
   renderer.rules[INLINE_VALUE_TOKEN] = (tokens: Token[], index: number) => {
@@ -165,7 +181,7 @@ function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, hea
   renderer.rules.heading_open = (tokens: Token[], index: number) => {
     const token = tokens[index]!;
     const text = tokens[index + 1]?.children?.map((child) => (child.type === INLINE_VALUE_TOKEN ? '' : child.content)).join('') ?? '';
-    const id = slug(text, taken);
+    const id = slug(text, slugs);
     const level = Number(token.tag.slice(1));
     // The report's own h1 is the title; body headings move one level down.
     const shifted = Math.min(6, level + 1);
@@ -272,8 +288,21 @@ function provenanceList(run: StudyRun): string {
     item('SHA-256 of package-lock.json', `<code class="hash">${escape(p.lockfileSha256)}</code>`),
     item('Type check of the blocks', p.typeChecked ? 'done' : 'skipped at the author’s request'),
     item('Isolation of the blocks', escape(p.isolation)),
-    item('Limits', escape(`${p.limits.blockSeconds} s per block, ${p.limits.studySeconds} s per study, ${p.limits.heapMb} MB heap`)),
+    item('Limits', escape(describeLimits(p))),
   ].join('')}</dl>`;
+}
+
+/** "12", "12 and 40", "12, 40 and 77". */
+function listed(items: readonly (string | number)[]): string {
+  return items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
+/** Where the code of hide-code blocks is, so that a reader knows there is code the report does not show. */
+export function hiddenCodeText(run: StudyRun): string {
+  const lines = run.study.blocks.filter((block) => block.options.hideCode).map((block) => block.fenceLine);
+  if (lines.length === 0) return 'none: every calculation block shows its code';
+  const count = lines.length === 1 ? '1 calculation block hides its code' : `${lines.length} calculation blocks hide their code`;
+  return `${count} (study ${lines.length === 1 ? 'line' : 'lines'} ${listed(lines)}); ${lines.length === 1 ? 'its' : 'their'} code is in the study source carried in this report`;
 }
 
 function titleBlock(run: StudyRun, failed: number, total: number): string {
@@ -291,6 +320,7 @@ function titleBlock(run: StudyRun, failed: number, total: number): string {
 <div><dt>Engineer</dt><dd>${person(meta.engineer)}</dd></div>
 <div><dt>Checker</dt><dd>${person(meta.checker)}</dd></div>
 <div><dt>Status</dt><dd class="${failed > 0 ? 'fail' : 'pass'}">${escape(status)}</dd></div>
+<div><dt>Hidden code</dt><dd>${escape(hiddenCodeText(run))}</dd></div>
 ${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escape(input.name)} = ${escape(formatQuantity(formatStated(input.value, 15), input.unit))}`).join(', ')}</dd></div>` : ''}
 </dl>
 </header>`;
@@ -319,6 +349,7 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
 <html lang="en">
 <head>
 <meta charset="utf-8">
+<meta http-equiv="Content-Security-Policy" content="${CONTENT_SECURITY_POLICY}">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <meta name="generator" content="kvarbook ${escape(run.provenance.kvarbookVersion)}">
 <meta name="kvarbook-study" content="${escape(meta.id)}">

@@ -104,7 +104,12 @@ function collectBlocksAndInlines(
   const blocks: CalcBlock[] = [];
   const inlines: InlineExpression[] = [];
   let runnableSoFar = 0;
+  // Inline content of table cells carries no line of its own: it lies on the line of its row.
+  let lastLine = bodyFirstLine;
+  // Where the last `{{` found on a line was, so that a second value on the same line gets its own column.
+  const searchedTo = new Map<number, number>();
   for (const token of tokens) {
+    if (token.map) lastLine = token.map[0] + bodyFirstLine;
     if (token.type === 'fence' && token.map) {
       const fenceLine = token.map[0] + bodyFirstLine;
       const [language, ...words] = token.info.trim().split(/\s+/);
@@ -126,15 +131,25 @@ function collectBlocksAndInlines(
       }
       blocks.push({ index: blocks.length, code: token.content, fenceLine, firstCodeLine: fenceLine + 1, options });
       if (!options.noRun) runnableSoFar += 1;
-    } else if (token.type === 'inline' && token.map && token.children) {
-      const paragraphLine = token.map[0] + bodyFirstLine;
+    } else if (token.type === 'inline' && token.children) {
+      const paragraphLine = lastLine;
+      // Lines are counted forward from the previous value, so a long paragraph is read once, not once per value.
+      let countedTo = 0;
+      let lineInParagraph = 0;
       for (const child of token.children) {
+        if (child.type === 'image') {
+          refuseImageSource(file, source, lines, child, paragraphLine, diagnostics);
+          continue;
+        }
         if (child.type !== INLINE_VALUE_TOKEN) continue;
-        const before = token.content.slice(0, (child.meta as { offset: number }).offset);
-        const lineInParagraph = before.split('\n').length - 1;
+        const offset = (child.meta as { offset: number }).offset;
+        for (let index = token.content.indexOf('\n', countedTo); index >= 0 && index < offset; index = token.content.indexOf('\n', index + 1)) lineInParagraph += 1;
+        countedTo = Math.max(countedTo, offset);
         const line = paragraphLine + lineInParagraph;
         const lineText = lines[line - 1] ?? '';
-        const column = lineText.indexOf('{{') + 1 || 1;
+        const found = lineText.indexOf('{{', searchedTo.get(line) ?? 0);
+        searchedTo.set(line, found < 0 ? lineText.length : found + 2);
+        const column = found + 1 || 1;
         const at = { file, line, column };
         if (child.content === '') {
           diagnostics.push({
@@ -152,6 +167,38 @@ function collectBlocksAndInlines(
     }
   }
   return { blocks, inlines };
+}
+
+/** An image a report may show is carried in the study (a data: address); anything else would be loaded when the report is opened. */
+const CARRIED_IMAGE = /^data:image\/(png|jpeg|gif|webp);/i;
+
+function refuseImageSource(file: string, source: string, lines: string[], image: Token, paragraphLine: number, diagnostics: Diagnostic[]): void {
+  const address = String(image.attrGet('src') ?? '');
+  if (CARRIED_IMAGE.test(address)) return;
+  // markdown-it percent-encodes the address; as written it may sit on a later line of the paragraph, or in a reference definition.
+  const written = [address, readableAddress(address)].filter((text) => text !== '');
+  const columnIn = (index: number) => Math.min(...written.map((text) => lines[index]!.indexOf(text)).filter((at) => at >= 0));
+  const lineWith = (from: number, to: number) => {
+    for (let index = from; index < to; index++) if (Number.isFinite(columnIn(index))) return index;
+    return undefined;
+  };
+  const index = lineWith(paragraphLine - 1, Math.min(lines.length, paragraphLine + 50)) ?? lineWith(0, lines.length);
+  const line = index === undefined ? paragraphLine : index + 1;
+  diagnostics.push({
+    code: 'markdown-image-source',
+    message: `the image "${address}" would be loaded from outside the report when it is opened`,
+    at: { file, line, column: index === undefined ? 1 : columnIn(index) + 1 },
+    excerpt: excerptAround(source, line),
+    hint: 'a report is self-contained: embed the image as a data: address (data:image/png;base64,…), or draw it with chart()',
+  });
+}
+
+function readableAddress(address: string): string {
+  try {
+    return decodeURI(address);
+  } catch {
+    return address;
+  }
 }
 
 /** markdown-it lets an unclosed fence run to the end of the document; a study must not. */

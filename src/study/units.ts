@@ -52,18 +52,35 @@ export class UnitProblem extends Error {
   }
 }
 
+/** A quantity is short: "0.031 ohm/km". Anything longer is not a quantity, and is refused before it is read. */
+export const MAX_QUANTITY_CHARACTERS = 80;
+const PLAIN_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+const LEADING_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?(?=\s*[A-Za-z(])/;
+const QUANTITY_HINT = 'write a number and a unit, e.g. "400 kV", "0.031 ohm/km", "3.9 uS/km"; nothing is calculated here';
+
+/**
+ * A number and a unit, read by mathjs's unit parser only: never by its expression evaluator, so no text of a
+ * study (front matter, --set) is ever computed in the host.
+ */
 function toUnit(text: string): Unit | number {
   const trimmed = text.trim();
   if (trimmed === '') throw new UnitProblem('the quantity is empty', 'write a number and a unit, e.g. "400 kV"');
-  let parsed: unknown;
-  try {
-    parsed = math.evaluate(trimmed.replace(/(\d)\s*([A-Za-zµΩ])/u, '$1 $2').replace(/µ/g, 'u').replace(/Ω/g, 'ohm'));
-  } catch (error) {
-    throw new UnitProblem(`"${trimmed}" is not a number with a unit (${(error as Error).message})`, 'write a number and a unit, e.g. "400 kV", "0.031 ohm/km", "3.9 uS/km"');
+  if (trimmed.length > MAX_QUANTITY_CHARACTERS) {
+    throw new UnitProblem(`is ${trimmed.length} characters long; a quantity has at most ${MAX_QUANTITY_CHARACTERS}`, QUANTITY_HINT);
   }
-  if (typeof parsed === 'number') return parsed;
-  if (math.isUnit(parsed)) return parsed as Unit;
-  throw new UnitProblem(`"${trimmed}" is not a number with a unit`, 'write a number and a unit, e.g. "400 kV"');
+  const written = trimmed.replace(/µ/g, 'u').replace(/Ω/g, 'ohm');
+  if (PLAIN_NUMBER.test(written)) return Number(written);
+  if (!LEADING_NUMBER.test(written)) throw new UnitProblem(`"${trimmed}" is not a number with a unit`, QUANTITY_HINT);
+  try {
+    return math.Unit.parse(written);
+  } catch (error) {
+    throw new UnitProblem(`"${trimmed}" is not a number with a unit (${(error as Error).message})`, QUANTITY_HINT);
+  }
+}
+
+/** The unit as a reader writes it and the parser reads it back: "ohm/km", "m/s^2", "kV A". */
+function unitText(unit: Unit): string {
+  return unit.formatUnits().replace(/ \/ /g, '/');
 }
 
 /** Parse "400 kV", "3.9 uS/km" or a bare number; throws UnitProblem for anything else. */
@@ -83,7 +100,7 @@ export function parseQuantity(text: string | number): ParsedQuantity {
   if (!Number.isFinite(value) || !Number.isFinite(si)) {
     throw new UnitProblem(`"${text}" is not a finite quantity`, 'give a finite number');
   }
-  return { value: cleanFloat(value), unit: parsed.formatUnits().replace(/ /g, ''), si };
+  return { value: cleanFloat(value), unit: unitText(parsed), si };
 }
 
 /** mathjs stores prefixed values scaled, so 3.9 uS reads back as 3.9000000000000004; 15 significant digits undo that. */

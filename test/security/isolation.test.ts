@@ -74,23 +74,19 @@ describe('a study cannot reach the checker\'s files', () => {
     expect(problem.message).toContain("read only property 'prepareStackTrace'");
   });
 
-  it('gets neither a receiver nor a function from host frames through its own stack-trace hook', async () => {
+  it('cannot install its own stack-trace hook, which would be handed the host frames below the block', async () => {
     const machine = checkerMachine();
-    // The getter runs inside the host's table(), so the captured stack holds host frames below the block's own.
+    // The sandbox's Error is frozen with the rest of its built-ins, so the hook never exists to run inside table().
     const source = attackStudy(
       machine,
       [
-        'let exposed = -1;',
-        '(Error as any).prepareStackTrace = (_error: unknown, frames: any[]) => {',
-        '  exposed = frames.filter((frame) => frame.getThis() !== undefined || frame.getFunction() !== undefined).length;',
-        "  return 'hidden';",
-        '};',
+        '(Error as any).prepareStackTrace = (_error: unknown, frames: any[]) => frames.map((frame) => frame.getThis());',
         "table([{ get probe() { void new Error().stack; return 1; } }], { caption: 'probe' });",
-        "result('Host frames exposing an object', exposed);",
       ].join('\n'),
     );
-    const product = await runAttack(machine, source);
-    expect(product.results.results).toMatchObject([{ name: 'Host frames exposing an object', value: 0 }]);
+    const problem = await firstProblem(machine, source);
+    expect(problem).toMatchObject({ code: 'block-threw', at: { line: lineOf(source, 'prepareStackTrace') } });
+    expect(problem.message).toContain('not extensible');
   });
 
   it('cannot plant a getter on the host Object prototype for host code to call', async () => {

@@ -4,6 +4,9 @@ import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../re
 import { DEFAULT_DIGITS, formatQuantity, formatStated } from '../../report/format.ts';
 import { UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
 import { summarise } from './summarise.ts';
+import { freezeDeep } from './harden.ts';
+import { OUTPUT_LIMITS } from '../limits.ts';
+import { TEXT_PROBLEM_HINTS, type TextRole, nameKey, outputTextProblem } from '../outputText.ts';
 
 /** A thrown block-API misuse: the message names what and the hint says how to fix it. */
 export class BlockApiError extends Error {
@@ -26,6 +29,7 @@ export class Figure {
     this.value = value;
     this.unit = unit;
     this.digits = digits;
+    Object.freeze(this);
   }
   valueOf(): ScalarValue {
     return this.value;
@@ -106,12 +110,22 @@ function requireName(kind: string, name: unknown): string {
   if (typeof name !== 'string' || name.trim() === '') {
     throw new BlockApiError(`${kind}-name`, `${kind}() needs a name as its first argument, got ${describe(name)}`, `write e.g. ${kind}('receivingEndVoltage', ...)`);
   }
-  return name;
+  return checkedText(kind, 'the name', name, 'name');
+}
+
+const count = (value: number) => new Intl.NumberFormat('en-GB').format(value);
+
+/** A text a report shows, refused when it is too long, hides characters or says NaN. */
+export function checkedText(kind: string, what: string, text: string, role: TextRole): string {
+  const problem = outputTextProblem(role, text);
+  if (problem) throw new BlockApiError(problem.code, `${kind}: ${what} ${problem.message}`, TEXT_PROBLEM_HINTS[problem.code]);
+  return text;
 }
 
 function requireUnit(kind: string, name: string, unit: unknown): string {
   if (unit === undefined) return '';
   if (typeof unit !== 'string') throw new BlockApiError('unit', `${kind} "${name}": unit must be text, got ${describe(unit)}`, 'write e.g. { unit: "Mvar" }');
+  checkedText(kind, 'the unit', unit, 'name');
   const problem = unitProblem(unit);
   if (problem) throw new BlockApiError('unit', `${kind} "${name}": unknown unit "${unit}" (${problem})`, 'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %');
   return unit;
@@ -146,15 +160,27 @@ function describe(value: unknown): string {
 
 function scalarOf(kind: string, where: string, value: unknown): ScalarValue {
   const plain = value instanceof Figure || value instanceof InputValue ? value.value : value;
-  if (typeof plain === 'string' || typeof plain === 'boolean') return plain;
+  if (typeof plain === 'string') return checkedText(kind, `${where}: the text`, plain, 'text');
+  if (typeof plain === 'boolean') return plain;
   return requireFinite(kind, where, 'the value', plain);
 }
 
 /** Build the globals one study run shares across its blocks. */
 export function createBlockApi(inputData: readonly InputData[], recorder: Recorder, solverModule: Record<string, unknown>, chartModule: Record<string, unknown>) {
-  const resultNames = new Set<string>();
-  const criterionNames = new Set<string>();
+  // Keyed by look-alike form: "Vr" and a full-width "Ｖr" are one name to a reader.
+  const resultNames = new Map<string, string>();
+  const criterionNames = new Map<string, string>();
+  let writtenCharacters = 0;
   const emit = (record: BlockRecord) => {
+    // Everything a study writes counts against one allowance, so that no loop can make the report grow without end.
+    writtenCharacters += JSON.stringify(record).length;
+    if (writtenCharacters > OUTPUT_LIMITS.studyOutputBytes) {
+      throw new BlockApiError(
+        'output-limit',
+        `the study has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all (results, tables, charts, printed text), which is all a report holds`,
+        'print less (console.log inside a loop adds up), or summarise long series in a table or a chart',
+      );
+    }
     const position = recorder.callerPosition();
     recorder.record(position ? { ...record, position } : record);
   };
@@ -165,8 +191,13 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
 
   function result(name: string, value: ScalarValue | Figure, options: ResultOptions = {}): Figure {
     requireName('result', name);
-    if (resultNames.has(name)) {
-      throw new BlockApiError('result-duplicate', `result "${name}" is recorded twice`, 'every named result is a figure a checker verifies: give each its own name');
+    const earlier = resultNames.get(nameKey(name));
+    if (earlier !== undefined) {
+      throw new BlockApiError(
+        'result-duplicate',
+        earlier === name ? `result "${name}" is recorded twice` : `result "${name}" looks like the result "${earlier}" recorded before`,
+        'every named result is a figure a checker verifies: give each its own name',
+      );
     }
     const scalar = scalarOf('result', name, value);
     const unit = requireUnit('result', name, options.unit ?? (value instanceof Figure ? value.unit : undefined));
@@ -174,14 +205,14 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     if (options.tolerance !== undefined && !(typeof options.tolerance === 'number' && options.tolerance > 0 && options.tolerance < 1)) {
       throw new BlockApiError('tolerance', `result "${name}": tolerance = ${describe(options.tolerance)} is outside the allowed range (0, 1)`, 'tolerance is the relative difference a checker accepts, e.g. 1e-6');
     }
-    resultNames.add(name);
+    resultNames.set(nameKey(name), name);
     emit({
       kind: 'result',
       name,
       value: scalar,
       unit,
       digits,
-      ...(options.note ? { note: String(options.note) } : {}),
+      ...(options.note ? { note: checkedText('result', `"${name}": the note`, String(options.note), 'text') } : {}),
       ...(options.tolerance !== undefined ? { tolerance: options.tolerance } : {}),
     });
     return new Figure(scalar, unit, digits);
@@ -189,7 +220,10 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
 
   function criterion(name: string, value: number | Figure, limits: CriterionLimits): boolean {
     requireName('criterion', name);
-    if (criterionNames.has(name)) throw new BlockApiError('criterion-duplicate', `criterion "${name}" is checked twice`, 'give each criterion its own name');
+    const earlier = criterionNames.get(nameKey(name));
+    if (earlier !== undefined) {
+      throw new BlockApiError('criterion-duplicate', earlier === name ? `criterion "${name}" is checked twice` : `criterion "${name}" looks like the criterion "${earlier}" checked before`, 'give each criterion its own name');
+    }
     const number = requireFinite('criterion', name, 'the value', value);
     if (!limits || (limits.min === undefined && limits.max === undefined)) {
       throw new BlockApiError('criterion-limits', `criterion "${name}" has neither min nor max`, 'write e.g. criterion("Receiving-end voltage", v, { min: 0.95, max: 1.05, unit: "pu" })');
@@ -200,7 +234,7 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     const unit = requireUnit('criterion', name, limits.unit ?? (value instanceof Figure ? value.unit : undefined));
     const digits = requireDigits('criterion', name, limits.digits ?? (value instanceof Figure ? value.digits : undefined));
     const passed = (min === undefined || number >= min) && (max === undefined || number <= max);
-    criterionNames.add(name);
+    criterionNames.set(nameKey(name), name);
     emit({
       kind: 'criterion',
       name,
@@ -210,22 +244,30 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
       ...(min !== undefined ? { min } : {}),
       ...(max !== undefined ? { max } : {}),
       passed,
-      ...(limits.note ? { note: String(limits.note) } : {}),
+      ...(limits.note ? { note: checkedText('criterion', `"${name}": the note`, String(limits.note), 'text') } : {}),
     });
     return passed;
   }
 
   function caution(text: string): void {
     if (typeof text !== 'string' || text.trim() === '') throw new BlockApiError('caution-text', 'caution() needs the text of the caution', 'write e.g. caution("Energise the reactor before the line ...")');
-    emit({ kind: 'caution', text: text.trim() });
+    emit({ kind: 'caution', text: checkedText('caution', 'the text', text.trim(), 'text') });
   }
 
   function table(rows: readonly (Record<string, unknown> | readonly unknown[])[], options: TableOptions = {}): void {
     if (!Array.isArray(rows)) throw new BlockApiError('table-rows', 'table() needs an array of rows', 'pass e.g. [{ caseName: "light load", vrPu: 1.02 }]');
     const columnOptions: TableColumnOption[] =
       options.columns ?? (rows.length > 0 && !Array.isArray(rows[0]) ? Object.keys(rows[0] as object).map((key) => ({ key })) : []);
+    const caption = options.caption === undefined ? undefined : checkedText('table', 'the caption', String(options.caption), 'caption');
+    if (rows.length * columnOptions.length > OUTPUT_LIMITS.tableCells) {
+      throw new BlockApiError(
+        'output-limit',
+        `table${caption ? ` "${caption.slice(0, 80)}"` : ''}: ${count(rows.length)} rows of ${columnOptions.length} columns are ${count(rows.length * columnOptions.length)} cells; a report table holds at most ${count(OUTPUT_LIMITS.tableCells)}`,
+        'show fewer rows (every tenth point, or the ends and extremes), or draw the series as a chart',
+      );
+    }
     const columns: TableColumn[] = columnOptions.map((column, index) => {
-      const label = column.label ?? column.key ?? `column ${index + 1}`;
+      const label = checkedText('table column', 'the label', String(column.label ?? column.key ?? `column ${index + 1}`), 'name');
       return {
         key: String(column.key ?? index),
         label,
@@ -236,24 +278,34 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     const body: ScalarValue[][] = rows.map((row, rowIndex) =>
       columns.map((column, columnIndex) => {
         const cell = Array.isArray(row) ? row[columnIndex] : (row as Record<string, unknown>)[column.key];
-        return scalarOf('table', `${options.caption ?? 'table'}, row ${rowIndex + 1}, column "${column.label}"`, cell);
+        return scalarOf('table', `${caption ?? 'table'}, row ${rowIndex + 1}, column "${column.label}"`, cell);
       }),
     );
-    emit({ kind: 'table', ...(options.caption ? { caption: options.caption } : {}), columns, rows: body });
+    emit({ kind: 'table', ...(caption ? { caption } : {}), columns, rows: body });
   }
 
   function chart(spec: object, options: ChartOptions): void {
     if (!options || typeof options.caption !== 'string' || options.caption.trim() === '') {
       throw new BlockApiError('chart-caption', 'chart() needs { caption: "..." }: every figure in a report has a caption', 'write e.g. chart(spec, { caption: "Receiving-end voltage along the line" })');
     }
+    const caption = checkedText('chart', 'the caption', options.caption.trim(), 'caption');
     let plain: unknown;
     try {
-      plain = JSON.parse(JSON.stringify(spec));
+      const json = JSON.stringify(spec);
+      if (json.length > OUTPUT_LIMITS.chartSpecCharacters) {
+        throw new BlockApiError(
+          'output-limit',
+          `chart "${caption.slice(0, 80)}": the specification is ${count(json.length)} characters of JSON; a chart may have at most ${count(OUTPUT_LIMITS.chartSpecCharacters)}`,
+          'draw fewer points: a line of a few hundred points looks the same on paper',
+        );
+      }
+      plain = JSON.parse(json);
     } catch (error) {
-      throw new BlockApiError('chart-spec', `chart "${options.caption}": the specification is not plain data (${(error as Error).message})`, 'a Vega-Lite specification is JSON: numbers, text, arrays and objects');
+      if (error instanceof BlockApiError) throw error;
+      throw new BlockApiError('chart-spec', `chart "${caption}": the specification is not plain data (${(error as Error).message})`, 'a Vega-Lite specification is JSON: numbers, text, arrays and objects');
     }
-    if (typeof plain !== 'object' || plain === null) throw new BlockApiError('chart-spec', `chart "${options.caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
-    emit({ kind: 'chart', caption: options.caption.trim(), spec: plain });
+    if (typeof plain !== 'object' || plain === null) throw new BlockApiError('chart-spec', `chart "${caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
+    emit({ kind: 'chart', caption, spec: plain });
   }
 
   function figure(value: ScalarValue, unit = '', digits?: number): Figure {
@@ -266,10 +318,13 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
   );
 
   const console = {
-    log: (...parts: unknown[]) => emit({ kind: 'text', text: parts.map(String).join(' ') }),
+    log: (...parts: unknown[]) => emit({ kind: 'text', text: checkedText('console.log', 'the printed line', parts.map(String).join(' '), 'text') }),
   };
 
-  return Object.freeze({ inputs, result, criterion, caution, table, chart, figure, solver, charts: Object.freeze({ ...chartModule }), console });
+  // The classes of what the API returns and throws: their prototypes are reachable from every instance.
+  freezeDeep([Figure, InputValue, BlockApiError]);
+  // Deeply: the functions with their own properties, the namespaces, the inputs.
+  return freezeDeep({ inputs, result, criterion, caution, table, chart, figure, solver, charts: { ...chartModule }, console });
 }
 
 /** Every exported solver function, recorded in the calculation log when a block calls it. */
@@ -287,7 +342,8 @@ function wrapSolver(
     wrapped[name] = (...args: unknown[]) => {
       const returned = fn(...args);
       log(name, args, returned);
-      return returned;
+      // A result one block keeps is read by later ones: no block may change it for them.
+      return freezeDeep(returned);
     };
   }
   return Object.freeze(wrapped);

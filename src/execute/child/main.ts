@@ -6,8 +6,11 @@ import type { BlockErrorReport, BlockPosition, BlockRecord } from '../records.ts
 import { DEFAULT_DIGITS, formatQuantity } from '../../report/format.ts';
 import * as solverModule from '../../solver/index.ts';
 import * as chartModule from '../../report/chart/builders.ts';
-import { BlockApiError, Figure, InputValue, createBlockApi } from './blockApi.ts';
+import { BlockApiError, Figure, InputValue, checkedText, createBlockApi } from './blockApi.ts';
 import { lockDown } from './lockDown.ts';
+import { freezeDeep, hardenContext } from './harden.ts';
+import { ChartInputError } from '../../report/chart/errors.ts';
+import { UnitProblem } from '../../study/units.ts';
 
 let context: vm.Context | undefined;
 let blockMilliseconds = 10_000;
@@ -55,8 +58,12 @@ function createContext(inputs: InputData[]): vm.Context {
   for (const [name, value] of Object.entries(api)) {
     Object.defineProperty(sandbox, name, { value, writable: false, configurable: false, enumerable: true });
   }
+  // Errors the builders and unit conversions throw reach blocks too, and with them their classes.
+  freezeDeep([ChartInputError, UnitProblem]);
   // Blocks and inline values need no code generation from strings; refusing it closes one more door.
-  return vm.createContext(sandbox, { codeGeneration: { strings: false, wasm: false } });
+  const created = vm.createContext(sandbox, { codeGeneration: { strings: false, wasm: false } });
+  hardenContext(created);
+  return created;
 }
 
 /** Names a block declares become accessors on the shared scope: visible to later blocks, constant ones locked after. */
@@ -112,15 +119,21 @@ function inlineText(value: unknown): string {
   throw new BlockApiError('inline-type', `the inline value is ${value === null ? 'null' : typeof value}, which has no written form`, 'show a number, text, a result, or figure(value, unit)');
 }
 
-async function evaluateInline(inlineId: number, code: string): Promise<void> {
+/** Evaluates the values in order and answers once: all their texts, or the first that failed. */
+async function evaluateInlines(inlines: { inlineId: number; script: string }[]): Promise<void> {
   if (!context) throw new Error('the child was not started');
-  try {
-    const script = new vm.Script(code, { filename: inlineScriptName(inlineId) });
-    const value = await script.runInContext(context, { timeout: blockMilliseconds });
-    send({ type: 'inline-done', inlineId, text: inlineText(value) });
-  } catch (error) {
-    send({ type: 'inline-failed', inlineId, error: report(error) });
+  const texts: { inlineId: number; text: string }[] = [];
+  for (const { inlineId, script: code } of inlines) {
+    try {
+      const script = new vm.Script(code, { filename: inlineScriptName(inlineId) });
+      const value = await script.runInContext(context, { timeout: blockMilliseconds });
+      texts.push({ inlineId, text: checkedText('the inline value', 'its text', inlineText(value), 'text') });
+    } catch (error) {
+      send({ type: 'inline-failed', inlineId, error: report(error) });
+      return;
+    }
   }
+  send({ type: 'inlines-done', texts });
 }
 
 let queue: Promise<void> = Promise.resolve();
@@ -135,8 +148,8 @@ process.on('message', (message: ParentMessage) => {
       case 'run-block':
         await runBlock(message.blockIndex, message.script, message.declarations);
         break;
-      case 'evaluate-inline':
-        await evaluateInline(message.inlineId, message.script);
+      case 'evaluate-inlines':
+        await evaluateInlines(message.inlines);
         break;
     }
   });

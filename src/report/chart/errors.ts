@@ -5,6 +5,7 @@ export type ChartSpecErrorCode =
   | 'CHART_SPEC_NOT_OBJECT'
   | 'CHART_SPEC_INVALID'
   | 'CHART_DATA_NOT_INLINE'
+  | 'CHART_SPEC_NOT_ALLOWED'
   | 'CHART_RENDER_FAILED';
 
 export interface ChartSpecErrorDetails {

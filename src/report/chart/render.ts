@@ -4,6 +4,7 @@ import { parse, View, resetSVGDefIds, textMetrics, type Loader, type LoggerInter
 import { expressionInterpreter } from 'vega-interpreter';
 import vegaLiteSchema from 'vega-lite/vega-lite-schema.json' with { type: 'json' };
 import { ChartSpecError, describeValue } from './errors.ts';
+import { requireAllowedChartSpec } from './allowList.ts';
 
 export { ChartSpecError } from './errors.ts';
 import { chartBaseConfig } from './theme.ts';
@@ -23,12 +24,11 @@ textMetrics.canvas(false);
 /**
  * Renders a Vega-Lite spec to an SVG string.
  *
- * Data must be inline (`values` / `datasets`); any URL or file source is refused. Vega expressions in
- * the spec (calculate, filter, signal expressions) are evaluated by the AST interpreter of
- * `vega-interpreter` instead of Vega's default code generation: the spec comes from untrusted study
- * code, and code generation compiles expression text into JavaScript with `new Function`, whereas the
- * interpreter only walks the parsed expression tree and can reach nothing but Vega's whitelisted
- * expression functions. It also keeps rendering possible where `eval` is forbidden.
+ * Data must be inline (`values` / `datasets`); any URL or file source is refused, and so is every feature outside
+ * the allow-list of `allowList.ts` (expressions, generated data, links, images). The expressions Vega-Lite itself
+ * writes for what remains (field predicates, scales) are evaluated by the AST interpreter of `vega-interpreter`
+ * instead of Vega's default code generation, which would compile expression text into JavaScript with
+ * `new Function`. In a run, this function is called inside a limited worker (see `src/pipeline.ts`).
  *
  * @throws ChartSpecError when the spec is malformed, uses external data, or Vega rejects it.
  */
@@ -118,6 +118,7 @@ function prepareSpec(spec: unknown, options: RenderChartOptions): Record<string,
   }
   rejectExternalData(copy, '');
   rejectUnknownMarksAndTypes(copy, '');
+  requireAllowedChartSpec(copy);
   for (const [key, value] of [
     ['width', options.widthPx],
     ['height', options.heightPx],
