@@ -6,7 +6,7 @@ import { spawnSync } from 'node:child_process';
 import { runProfileBench } from './profile.bench.ts';
 import { runPdfBench } from './pdf.bench.ts';
 import { runCheckBench } from './check.bench.ts';
-import { runScalingBench, scalingTable } from './scaling.bench.ts';
+import { runScalingBench, scalingTable, unclosedBracesTable } from './scaling.bench.ts';
 
 const ROOT = resolve(import.meta.dirname, '..');
 
@@ -34,3 +34,4 @@ rows.push(`check vs run of the demo  run ${check.runMs.toFixed(0)} ms   check ${
 console.log(rows.join('\n'));
 console.log('\nstages against study size (declarations, results and inline values each; x2.0 per doubling is linear):');
 console.log(scalingTable(await runScalingBench()));
+console.log(unclosedBracesTable());
