@@ -2,7 +2,7 @@
 import { runProfileBench } from './profile.bench.ts';
 import { runPdfBench } from './pdf.bench.ts';
 import { runCheckBench } from './check.bench.ts';
-import { runScalingBench, scalingTable } from './scaling.bench.ts';
+import { runScalingBench, scalingTable, unclosedBracesTable } from './scaling.bench.ts';
 
 const rows: string[] = [];
 const profile = await runProfileBench();
@@ -17,3 +17,4 @@ rows.push(`check vs run of the demo  run ${check.runMs.toFixed(0)} ms   check ${
 console.log(rows.join('\n'));
 console.log('\nstages against study size (declarations, results and inline values each; x2.0 per doubling is linear):');
 console.log(scalingTable(await runScalingBench()));
+console.log(unclosedBracesTable());

@@ -112,7 +112,19 @@ export function scalingTable(rows: readonly StageTimes[]): string {
   return [header, ...lines].join('\n');
 }
 
+/** Parse time of prose that a careless scan would read once per brace pair: `count` unclosed `{{` in one paragraph. */
+export function unclosedBracesTable(counts: readonly number[] = [100_000, 200_000, 400_000]): string {
+  const rows = counts.map((count) => {
+    const source = scalingStudy(0).replace('# Many declarations', `# Braces\n\n${'{{ a '.repeat(count)}`);
+    const started = performance.now();
+    parseStudy('braces.study.md', source);
+    return { count, ms: performance.now() - started };
+  });
+  return rows.map((row, index) => `${String(row.count).padStart(7)} unclosed {{   parse ${row.ms.toFixed(0)} ms${index > 0 ? ` (x${(row.ms / Math.max(rows[index - 1]!.ms, 0.01)).toFixed(1)})` : ''}`).join('\n');
+}
+
 if (process.argv[1] && resolve(process.argv[1]) === resolve(import.meta.filename)) {
   const sizes = process.argv.slice(2).map(Number).filter((size) => size > 0);
   console.log(scalingTable(await runScalingBench(sizes.length > 0 ? sizes : SIZES)));
+  console.log(unclosedBracesTable());
 }

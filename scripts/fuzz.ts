@@ -4,9 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import fc from 'fast-check';
-import { runStudy } from '../src/pipeline.ts';
-import { judge, mutantArbitrary, mutantSource, mutantsReachingExecution, staticStages, type Mutant } from '../test/fuzz/mutate.ts';
-import { TEST_ENVIRONMENT } from '../test/support/studies.ts';
+import { fullStages, judge, mutantArbitrary, mutantSource, mutantsReachingExecution, staticStages, type Mutant } from '../test/fuzz/mutate.ts';
 
 const { values, positionals } = parseArgs({
   allowPositionals: true,
@@ -33,7 +31,7 @@ async function examine(stage: 'static' | 'full', mutant: Mutant): Promise<void> 
       ? () => staticStages(studyPath, source)
       : () => {
           writeFileSync(studyPath, source);
-          return runStudy({ file: studyPath, source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+          return fullStages(studyPath, source);
         };
   try {
     const verdict = await judge(source, run);

@@ -1,5 +1,6 @@
 // What a text a study writes must be to reach a report: bounded in length, free of control and invisible characters, never NaN.
 import { OUTPUT_LIMITS } from './limits.ts';
+import { formatCount } from '../report/format.ts';
 
 /**
  * - `name`: result and criterion names, column labels, units. Two names must not look alike, so no invisible or
@@ -18,7 +19,6 @@ const CONTROLS_IN_TEXT = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u2028\u2029\u
 const INVISIBLE_IN_NAME = /[\p{Cc}\p{Cf}\p{Zl}\p{Zp}\p{Cs}\p{Co}\p{Cn}]|[^\S ]/u;
 const NON_FINITE_WORD = /(?<![\p{L}\p{N}_])(NaN|Infinity)(?![\p{L}\p{N}_])/u;
 
-const count = (value: number) => new Intl.NumberFormat('en-GB').format(value);
 
 /** "U+202E" for a character, so a message can name what it refuses without showing it. */
 export function codePointName(character: string): string {
@@ -35,7 +35,7 @@ export interface TextProblem {
 /** Why `text` cannot be written in `role`, or undefined when it can; the first problem only. */
 export function outputTextProblem(role: TextRole, text: string): TextProblem | undefined {
   const limit = role === 'name' ? OUTPUT_LIMITS.nameCharacters : OUTPUT_LIMITS.textCharacters;
-  if (text.length > limit) return { code: 'output-limit', message: `is ${count(text.length)} characters long; a report holds at most ${count(limit)} characters for it` };
+  if (text.length > limit) return { code: 'output-limit', message: `is ${formatCount(text.length)} characters long; a report holds at most ${formatCount(limit)} characters for it` };
   const control = DIRECTION_CONTROLS.exec(text) ?? (role === 'text' ? CONTROLS_IN_TEXT : INVISIBLE_IN_NAME).exec(text);
   if (control) {
     return { code: 'text-characters', message: `contains the invisible or control character ${codePointName(control[0])}, which could make it look like another text` };
@@ -57,7 +57,14 @@ export function nameKey(name: string): string {
   return name.normalize('NFKC');
 }
 
+const INVISIBLE_OR_DIRECTION = new RegExp(`${INVISIBLE_IN_NAME.source}|${DIRECTION_CONTROLS.source}`, 'gu');
+
 /** Every control and invisible character written out as ⟨U+XXXX⟩, for texts that are shown but not refused (the log). */
 export function markInvisible(text: string): string {
-  return text.replace(new RegExp(`${INVISIBLE_IN_NAME.source}|${DIRECTION_CONTROLS.source}`, 'gu'), (character) => `⟨${codePointName(character)}⟩`);
+  return text.replace(INVISIBLE_OR_DIRECTION, (character) => `⟨${codePointName(character)}⟩`);
+}
+
+/** Whether a text says NaN or Infinity as a word. */
+export function saysNonFinite(text: string): boolean {
+  return NON_FINITE_WORD.test(text);
 }

@@ -3,6 +3,7 @@ import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnosti
 import type { Study } from '../study/model.ts';
 import type { BlockErrorReport, BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
 import { OUTPUT_LIMITS } from './limits.ts';
+import { formatCount } from '../report/format.ts';
 import { TEXT_PROBLEM_HINTS, type TextProblem, type TextRole, outputTextProblem } from './outputText.ts';
 
 const isText = (value: unknown): value is string => typeof value === 'string';
@@ -156,12 +157,12 @@ function textsOf(record: BlockRecord): [string, string, TextRole][] {
 /** What makes a well-formed record too large or unfit to show, or undefined when it may reach the report. */
 function outputProblem(record: BlockRecord): { what: string; problem: TextProblem } | undefined {
   if (record.kind === 'table' && record.rows.length * record.columns.length > OUTPUT_LIMITS.tableCells) {
-    return { what: 'a table', problem: { code: 'output-limit', message: `has ${record.rows.length * record.columns.length} cells; a report table holds at most ${OUTPUT_LIMITS.tableCells}` } };
+    return { what: 'a table', problem: { code: 'output-limit', message: `has ${formatCount(record.rows.length * record.columns.length)} cells; a report table holds at most ${formatCount(OUTPUT_LIMITS.tableCells)}` } };
   }
   if (record.kind === 'chart') {
     const characters = JSON.stringify(record.spec).length;
     if (characters > OUTPUT_LIMITS.chartSpecCharacters) {
-      return { what: `chart "${record.caption.slice(0, 80)}"`, problem: { code: 'output-limit', message: `has a specification of ${characters} characters; a chart may have at most ${OUTPUT_LIMITS.chartSpecCharacters}` } };
+      return { what: `chart "${record.caption.slice(0, 80)}"`, problem: { code: 'output-limit', message: `has a specification of ${formatCount(characters)} characters; a chart may have at most ${formatCount(OUTPUT_LIMITS.chartSpecCharacters)}` } };
     }
   }
   for (const [what, text, role] of textsOf(record)) {

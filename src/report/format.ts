@@ -34,3 +34,10 @@ export function formatStated(value: number, digits = DEFAULT_DIGITS): string {
   }
   return String(Number(value.toPrecision(digits)));
 }
+
+/** A count as a reader reads it in a message or a limit: "100,000 cells". */
+export function formatCount(value: number): string {
+  return COUNT_FORMAT.format(value);
+}
+
+const COUNT_FORMAT = new Intl.NumberFormat('en-GB');

@@ -1,6 +1,7 @@
 // Where a report came from: kvarbook and Node versions, hashes of the lock file and study, the limits it ran under.
 import type { RunLimits } from '../study/model.ts';
 import { HOST_STAGE_LIMITS, OUTPUT_LIMITS } from '../execute/limits.ts';
+import { formatCount } from './format.ts';
 
 export interface Provenance {
   kvarbookVersion: string;
@@ -16,7 +17,6 @@ export interface Provenance {
   isolation: string;
 }
 
-const count = (value: number) => new Intl.NumberFormat('en-GB').format(value);
 const megabytes = (bytes: number) => `${bytes / 1024 / 1024} MB`;
 
 /** Every bound the run was held to, in one sentence for the report's provenance. */
@@ -32,7 +32,7 @@ export function describeLimits(provenance: Provenance): string {
     : [];
   return [
     `${limits.blockSeconds} s per block, ${limits.studySeconds} s per study, ${limits.heapMb} MB heap${asked.length > 0 ? ` (capped by the ceilings of the run: the study asks ${asked.join(', ')})` : ''}`,
-    `output at most ${count(OUTPUT_LIMITS.textCharacters)} characters per text (${count(OUTPUT_LIMITS.nameCharacters)} per name), ${count(OUTPUT_LIMITS.tableCells)} cells per table, ${megabytes(OUTPUT_LIMITS.studyOutputBytes)} of output in all`,
+    `output at most ${formatCount(OUTPUT_LIMITS.textCharacters)} characters per text (${formatCount(OUTPUT_LIMITS.nameCharacters)} per name), ${formatCount(OUTPUT_LIMITS.tableCells)} cells per table, ${megabytes(OUTPUT_LIMITS.studyOutputBytes)} of output in all`,
     `report at most ${megabytes(OUTPUT_LIMITS.reportBytes)}`,
     `each chart drawn within ${chart.callSeconds} s and ${chart.heapMb} MB, the type check within ${typecheck.callSeconds} s and ${typecheck.heapMb} MB`,
   ].join('; ');

@@ -5,6 +5,9 @@ import { StudyFailure } from '../../src/diagnostics/diagnostic.ts';
 import { effectiveInputs } from '../../src/study/inputs.ts';
 import { parseStudy } from '../../src/study/parse.ts';
 import { transpileBlocks, transpileInlines } from '../../src/execute/transpile.ts';
+import { type RunProduct, runStudy } from '../../src/pipeline.ts';
+import { TEST_ENVIRONMENT } from '../support/studies.ts';
+import { saysNonFinite } from '../../src/execute/outputText.ts';
 import { SEED_STUDIES } from './seedStudies.ts';
 
 /** Text dropped into a study: fence and front-matter markers, braces, numbers a solver chokes on, awkward unicode. */
@@ -134,6 +137,26 @@ export function staticStages(file: string, source: string): void {
   effectiveInputs(study.inputs, []);
   transpileBlocks(study);
   transpileInlines(study);
+}
+
+/** Every text a run computed (records of every kind, inline values): where a NaN written as text would hide. */
+function computedTexts(product: RunProduct): string[] {
+  const texts: string[] = [...product.run.outcome.inlineTexts.values()];
+  const collect = (value: unknown): void => {
+    if (typeof value === 'string') texts.push(value);
+    else if (Array.isArray(value)) value.forEach(collect);
+    else if (typeof value === 'object' && value !== null) Object.values(value).forEach(collect);
+  };
+  for (const block of product.run.outcome.blocks) collect(block.records);
+  return texts;
+}
+
+/** The whole pipeline on a mutant; a success that wrote NaN or Infinity anywhere in its output is a finding. */
+export async function fullStages(file: string, source: string): Promise<RunProduct> {
+  const product = await runStudy({ file, source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+  const written = computedTexts(product).find(saysNonFinite);
+  if (written !== undefined) throw new Error(`the run succeeded but its output says ${JSON.stringify(written.slice(0, 200))}`);
+  return product;
 }
 
 /** Mutants that get through the static stages, so that each one exercises the calculation process. */

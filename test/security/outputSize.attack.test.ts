@@ -2,12 +2,12 @@
 // is located at the call that went over, and the bounds are stated in the report.
 import { describe, expect, it } from 'vitest';
 import { OUTPUT_LIMITS } from '../../src/execute/limits.ts';
+import { formatCount } from '../../src/report/format.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
 import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 
 const fence = (code: string) => `\`\`\`ts\n${code}\n\`\`\``;
 const OVER_ONE_TEXT = OUTPUT_LIMITS.textCharacters + 1;
-const written = (count: number) => new Intl.NumberFormat('en-GB').format(count);
 
 async function refusedAt(source: string, needle: string) {
   const [problem] = await diagnosticsOf(runSource(source));
@@ -20,7 +20,7 @@ describe('no one output is unbounded', () => {
     const source = studyText({ body: `${fence("const filler = 'x'.repeat(20_000_000);")}\n\nThe text: {{ filler }}.` });
     const [problem] = await diagnosticsOf(runSource(source));
     expect(problem).toMatchObject({ code: 'inline-output-limit', at: { line: lineOf(source, '{{ filler }}') } });
-    expect(problem?.message).toContain(`${written(OUTPUT_LIMITS.textCharacters)} characters`);
+    expect(problem?.message).toContain(`${formatCount(OUTPUT_LIMITS.textCharacters)} characters`);
   });
 
   it('refuses a caution of twenty million characters', async () => {
@@ -45,7 +45,7 @@ describe('no one output is unbounded', () => {
       studyText({ body: fence(`const rows = Array.from({ length: ${OUTPUT_LIMITS.tableCells / 2 + 1} }, (_, index) => ({ a: index, b: index }));\ntable(rows, { caption: 'huge' });`) }),
       'table(rows',
     );
-    expect(problem.message).toContain(`at most ${written(OUTPUT_LIMITS.tableCells)}`);
+    expect(problem.message).toContain(`at most ${formatCount(OUTPUT_LIMITS.tableCells)}`);
   });
 
   it('refuses a table cell over the text limit', async () => {
@@ -91,7 +91,7 @@ describe('the whole of what a study writes is bounded', () => {
     const product = await runSource(studyText({ body: fence("result('one', 1);") }));
     const html = assembleReport(product.report, UNSEALED_NOTICE);
     const provenance = html.slice(html.indexOf('id="provenance"'));
-    expect(provenance).toContain(`${written(OUTPUT_LIMITS.textCharacters)} characters per text`);
+    expect(provenance).toContain(`${formatCount(OUTPUT_LIMITS.textCharacters)} characters per text`);
     expect(provenance).toContain(`${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all`);
     expect(provenance).toContain(`report at most ${OUTPUT_LIMITS.reportBytes / 1024 / 1024} MB`);
   });

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { StudyFailure } from '../../src/diagnostics/diagnostic.ts';
 import { plainData, sanitizeErrorReport, sanitizeRecords } from '../../src/execute/sanitize.ts';
+import { OUTPUT_LIMITS } from '../../src/execute/limits.ts';
 import { parseStudy } from '../../src/study/parse.ts';
 import { studyText } from '../support/studies.ts';
 
@@ -61,5 +62,38 @@ describe('error reports from the child', () => {
 
   it('cut an overlong message so a diagnostic stays readable', () => {
     expect(sanitizeErrorReport({ name: 'Error', message: 'x'.repeat(100_000), positions: [] }).message.length).toBeLessThan(5000);
+  });
+});
+
+describe('records from a child that skipped the checks of the block API', () => {
+  const refusal = (records: unknown[], budget = { characters: 0 }) => {
+    try {
+      sanitizeRecords(records, study, at, budget);
+    } catch (error) {
+      if (error instanceof StudyFailure) return error.diagnostics[0];
+    }
+    throw new Error('the forged records were accepted');
+  };
+
+  it('refuse a caution longer than a report holds, at the block', () => {
+    expect(refusal([{ kind: 'caution', text: 'x'.repeat(OUTPUT_LIMITS.textCharacters + 1) }])).toMatchObject({ code: 'block-output-limit', at });
+  });
+
+  it('refuse a result name with a direction override', () => {
+    expect(refusal([{ kind: 'result', name: 'Vr \u202ekcehc', value: 1, unit: '', digits: 4 }])).toMatchObject({ code: 'block-text-characters' });
+  });
+
+  it('refuse a table cell that says NaN', () => {
+    expect(refusal([{ kind: 'table', columns: [{ key: 'a', label: 'a', unit: '', digits: 4 }], rows: [['NaN']] }])).toMatchObject({ code: 'block-non-finite' });
+  });
+
+  it('refuse a table of more cells than a report table holds', () => {
+    const rows = Array.from({ length: OUTPUT_LIMITS.tableCells + 1 }, () => [1]);
+    expect(refusal([{ kind: 'table', columns: [{ key: 'a', label: 'a', unit: '', digits: 4 }], rows }])).toMatchObject({ code: 'block-output-limit' });
+  });
+
+  it('refuse records once the study has written its allowance across blocks', () => {
+    const budget = { characters: OUTPUT_LIMITS.studyOutputBytes - 10 };
+    expect(refusal([{ kind: 'text', text: 'twenty-one characters' }], budget)).toMatchObject({ code: 'block-output-limit' });
   });
 });

@@ -44,3 +44,51 @@ describe('two inline values on one line', () => {
     expect(problem?.at).toEqual({ file: 'test.study.md', line, column: source.split('\n')[line - 1]!.indexOf('{{ unknownName') + 1 });
   });
 });
+
+describe('NaN and Infinity never reach a report, not even as text', () => {
+  async function refusedNonFinite(code: string, needle: string, expectedCode = 'block-non-finite') {
+    const source = studyText({ body: fence(`const ratio = 0 / 0;\nconst growth = 1 / 0;\n${code}`) });
+    const [problem] = await diagnosticsOf(runSource(source));
+    expect(problem, JSON.stringify(problem)).toMatchObject({ code: expectedCode, at: { line: lineOf(source, needle) } });
+    return problem!;
+  }
+
+  it('refuses a text result that says NaN', async () => {
+    await refusedNonFinite("result('Ratio', `${ratio}`);", "result('Ratio'");
+  });
+
+  it('refuses a table cell that says Infinity', async () => {
+    await refusedNonFinite("table([{ case: 'open end', gain: String(growth) }]);", 'table([');
+  });
+
+  it('refuses a printed line that says NaN', async () => {
+    await refusedNonFinite("console.log('ratio is', ratio);", 'console.log');
+  });
+
+  it('refuses a caution that says -Infinity', async () => {
+    await refusedNonFinite('caution(`The margin is ${-growth} %.`);', 'caution(');
+  });
+
+  it('refuses a note that says NaN', async () => {
+    await refusedNonFinite("result('Length', 380, { unit: 'km', note: `ratio ${ratio}` });", "result('Length'");
+  });
+
+  it('refuses an inline value whose text says NaN, at the inline value', async () => {
+    const source = studyText({ body: `${fence('const ratio = 0 / 0;')}\n\nThe ratio is {{ \`\${ratio}\` }}.` });
+    const [problem] = await diagnosticsOf(runSource(source));
+    expect(problem).toMatchObject({ code: 'inline-non-finite', at: { line: lineOf(source, 'The ratio is') } });
+  });
+
+  it('writes a non-finite solver argument in the calculation log in words', async () => {
+    const source = studyText({ body: fence("solver.polarForm({ value: { re: 3, im: 4 }, unused: 0 / 0 } as any);") });
+    const product = await runSource(source);
+    const log = product.report.body.slice(product.report.body.indexOf('id="calculation-log"'));
+    expect(log).not.toMatch(/NaN|Infinity/);
+    expect(log).toContain('not a finite number');
+  });
+
+  it('still allows the words in ordinary text', async () => {
+    const product = await runSource(studyText({ body: fence("caution('Nanometre-scale pollution layers are not modelled.');") }));
+    expect(product.results.cautions.at(-1)?.text).toContain('Nanometre');
+  });
+});

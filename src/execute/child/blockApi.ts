@@ -1,7 +1,7 @@
 // The block API: the globals a calculation block calls (inputs, result, table, criterion, caution, chart, figure, solver).
 import type { InputData } from '../protocol.ts';
 import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../records.ts';
-import { DEFAULT_DIGITS, formatQuantity, formatStated } from '../../report/format.ts';
+import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from '../../report/format.ts';
 import { UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
 import { summarise } from './summarise.ts';
 import { freezeDeep } from './harden.ts';
@@ -113,7 +113,6 @@ function requireName(kind: string, name: unknown): string {
   return checkedText(kind, 'the name', name, 'name');
 }
 
-const count = (value: number) => new Intl.NumberFormat('en-GB').format(value);
 
 /** A text a report shows, refused when it is too long, hides characters or says NaN. */
 export function checkedText(kind: string, what: string, text: string, role: TextRole): string {
@@ -262,7 +261,7 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     if (rows.length * columnOptions.length > OUTPUT_LIMITS.tableCells) {
       throw new BlockApiError(
         'output-limit',
-        `table${caption ? ` "${caption.slice(0, 80)}"` : ''}: ${count(rows.length)} rows of ${columnOptions.length} columns are ${count(rows.length * columnOptions.length)} cells; a report table holds at most ${count(OUTPUT_LIMITS.tableCells)}`,
+        `table${caption ? ` "${caption.slice(0, 80)}"` : ''}: ${formatCount(rows.length)} rows of ${columnOptions.length} columns are ${formatCount(rows.length * columnOptions.length)} cells; a report table holds at most ${formatCount(OUTPUT_LIMITS.tableCells)}`,
         'show fewer rows (every tenth point, or the ends and extremes), or draw the series as a chart',
       );
     }
@@ -295,7 +294,7 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
       if (json.length > OUTPUT_LIMITS.chartSpecCharacters) {
         throw new BlockApiError(
           'output-limit',
-          `chart "${caption.slice(0, 80)}": the specification is ${count(json.length)} characters of JSON; a chart may have at most ${count(OUTPUT_LIMITS.chartSpecCharacters)}`,
+          `chart "${caption.slice(0, 80)}": the specification is ${formatCount(json.length)} characters of JSON; a chart may have at most ${formatCount(OUTPUT_LIMITS.chartSpecCharacters)}`,
           'draw fewer points: a line of a few hundred points looks the same on paper',
         );
       }
