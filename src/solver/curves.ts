@@ -8,6 +8,15 @@ import { degToRad, kvToV, radToDeg } from './units.ts';
 
 const POINT_COUNT_RANGE = { min: 2, max: 100_000 } as const;
 
+/** The options every fixed-end-voltage curve starts from: the network and both line-to-line end voltages. */
+function readTwoEndOptions(options: unknown, hint: string) {
+  const record = requireObject('options', options, hint);
+  const { network, abcd } = readNetwork(record);
+  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  return { record, network, abcd, sendingVoltageKv, receivingVoltageKv };
+}
+
 export interface PvPoint {
   pMw: number;
   qMvar: number;
@@ -123,10 +132,7 @@ export function powerAngleCurve(options: {
   maxAngleDeg?: number;
 }): PowerAngleCurve {
   const hint = 'Pass { network, sendingVoltageKv, receivingVoltageKv, pointCount?, maxAngleDeg? }.';
-  const record = requireObject('options', options, hint);
-  const { network, abcd } = readNetwork(record);
-  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const { record, network, abcd, sendingVoltageKv, receivingVoltageKv } = readTwoEndOptions(options, hint);
   const pointCount = Math.round(optionalNumber('pointCount', record.pointCount, 181, POINT_COUNT_RANGE, 'Points on the curve.'));
   const maxAngleDeg = optionalNumber('maxAngleDeg', record.maxAngleDeg, 180, { min: 0, max: 180, minInclusive: false, unit: 'deg' }, hint);
   requireSeriesPath(abcd, network);
@@ -175,10 +181,7 @@ export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: 
   marginPercent: number;
 } {
   const hint = 'Pass { network, sendingVoltageKv, receivingVoltageKv, receivingPMw }.';
-  const record = requireObject('options', options, hint);
-  const { network, abcd } = readNetwork(record);
-  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const { record, network, abcd, sendingVoltageKv, receivingVoltageKv } = readTwoEndOptions(options, hint);
   const receivingPMw = requireNumber('receivingPMw', record.receivingPMw, { min: -1e5, max: 1e5, unit: 'MW' }, hint);
   requireSeriesPath(abcd, network);
   const limitAngle = steadyStateLimitAngleRad(abcd);
@@ -240,10 +243,7 @@ export function powerCircles(options: { network: TwoPort; sendingVoltageKv: numb
   sendingEnd: PowerCircle;
 } {
   const hint = 'Pass { network, sendingVoltageKv, receivingVoltageKv }.';
-  const record = requireObject('options', options, hint);
-  const { network, abcd } = readNetwork(record);
-  const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const { network, abcd, sendingVoltageKv, receivingVoltageKv } = readTwoEndOptions(options, hint);
   requireSeriesPath(abcd, network);
   const sendingV = kvToV(sendingVoltageKv);
   const receivingV = kvToV(receivingVoltageKv);
