@@ -50,7 +50,7 @@ export function elementLosses(options: { network: TwoPort; operatingPoint: Opera
     current = outCurrent;
     return loss;
   });
-  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, labelOf(network));
+  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, ends.sending.current, labelOf(network));
   return assertFiniteResult('elementLosses', {
     networkLabel: labelOf(network),
     elements,

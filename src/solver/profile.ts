@@ -117,10 +117,14 @@ export function readOperatingPointEnds(value: unknown, hint: string) {
   return { sending: end('sendingEnd'), receiving: end('receivingEnd') };
 }
 
-/** The sending end propagated through the network must arrive at the operating point's own receiving end. */
-export function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, label: string): void {
+/**
+ * The sending end propagated through the network must arrive at the operating point's own receiving end. Currents are
+ * compared on the scale of the larger end current: an open or lightly loaded receiving end carries only the rounding
+ * of the sending end's charging current.
+ */
+export function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, sendingCurrent: Complex, label: string): void {
   const scaleV = Math.max(voltage.abs(), expectedVoltage.abs(), 1);
-  const scaleI = Math.max(current.abs(), expectedCurrent.abs(), 1e-3);
+  const scaleI = Math.max(current.abs(), expectedCurrent.abs(), sendingCurrent.abs(), 1e-3);
   const voltageDeviation = voltage.sub(expectedVoltage).abs() / scaleV;
   const currentDeviation = current.sub(expectedCurrent).abs() / scaleI;
   if (!(voltageDeviation <= 1e-6 && currentDeviation <= 1e-6)) {
@@ -193,7 +197,7 @@ export function voltageProfile(options: {
       emit(0, voltage.re, voltage.im, current.re, current.im);
     }
   });
-  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, labelOf(network));
+  requireSameNetwork(voltage, current, ends.receiving.voltage, ends.receiving.current, ends.sending.current, labelOf(network));
   // A source equivalent's outer terminal is the system EMF, not a point of the route: it takes no part in the extremes.
   const firstRouteIndex = elements[0]?.kind === 'source-equivalent' ? 1 : 0;
   const lastRouteIndex = profile.voltageKv.length - 1 - (elements[elements.length - 1]?.kind === 'source-equivalent' && elements.length > 1 ? 1 : 0);
