@@ -130,7 +130,11 @@ function median(values: number[]): number {
 
 export async function runProfileBench(): Promise<{ solverMs: number; plainMs: number; ratio: number }> {
   const network = buildNetwork();
-  const operatingPoint = solver.solveReceivingLoad({ network, receivingVoltageKv: 400, load: { pMw: 900, powerFactor: 0.95, powerFactorSense: 'lagging' } });
+  const operatingPoint = solver.solveReceivingLoad({
+    network,
+    receivingVoltageKv: 400,
+    load: { pMw: 900, powerFactor: 0.95, powerFactorSense: 'lagging' },
+  });
   const solverTimes: number[] = [];
   const plainTimes: number[] = [];
   let solverPeak = 0;

@@ -120,11 +120,19 @@ export function unclosedBracesTable(counts: readonly number[] = [100_000, 200_00
     parseStudy('braces.study.md', source);
     return { count, ms: performance.now() - started };
   });
-  return rows.map((row, index) => `${String(row.count).padStart(7)} unclosed {{   parse ${row.ms.toFixed(0)} ms${index > 0 ? ` (x${(row.ms / Math.max(rows[index - 1]!.ms, 0.01)).toFixed(1)})` : ''}`).join('\n');
+  return rows
+    .map(
+      (row, index) =>
+        `${String(row.count).padStart(7)} unclosed {{   parse ${row.ms.toFixed(0)} ms${index > 0 ? ` (x${(row.ms / Math.max(rows[index - 1]!.ms, 0.01)).toFixed(1)})` : ''}`,
+    )
+    .join('\n');
 }
 
 if (process.argv[1] && resolve(process.argv[1]) === resolve(import.meta.filename)) {
-  const sizes = process.argv.slice(2).map(Number).filter((size) => size > 0);
+  const sizes = process.argv
+    .slice(2)
+    .map(Number)
+    .filter((size) => size > 0);
   console.log(scalingTable(await runScalingBench(sizes.length > 0 ? sizes : SIZES)));
   console.log(unclosedBracesTable());
 }

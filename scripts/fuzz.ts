@@ -49,7 +49,9 @@ for (const mutant of mutantsReachingExecution(seed + 1, fullCount)) await examin
 const totalMs = Date.now() - started;
 
 process.stdout.write(`seed ${seed}: ${count} mutants through parse, inputs and transpile in ${(staticMs / 1000).toFixed(1)} s; `);
-process.stdout.write(`${fullCount} that pass those through the whole pipeline, calculation process included; ${(totalMs / 1000).toFixed(1)} s in all\n`);
+process.stdout.write(
+  `${fullCount} that pass those through the whole pipeline, calculation process included; ${(totalMs / 1000).toFixed(1)} s in all\n`,
+);
 for (const [key, n] of [...outcomes.entries()].sort((a, b) => b[1] - a[1])) process.stdout.write(`${String(n).padStart(7)}  ${key}\n`);
 for (const finding of findings.slice(0, 20)) process.stdout.write(`\n${finding}\n`);
 process.exitCode = findings.length > 0 ? 1 : 0;

@@ -78,13 +78,15 @@ function requireReportSize(run: StudyRun, report: ReportParts): void {
   const block = run.study.blocks.find((candidate) => candidate.index === largest.blockIndex);
   // A block that wrote megabytes is where to look; otherwise it is the study text itself.
   const line = block && largest.characters > 1024 * 1024 ? block.fenceLine : 1;
-  throw new StudyFailure([{
-    code: 'report-too-large',
-    message: `the report would be ${(bytes / 1024 / 1024).toFixed(1)} MB; a report may be at most ${OUTPUT_LIMITS.reportBytes / 1024 / 1024} MB${block && line !== 1 ? ` (the block at line ${line} wrote ${(largest.characters / 1024 / 1024).toFixed(1)} MB of it)` : ''}`,
-    at: { file: run.study.file, line },
-    excerpt: excerptAround(run.study.source, line),
-    hint: 'write less: summarise long series, and keep bulky data out of the study text',
-  }]);
+  throw new StudyFailure([
+    {
+      code: 'report-too-large',
+      message: `the report would be ${(bytes / 1024 / 1024).toFixed(1)} MB; a report may be at most ${OUTPUT_LIMITS.reportBytes / 1024 / 1024} MB${block && line !== 1 ? ` (the block at line ${line} wrote ${(largest.characters / 1024 / 1024).toFixed(1)} MB of it)` : ''}`,
+      at: { file: run.study.file, line },
+      excerpt: excerptAround(run.study.source, line),
+      hint: 'write less: summarise long series, and keep bulky data out of the study text',
+    },
+  ]);
 }
 
 /** Charts are drawn by Vega in a limited worker: a specification that asks for endless work ends that worker, not the run's host. */

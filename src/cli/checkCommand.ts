@@ -44,7 +44,13 @@ async function readReport(reportPath: string): Promise<{ html: string; pdf?: Pdf
     throw new StudyFailure([{ code: 'report-missing', message: `${reportPath} does not exist`, hint: 'name a sealed .html or .pdf report' }]);
   }
   if (size > MAX_CHECKED_FILE_BYTES) {
-    throw new StudyFailure([{ code: 'report-too-large', message: `${reportPath} is ${(size / 1024 / 1024).toFixed(0)} MiB; a report to check may be at most ${MAX_CHECKED_FILE_BYTES / 1024 / 1024} MiB`, hint: 'name the .html or .pdf report kvarbook wrote' }]);
+    throw new StudyFailure([
+      {
+        code: 'report-too-large',
+        message: `${reportPath} is ${(size / 1024 / 1024).toFixed(0)} MiB; a report to check may be at most ${MAX_CHECKED_FILE_BYTES / 1024 / 1024} MiB`,
+        hint: 'name the .html or .pdf report kvarbook wrote',
+      },
+    ]);
   }
   const bytes = readFileSync(reportPath);
   // A PDF carries the sealed HTML as an attachment; the PDF alone is enough to check.
@@ -63,9 +69,17 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
     const file = join(scratch ?? dirname(sourcePath as string), request.studyFile);
     if (scratch) writeFileSync(file, request.source);
     try {
-      return await runStudy({ file, source: request.source, overrides: request.overrides, typecheck: true, ...(ceilings ? { ceilings } : {}), environment: request.environment });
+      return await runStudy({
+        file,
+        source: request.source,
+        overrides: request.overrides,
+        typecheck: true,
+        ...(ceilings ? { ceilings } : {}),
+        environment: request.environment,
+      });
     } catch (error) {
-      if (error instanceof StudyFailure) throw new Error(error.diagnostics.map((d) => `${d.at ? `${basename(d.at.file)}:${d.at.line}: ` : ''}${d.message}`).join('; '));
+      if (error instanceof StudyFailure)
+        throw new Error(error.diagnostics.map((d) => `${d.at ? `${basename(d.at.file)}:${d.at.line}: ` : ''}${d.message}`).join('; '));
       throw error;
     } finally {
       if (scratch) rmSync(scratch, { recursive: true, force: true });
@@ -76,7 +90,8 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
 /** One line on the trust folder, so that a checker never mistakes "no one is trusted" for a bad signature. */
 function trustLine(folder: string, trust: TrustedIdentities): string {
   if (trust.folder === 'missing') return `trust folder: ${folder} does not exist, so no signer can be trusted`;
-  if (trust.folder === 'unreadable') return `trust folder: ${folder} cannot be read, so no signer can be trusted (${trust.problems[0]?.problems[0] ?? ''})`;
+  if (trust.folder === 'unreadable')
+    return `trust folder: ${folder} cannot be read, so no signer can be trusted (${trust.problems[0]?.problems[0] ?? ''})`;
   if (trust.identities.length === 0) return `trust folder: ${folder} holds no identities, so no signer can be trusted`;
   return `trust folder: ${folder} (${trust.identities.length} trusted ${trust.identities.length === 1 ? 'identity' : 'identities'})`;
 }
@@ -102,7 +117,8 @@ function verdictLine(outcome: CheckOutcome, paint: (style: Parameters<typeof sty
 function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: TrustedIdentities, terminal: Terminal, colour: boolean): void {
   const paint = (style: Parameters<typeof styleText>[0], text: string) => (colour ? styleText(style, text) : text);
   terminal.say(trustLine(trustFolder, trust));
-  for (const skipped of trust.problems.filter((problem) => problem.file !== trustFolder)) terminal.say(`   skipped ${skipped.file}: ${skipped.problems.join('; ')}`);
+  for (const skipped of trust.problems.filter((problem) => problem.file !== trustFolder))
+    terminal.say(`   skipped ${skipped.file}: ${skipped.problems.join('; ')}`);
   outcome.steps.forEach((step, index) => {
     terminal.say(`${index + 1}. ${step.name.padEnd(18)} ${step.passed ? paint('green', 'pass') : paint('red', 'FAIL')}  ${step.detail}`);
   });
@@ -140,7 +156,9 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
   if (pdf) outcome = withStep(outcome, await pdfAsPrintedStep(pdf, outcome, source));
   if (options.json) {
     const { rerun: _rerun, ...findings } = outcome;
-    process.stdout.write(`${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`);
+    process.stdout.write(
+      `${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`,
+    );
   } else describeOutcome(outcome, options.trust, trust, terminal, Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR);
   if (options.sign) await countersign(reportPath, html, outcome, options, terminal);
   return outcome.verdict === 'verified' ? 0 : 1;
@@ -149,15 +167,20 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
 async function countersign(reportPath: string, html: string, outcome: CheckOutcome, options: CheckOptions, terminal: Terminal): Promise<void> {
   const envelope = outcome.envelope;
   const reading = readSealedHtml(html);
-  if (!envelope || !reading.ok) throw new StudyFailure([{ code: 'check-unsignable', message: 'there is no readable seal to counter-sign', hint: 'only a sealed report can be counter-signed' }]);
+  if (!envelope || !reading.ok)
+    throw new StudyFailure([
+      { code: 'check-unsignable', message: 'there is no readable seal to counter-sign', hint: 'only a sealed report can be counter-signed' },
+    ]);
   await withSealErrors(async () => {
     const stored = loadDefaultKey(options.keys);
     if (stored.identity.fingerprint === envelope.manifest.signer.fingerprint) {
-      throw new StudyFailure([{
-        code: 'check-own-seal',
-        message: `the checking key is the key that sealed the report (${envelope.manifest.signer.name}); a check is a second engineer's`,
-        hint: "counter-sign with the checker's own key (--keys <folder of the checker's keys>)",
-      }]);
+      throw new StudyFailure([
+        {
+          code: 'check-own-seal',
+          message: `the checking key is the key that sealed the report (${envelope.manifest.signer.name}); a check is a second engineer's`,
+          hint: "counter-sign with the checker's own key (--keys <folder of the checker's keys>)",
+        },
+      ]);
     }
     const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${stored.identity.name}: `));
     const record = signCheckRecord(
@@ -175,7 +198,13 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     const checkPath = `${stem}.check.json`;
     const checkedHtmlPath = `${stem}.checked.html`;
     if (existsSync(checkPath) || existsSync(checkedHtmlPath)) {
-      throw new StudyFailure([{ code: 'check-exists', message: `${checkPath} already exists; a check record is never overwritten`, hint: 'move the earlier check record aside first' }]);
+      throw new StudyFailure([
+        {
+          code: 'check-exists',
+          message: `${checkPath} already exists; a check record is never overwritten`,
+          hint: 'move the earlier check record aside first',
+        },
+      ]);
     }
     try {
       // Into the report's own set when it is one, so that the counter-signature stays with it when superseded.
@@ -185,7 +214,13 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
       ]);
     } catch (error) {
       if ((error as NodeJS.ErrnoException).code !== 'EEXIST') throw error;
-      throw new StudyFailure([{ code: 'check-exists', message: `${checkPath} already exists; a check record is never overwritten`, hint: 'move the earlier check record aside first' }]);
+      throw new StudyFailure([
+        {
+          code: 'check-exists',
+          message: `${checkPath} already exists; a check record is never overwritten`,
+          hint: 'move the earlier check record aside first',
+        },
+      ]);
     }
     terminal.say(`check record: ${checkPath}`);
     terminal.say(`report with both signatures: ${checkedHtmlPath}`);

@@ -37,7 +37,12 @@ function withCeilings(command: Command): Command {
       }
       return value;
     };
-    command.option(`${CEILING_OPTIONS[key]} <${key === 'heapMb' ? 'mb' : 's'}>`, `the most ${described[key]} this run grants, whatever the study asks`, parse, DEFAULT_CEILINGS[key]);
+    command.option(
+      `${CEILING_OPTIONS[key]} <${key === 'heapMb' ? 'mb' : 's'}>`,
+      `the most ${described[key]} this run grants, whatever the study asks`,
+      parse,
+      DEFAULT_CEILINGS[key],
+    );
   }
   return command;
 }
@@ -58,37 +63,39 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .exitOverride()
     .configureOutput({ writeErr: (text) => process.stderr.write(text), writeOut: (text) => process.stdout.write(text) });
 
-  withCeilings(program
-    .command('run')
-    .description('run a study and write build/<id>-r<revision>.html and .results.json')
-    .argument('<study>', 'the study file (.study.md)')
-    .option('-o, --out <dir>', 'folder for the report files', 'build')
-    .option('-s, --set <name=value>', 'override an input for this run, e.g. --set lineLength=280km (repeatable)', collect, [])
-    .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)'))
-    .option('--pdf', 'also print the report to PDF with the system Chromium (or set report.pdf in the front matter)')
-    .option('--seal', "seal the report with the engineer's signing key")
-    .option('--replace-sealed', 'move an existing sealed report of the same id and revision to superseded/ instead of refusing')
-    .option('--keys <dir>', 'folder of signing keys', folders.keys))
-    .action(async (study: string, options: WithCeilingOptions<RunOptions>) => {
-      // Loaded on demand so that --help and usage errors answer at once.
-      const { runCommand } = await import('./runCommand.ts');
-      setExit(await runCommand(study, { ...options, ceilings: ceilingsOf(options) }, terminal));
-    });
+  withCeilings(
+    program
+      .command('run')
+      .description('run a study and write build/<id>-r<revision>.html and .results.json')
+      .argument('<study>', 'the study file (.study.md)')
+      .option('-o, --out <dir>', 'folder for the report files', 'build')
+      .option('-s, --set <name=value>', 'override an input for this run, e.g. --set lineLength=280km (repeatable)', collect, [])
+      .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)'))
+      .option('--pdf', 'also print the report to PDF with the system Chromium (or set report.pdf in the front matter)')
+      .option('--seal', "seal the report with the engineer's signing key")
+      .option('--replace-sealed', 'move an existing sealed report of the same id and revision to superseded/ instead of refusing')
+      .option('--keys <dir>', 'folder of signing keys', folders.keys),
+  ).action(async (study: string, options: WithCeilingOptions<RunOptions>) => {
+    // Loaded on demand so that --help and usage errors answer at once.
+    const { runCommand } = await import('./runCommand.ts');
+    setExit(await runCommand(study, { ...options, ceilings: ceilingsOf(options) }, terminal));
+  });
 
-  withCeilings(program
-    .command('check')
-    .description('verify a sealed report: signature, unchanged body, study source, re-run of every figure')
-    .argument('<report>', 'the sealed report (.html, or the .pdf that carries it)')
-    .option('--source <study>', 'the study file, when the report should be checked against a copy the checker holds')
-    .option('--trust <dir>', 'folder of trusted public identities', folders.trusted)
-    .option('--tolerance <relative>', 'relative tolerance for re-computed figures without their own', parseTolerance, DEFAULT_RELATIVE_TOLERANCE)
-    .option('--json', 'print the outcome as JSON for machines')
-    .option('--sign', "counter-sign the outcome with the checker's key (writes .check.json and .checked.html)")
-    .option('--keys <dir>', 'folder of signing keys', folders.keys))
-    .action(async (report: string, options: WithCeilingOptions<CheckOptions>) => {
-      const { checkCommand } = await import('./checkCommand.ts');
-      setExit(await checkCommand(report, { ...options, ceilings: ceilingsOf(options) }, terminal));
-    });
+  withCeilings(
+    program
+      .command('check')
+      .description('verify a sealed report: signature, unchanged body, study source, re-run of every figure')
+      .argument('<report>', 'the sealed report (.html, or the .pdf that carries it)')
+      .option('--source <study>', 'the study file, when the report should be checked against a copy the checker holds')
+      .option('--trust <dir>', 'folder of trusted public identities', folders.trusted)
+      .option('--tolerance <relative>', 'relative tolerance for re-computed figures without their own', parseTolerance, DEFAULT_RELATIVE_TOLERANCE)
+      .option('--json', 'print the outcome as JSON for machines')
+      .option('--sign', "counter-sign the outcome with the checker's key (writes .check.json and .checked.html)")
+      .option('--keys <dir>', 'folder of signing keys', folders.keys),
+  ).action(async (report: string, options: WithCeilingOptions<CheckOptions>) => {
+    const { checkCommand } = await import('./checkCommand.ts');
+    setExit(await checkCommand(report, { ...options, ceilings: ceilingsOf(options) }, terminal));
+  });
 
   const key = program.command('key').description('signing keys of licensed engineers');
   key
@@ -144,7 +151,13 @@ export async function main(argv: readonly string[], environment: NodeJS.ProcessE
       terminal.problems(error.diagnostics);
       return EXIT.studyFailed;
     }
-    terminal.problems([{ code: 'internal', message: `kvarbook failed unexpectedly: ${(error as Error).message}`, hint: 'please report this with the study that caused it' }]);
+    terminal.problems([
+      {
+        code: 'internal',
+        message: `kvarbook failed unexpectedly: ${(error as Error).message}`,
+        hint: 'please report this with the study that caused it',
+      },
+    ]);
     return EXIT.studyFailed;
   }
 }

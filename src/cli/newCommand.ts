@@ -20,12 +20,20 @@ export function newCommand(template: string, file: string, terminal: Terminal): 
     throw new StudyFailure([{ code: 'template-missing', message: `there is no template "${template}"`, hint: `templates: ${names.join(', ')}` }]);
   }
   if (existsSync(file)) {
-    throw new StudyFailure([{ code: 'new-exists', message: `${file} already exists; kvarbook new never overwrites a study`, hint: 'choose another file name' }]);
+    throw new StudyFailure([
+      { code: 'new-exists', message: `${file} already exists; kvarbook new never overwrites a study`, hint: 'choose another file name' },
+    ]);
   }
   try {
     copyFileSync(join(KVARBOOK_ROOT, 'templates', `${template}${TEMPLATE_SUFFIX}`), file, constants.COPYFILE_EXCL);
   } catch (error) {
-    throw new StudyFailure([{ code: 'new-unwritable', message: `cannot create ${file} (${(error as NodeJS.ErrnoException).code ?? (error as Error).message})`, hint: 'check that the folder exists and is writable' }]);
+    throw new StudyFailure([
+      {
+        code: 'new-unwritable',
+        message: `cannot create ${file} (${(error as NodeJS.ErrnoException).code ?? (error as Error).message})`,
+        hint: 'check that the folder exists and is writable',
+      },
+    ]);
   }
   terminal.say(`created ${file} from the "${template}" template`);
   return 0;

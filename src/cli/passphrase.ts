@@ -7,7 +7,13 @@ export async function readPassphrase(prompt: string, env: NodeJS.ProcessEnv = la
   if (fromEnvironment !== undefined && fromEnvironment !== '') return fromEnvironment;
   const input = process.stdin;
   if (!input.isTTY) {
-    throw new StudyFailure([{ code: 'passphrase-missing', message: 'a passphrase is needed for the signing key, and there is no terminal to ask on', hint: 'set KVARBOOK_PASSPHRASE for this command' }]);
+    throw new StudyFailure([
+      {
+        code: 'passphrase-missing',
+        message: 'a passphrase is needed for the signing key, and there is no terminal to ask on',
+        hint: 'set KVARBOOK_PASSPHRASE for this command',
+      },
+    ]);
   }
   process.stderr.write(prompt);
   input.setRawMode(true);

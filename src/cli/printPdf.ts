@@ -40,10 +40,34 @@ export async function printStudyPdf(inputs: PdfInputs): Promise<Uint8Array> {
       },
       fixedDate: new Date(`${meta.date}T00:00:00Z`),
       attachments: [
-        { fileName: inputs.htmlFileName, mimeType: 'text/html', description: 'The report itself, as sealed; check it with kvarbook check', content: encoder.encode(inputs.html) },
-        { fileName: `${base}.results.json`, mimeType: 'application/json', description: 'Every result, criterion and caution, for machines', content: encoder.encode(inputs.resultsJson) },
-        ...(inputs.sealJson ? [{ fileName: `${base}.seal.json`, mimeType: 'application/json', description: "The engineer's seal", content: encoder.encode(inputs.sealJson) }] : []),
-        { fileName: basename(inputs.studyFileName), mimeType: 'text/markdown', description: 'The study source the figures were computed from', content: encoder.encode(inputs.studySource) },
+        {
+          fileName: inputs.htmlFileName,
+          mimeType: 'text/html',
+          description: 'The report itself, as sealed; check it with kvarbook check',
+          content: encoder.encode(inputs.html),
+        },
+        {
+          fileName: `${base}.results.json`,
+          mimeType: 'application/json',
+          description: 'Every result, criterion and caution, for machines',
+          content: encoder.encode(inputs.resultsJson),
+        },
+        ...(inputs.sealJson
+          ? [
+              {
+                fileName: `${base}.seal.json`,
+                mimeType: 'application/json',
+                description: "The engineer's seal",
+                content: encoder.encode(inputs.sealJson),
+              },
+            ]
+          : []),
+        {
+          fileName: basename(inputs.studyFileName),
+          mimeType: 'text/markdown',
+          description: 'The study source the figures were computed from',
+          content: encoder.encode(inputs.studySource),
+        },
       ],
     });
   } catch (error) {
@@ -74,14 +98,22 @@ export async function readPdfReport(bytes: Uint8Array, pdfPath: string): Promise
   }
   const reports = read.attachments.filter((attachment) => attachment.fileName.toLowerCase().endsWith('.html'));
   if (reports.length === 0) {
-    throw new StudyFailure([{ code: 'pdf-no-report', message: `${pdfPath} carries no report to check`, hint: 'a kvarbook PDF carries its HTML report as an attachment; was this PDF made by kvarbook?' }]);
+    throw new StudyFailure([
+      {
+        code: 'pdf-no-report',
+        message: `${pdfPath} carries no report to check`,
+        hint: 'a kvarbook PDF carries its HTML report as an attachment; was this PDF made by kvarbook?',
+      },
+    ]);
   }
   if (reports.length > 1 || read.attachments[0] !== reports[0]) {
-    throw new StudyFailure([{
-      code: 'pdf-report-ambiguous',
-      message: `${pdfPath} carries the attachments ${read.attachments.map((attachment) => attachment.fileName).join(', ')}; a kvarbook PDF carries exactly one HTML report, as its first attachment`,
-      hint: 'this PDF was changed after kvarbook printed it; check the sealed .html report instead, or ask the engineer for the PDF as printed',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'pdf-report-ambiguous',
+        message: `${pdfPath} carries the attachments ${read.attachments.map((attachment) => attachment.fileName).join(', ')}; a kvarbook PDF carries exactly one HTML report, as its first attachment`,
+        hint: 'this PDF was changed after kvarbook printed it; check the sealed .html report instead, or ask the engineer for the PDF as printed',
+      },
+    ]);
   }
   return { bytes, read, html: new TextDecoder('utf-8').decode(reports[0]!.content) };
 }
@@ -115,6 +147,10 @@ export async function pdfAsPrintedStep(inHand: PdfInHand, outcome: CheckOutcome,
   const { comparePrints } = await import('../report/pdf/index.ts');
   const comparison = await comparePrints(inHand, reprint);
   return comparison.identical
-    ? { name, passed: true, detail: `every byte is what this machine prints from the verified report (producer: ${inHand.read.producer ?? 'kvarbook'})` }
+    ? {
+        name,
+        passed: true,
+        detail: `every byte is what this machine prints from the verified report (producer: ${inHand.read.producer ?? 'kvarbook'})`,
+      }
     : { name, passed: false, detail: `the PDF is not the print of the verified report: ${comparison.differences.join('; ')}` };
 }

@@ -9,24 +9,31 @@ export function readStudyFile(path: string): string {
   let size: number;
   try {
     const stat = statSync(path);
-    if (!stat.isFile()) throw new StudyFailure([{ code: 'study-not-file', message: `${path} is not a file`, at: { file: path, line: 1 }, hint: 'name a .study.md file' }]);
+    if (!stat.isFile())
+      throw new StudyFailure([
+        { code: 'study-not-file', message: `${path} is not a file`, at: { file: path, line: 1 }, hint: 'name a .study.md file' },
+      ]);
     size = stat.size;
   } catch (error) {
     if (error instanceof StudyFailure) throw error;
     const code = (error as NodeJS.ErrnoException).code;
-    throw new StudyFailure([{
-      code: 'study-unreadable',
-      message: code === 'ENOENT' ? `${path} does not exist` : `${path} cannot be read (${code ?? (error as Error).message})`,
-      hint: code === 'ENOENT' ? 'check the path; `kvarbook new blank <file>` starts a new study' : 'check the file permissions',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'study-unreadable',
+        message: code === 'ENOENT' ? `${path} does not exist` : `${path} cannot be read (${code ?? (error as Error).message})`,
+        hint: code === 'ENOENT' ? 'check the path; `kvarbook new blank <file>` starts a new study' : 'check the file permissions',
+      },
+    ]);
   }
   if (size > MAX_STUDY_BYTES) {
-    throw new StudyFailure([{
-      code: 'study-too-large',
-      message: `${path} is ${(size / 1024 / 1024).toFixed(1)} MB; a study may be at most ${MAX_STUDY_BYTES / 1024 / 1024} MB`,
-      at: { file: path, line: 1 },
-      hint: 'keep bulky data out of the study; a study holds inputs, prose and calculations',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'study-too-large',
+        message: `${path} is ${(size / 1024 / 1024).toFixed(1)} MB; a study may be at most ${MAX_STUDY_BYTES / 1024 / 1024} MB`,
+        at: { file: path, line: 1 },
+        hint: 'keep bulky data out of the study; a study holds inputs, prose and calculations',
+      },
+    ]);
   }
   const bytes = readFileSync(path);
   let text: string;
@@ -35,15 +42,24 @@ export function readStudyFile(path: string): string {
   } catch {
     const offset = firstInvalidUtf8Offset(bytes);
     const line = bytes.subarray(0, offset).toString('latin1').split('\n').length;
-    throw new StudyFailure([{
-      code: 'study-not-utf8',
-      message: `${path} is not UTF-8 text (invalid byte at offset ${offset})`,
-      at: { file: path, line },
-      hint: 'save the study as UTF-8',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'study-not-utf8',
+        message: `${path} is not UTF-8 text (invalid byte at offset ${offset})`,
+        at: { file: path, line },
+        hint: 'save the study as UTF-8',
+      },
+    ]);
   }
   if (text.includes('\u0000')) {
-    throw new StudyFailure([{ code: 'study-binary', message: `${path} contains NUL characters; it is not a text study`, at: { file: path, line: 1 }, hint: 'name a .study.md file' }]);
+    throw new StudyFailure([
+      {
+        code: 'study-binary',
+        message: `${path} contains NUL characters; it is not a text study`,
+        at: { file: path, line: 1 },
+        hint: 'name a .study.md file',
+      },
+    ]);
   }
   // Windows line endings would shift every column by one; a BOM would hide the front matter.
   return text.replace(/^\uFEFF/, '').replace(/\r\n?/g, '\n');

@@ -45,7 +45,11 @@ export function reportPaths(outFolder: string, studyId: string, revision: number
 /** The output folder as a set of report files of one study id and revision. */
 export function reportFolder(outFolder: string, studyId: string, revision: number): ReportFolder {
   const paths = reportPaths(outFolder, studyId, revision);
-  return { out: outFolder, base: basename(paths.base), names: [paths.html, paths.results, paths.seal, paths.pdf, paths.check, paths.checkedHtml].map((path) => basename(path)) };
+  return {
+    out: outFolder,
+    base: basename(paths.base),
+    names: [paths.html, paths.results, paths.seal, paths.pdf, paths.check, paths.checkedHtml].map((path) => basename(path)),
+  };
 }
 
 /**
@@ -68,9 +72,11 @@ export async function isSealedSet(set: ReportSet): Promise<boolean> {
 }
 
 export function sealedReportExists(paths: ReportPaths): StudyFailure {
-  return new StudyFailure([{
-    code: 'sealed-report-exists',
-    message: `${paths.html} is a sealed report of this study id and revision; kvarbook will not overwrite it`,
-    hint: `raise "revision" in the front matter for a new issue of the study, or pass --replace-sealed to move the sealed set to ${SUPERSEDED}/ and write a new one`,
-  }]);
+  return new StudyFailure([
+    {
+      code: 'sealed-report-exists',
+      message: `${paths.html} is a sealed report of this study id and revision; kvarbook will not overwrite it`,
+      hint: `raise "revision" in the front matter for a new issue of the study, or pass --replace-sealed to move the sealed set to ${SUPERSEDED}/ and write a new one`,
+    },
+  ]);
 }

@@ -29,7 +29,11 @@ export interface RunOptions {
   ceilings?: RunLimits;
 }
 
-export async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
+export async function produceStudy(
+  studyPath: string,
+  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>,
+  terminal: Terminal,
+): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
   return runStudy({
     file: studyPath,
@@ -51,12 +55,14 @@ async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ h
     const engineer = product.run.study.meta.engineer;
     const signer = stored.identity;
     if (signer.name !== engineer.name || signer.licence !== engineer.licence || signer.jurisdiction !== engineer.jurisdiction) {
-      throw new StudyFailure([{
-        code: 'seal-not-the-engineer',
-        message: `the study names ${engineer.name} (licence ${engineer.licence ?? '?'}, ${engineer.jurisdiction ?? '?'}) as its engineer, but the signing key belongs to ${signer.name} (licence ${signer.licence}, ${signer.jurisdiction})`,
-        at: { file: product.run.study.file, line: 1 },
-        hint: 'only the engineer named in the front matter may seal the study',
-      }]);
+      throw new StudyFailure([
+        {
+          code: 'seal-not-the-engineer',
+          message: `the study names ${engineer.name} (licence ${engineer.licence ?? '?'}, ${engineer.jurisdiction ?? '?'}) as its engineer, but the signing key belongs to ${signer.name} (licence ${signer.licence}, ${signer.jurisdiction})`,
+          at: { file: product.run.study.file, line: 1 },
+          hint: 'only the engineer named in the front matter may seal the study',
+        },
+      ]);
     }
     const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${signer.name}: `));
     const manifest = buildManifest(sealSubject(product.results, reportBodySha256(product.report)));
@@ -70,7 +76,13 @@ async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ h
 export async function runCommand(studyPath: string, options: RunOptions, terminal: Terminal): Promise<number> {
   if (options.seal && !options.typecheck) {
     // check always type-checks, and compares the body it renders with the sealed one, which records the type check.
-    throw new StudyFailure([{ code: 'seal-needs-typecheck', message: '--seal and --no-typecheck cannot go together: a sealed report is type-checked', hint: 'drop --no-typecheck when sealing' }]);
+    throw new StudyFailure([
+      {
+        code: 'seal-needs-typecheck',
+        message: '--seal and --no-typecheck cannot go together: a sealed report is type-checked',
+        hint: 'drop --no-typecheck when sealing',
+      },
+    ]);
   }
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();

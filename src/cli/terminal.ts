@@ -53,7 +53,13 @@ function printableLines(text: string, indent: string): string {
 export function printableDiagnostic(diagnostic: Diagnostic): string {
   const where = printable(formatLocation(diagnostic.at));
   const lines = [`${where ? `${where}: ` : ''}error: ${printableLines(diagnostic.message, '    ')} [${printable(diagnostic.code)}]`];
-  if (diagnostic.excerpt) lines.push(diagnostic.excerpt.split('\n').map((line) => printable(line)).join('\n'));
+  if (diagnostic.excerpt)
+    lines.push(
+      diagnostic.excerpt
+        .split('\n')
+        .map((line) => printable(line))
+        .join('\n'),
+    );
   if (diagnostic.hint) lines.push(`  hint: ${printableLines(diagnostic.hint, '        ')}`);
   return lines.join('\n');
 }

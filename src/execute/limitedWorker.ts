@@ -109,7 +109,9 @@ export function openLimitedWorker(moduleUrl: URL, exportName: string, limits: Wo
     call(input: unknown): Promise<unknown> {
       const id = nextId++;
       const answer = queue.then(async () => {
-        const reply = await next(limits.callSeconds, `took longer than ${limits.callSeconds} s and was stopped`, () => worker.postMessage({ id, input }));
+        const reply = await next(limits.callSeconds, `took longer than ${limits.callSeconds} s and was stopped`, () =>
+          worker.postMessage({ id, input }),
+        );
         if (!('id' in reply) || reply.id !== id) throw new WorkerLimitError('ended', "kvarbook's worker answered out of turn");
         if (!reply.ok) throw new WorkerCallError(reply.error);
         return reply.value;

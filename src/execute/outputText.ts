@@ -19,7 +19,6 @@ const CONTROLS_IN_TEXT = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u2028\u2029\u
 const INVISIBLE_IN_NAME = /[\p{Cc}\p{Cf}\p{Zl}\p{Zp}\p{Cs}\p{Co}\p{Cn}]|[^\S ]/u;
 const NON_FINITE_WORD = /(?<![\p{L}\p{N}_])(NaN|Infinity)(?![\p{L}\p{N}_])/u;
 
-
 /** "U+202E" for a character, so a message can name what it refuses without showing it. */
 export function codePointName(character: string): string {
   return `U+${character.codePointAt(0)!.toString(16).toUpperCase().padStart(4, '0')}`;
@@ -35,12 +34,20 @@ export interface TextProblem {
 /** Why `text` cannot be written in `role`, or undefined when it can; the first problem only. */
 export function outputTextProblem(role: TextRole, text: string): TextProblem | undefined {
   const limit = role === 'name' ? OUTPUT_LIMITS.nameCharacters : OUTPUT_LIMITS.textCharacters;
-  if (text.length > limit) return { code: 'output-limit', message: `is ${formatCount(text.length)} characters long; a report holds at most ${formatCount(limit)} characters for it` };
+  if (text.length > limit)
+    return {
+      code: 'output-limit',
+      message: `is ${formatCount(text.length)} characters long; a report holds at most ${formatCount(limit)} characters for it`,
+    };
   const control = DIRECTION_CONTROLS.exec(text) ?? (role === 'text' ? CONTROLS_IN_TEXT : INVISIBLE_IN_NAME).exec(text);
   if (control) {
-    return { code: 'text-characters', message: `contains the invisible or control character ${codePointName(control[0])}, which could make it look like another text` };
+    return {
+      code: 'text-characters',
+      message: `contains the invisible or control character ${codePointName(control[0])}, which could make it look like another text`,
+    };
   }
-  if (role !== 'text' && /^ | $|  /.test(text)) return { code: 'text-characters', message: 'has spaces at its ends or two spaces in a row, which a report would not show' };
+  if (role !== 'text' && /^ | $|  /.test(text))
+    return { code: 'text-characters', message: 'has spaces at its ends or two spaces in a row, which a report would not show' };
   const nonFinite = NON_FINITE_WORD.exec(text);
   if (nonFinite) return { code: 'non-finite', message: `says "${nonFinite[1]}": a report never shows a non-finite number, not even as text` };
   return undefined;

@@ -81,7 +81,14 @@ function one(raw: unknown): BlockRecord | undefined {
         ...(isFiniteNumber(record.tolerance) ? { tolerance: record.tolerance } : {}),
       });
     case 'criterion':
-      if (!isText(record.name) || !isFiniteNumber(record.value) || !isText(record.unit) || !isDigits(record.digits) || typeof record.passed !== 'boolean') return undefined;
+      if (
+        !isText(record.name) ||
+        !isFiniteNumber(record.value) ||
+        !isText(record.unit) ||
+        !isDigits(record.digits) ||
+        typeof record.passed !== 'boolean'
+      )
+        return undefined;
       if ((record.min !== undefined && !isFiniteNumber(record.min)) || (record.max !== undefined && !isFiniteNumber(record.max))) return undefined;
       return withPosition({
         kind: 'criterion',
@@ -119,7 +126,12 @@ function one(raw: unknown): BlockRecord | undefined {
         : undefined;
     case 'solver-call':
       return isText(record.functionName)
-        ? withPosition({ kind: 'solver-call', functionName: record.functionName, argumentsSummary: plainData(record.argumentsSummary), returnedSummary: plainData(record.returnedSummary) })
+        ? withPosition({
+            kind: 'solver-call',
+            functionName: record.functionName,
+            argumentsSummary: plainData(record.argumentsSummary),
+            returnedSummary: plainData(record.returnedSummary),
+          })
         : undefined;
     default:
       return undefined;
@@ -137,15 +149,24 @@ function textsOf(record: BlockRecord): [string, string, TextRole][] {
         ...(record.note !== undefined ? [['the note', record.note, 'text'] as [string, string, TextRole]] : []),
       ];
     case 'criterion':
-      return [['the name', record.name, 'name'], ['the unit', record.unit, 'name'], ...(record.note !== undefined ? [['the note', record.note, 'text'] as [string, string, TextRole]] : [])];
+      return [
+        ['the name', record.name, 'name'],
+        ['the unit', record.unit, 'name'],
+        ...(record.note !== undefined ? [['the note', record.note, 'text'] as [string, string, TextRole]] : []),
+      ];
     case 'caution':
     case 'text':
       return [['the text', record.text, 'text']];
     case 'table':
       return [
         ...(record.caption !== undefined ? [['the caption', record.caption, 'caption'] as [string, string, TextRole]] : []),
-        ...record.columns.flatMap((column): [string, string, TextRole][] => [['a column label', column.label, 'name'], ['a column unit', column.unit, 'name']]),
-        ...record.rows.flatMap((row) => row.flatMap((cell): [string, string, TextRole][] => (typeof cell === 'string' ? [['a cell', cell, 'text']] : []))),
+        ...record.columns.flatMap((column): [string, string, TextRole][] => [
+          ['a column label', column.label, 'name'],
+          ['a column unit', column.unit, 'name'],
+        ]),
+        ...record.rows.flatMap((row) =>
+          row.flatMap((cell): [string, string, TextRole][] => (typeof cell === 'string' ? [['a cell', cell, 'text']] : [])),
+        ),
       ];
     case 'chart':
       return [['the caption', record.caption, 'caption']];
@@ -157,12 +178,24 @@ function textsOf(record: BlockRecord): [string, string, TextRole][] {
 /** What makes a well-formed record too large or unfit to show, or undefined when it may reach the report. */
 function outputProblem(record: BlockRecord): { what: string; problem: TextProblem } | undefined {
   if (record.kind === 'table' && record.rows.length * record.columns.length > OUTPUT_LIMITS.tableCells) {
-    return { what: 'a table', problem: { code: 'output-limit', message: `has ${formatCount(record.rows.length * record.columns.length)} cells; a report table holds at most ${formatCount(OUTPUT_LIMITS.tableCells)}` } };
+    return {
+      what: 'a table',
+      problem: {
+        code: 'output-limit',
+        message: `has ${formatCount(record.rows.length * record.columns.length)} cells; a report table holds at most ${formatCount(OUTPUT_LIMITS.tableCells)}`,
+      },
+    };
   }
   if (record.kind === 'chart') {
     const characters = JSON.stringify(record.spec).length;
     if (characters > OUTPUT_LIMITS.chartSpecCharacters) {
-      return { what: `chart "${record.caption.slice(0, 80)}"`, problem: { code: 'output-limit', message: `has a specification of ${formatCount(characters)} characters; a chart may have at most ${formatCount(OUTPUT_LIMITS.chartSpecCharacters)}` } };
+      return {
+        what: `chart "${record.caption.slice(0, 80)}"`,
+        problem: {
+          code: 'output-limit',
+          message: `has a specification of ${formatCount(characters)} characters; a chart may have at most ${formatCount(OUTPUT_LIMITS.chartSpecCharacters)}`,
+        },
+      };
     }
   }
   for (const [what, text, role] of textsOf(record)) {
@@ -196,9 +229,21 @@ export function sanitizeRecords(raw: unknown, study: Study, at: SourceLocation, 
     budget.characters += JSON.stringify(item).length;
     const found =
       budget.characters > OUTPUT_LIMITS.studyOutputBytes
-        ? { what: 'the study', problem: { code: 'output-limit', message: `has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all` } satisfies TextProblem }
+        ? {
+            what: 'the study',
+            problem: {
+              code: 'output-limit',
+              message: `has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all`,
+            } satisfies TextProblem,
+          }
         : outputProblem(record);
-    if (found) problems.push({ code: `block-${found.problem.code}`, message: `${found.what} ${found.problem.message}`, at, hint: TEXT_PROBLEM_HINTS[found.problem.code] });
+    if (found)
+      problems.push({
+        code: `block-${found.problem.code}`,
+        message: `${found.what} ${found.problem.message}`,
+        at,
+        hint: TEXT_PROBLEM_HINTS[found.problem.code],
+      });
     else out.push(record);
   }
   if (problems.length > 0) throw new StudyFailure(problems.slice(0, 1));

@@ -90,9 +90,17 @@ export async function executeStudy(
   const conversation = new Conversation(child, residentLimitBytes(limits.heapMb));
   const studyDeadline = Date.now() + limits.studySeconds * 1000;
   try {
-    const notStarted = (): Diagnostic => ({ code: 'child-start', message: 'the calculation process did not start', hint: 'run `npm ci` and try again' });
+    const notStarted = (): Diagnostic => ({
+      code: 'child-start',
+      message: 'the calculation process did not start',
+      hint: 'run `npm ci` and try again',
+    });
     try {
-      await conversation.ask({ type: 'start', inputs: inputs.map(toInputData), blockMilliseconds: limits.blockSeconds * 1000 }, limits.blockSeconds * 1000 + 10_000, notStarted);
+      await conversation.ask(
+        { type: 'start', inputs: inputs.map(toInputData), blockMilliseconds: limits.blockSeconds * 1000 },
+        limits.blockSeconds * 1000 + 10_000,
+        notStarted,
+      );
     } catch (error) {
       if (error instanceof ChildExit) throw new StudyFailure([notStarted()]);
       throw error;
@@ -117,19 +125,33 @@ export async function executeStudy(
       const group = inlinesAfter.get(runnableCount);
       if (!group) return;
       const first = group[0]!.inline;
-      const what = group.length === 1 ? `the inline value {{ ${first.expression} }}` : `the ${group.length} inline values from line ${first.at.line} on`;
-      const reply = await ask({ type: 'evaluate-inlines', inlines: group.map(({ inlineId, script }) => ({ inlineId, script })) }, first.at, what, group.length);
+      const what =
+        group.length === 1 ? `the inline value {{ ${first.expression} }}` : `the ${group.length} inline values from line ${first.at.line} on`;
+      const reply = await ask(
+        { type: 'evaluate-inlines', inlines: group.map(({ inlineId, script }) => ({ inlineId, script })) },
+        first.at,
+        what,
+        group.length,
+      );
       if (reply.type === 'inline-failed') {
         const failed = group.find((inline) => inline.inlineId === reply.inlineId);
         if (failed) throw new StudyFailure([inlineFailure(study, failed, sanitizeErrorReport(reply.error))]);
       }
-      if (reply.type !== 'inlines-done' || !Array.isArray(reply.texts) || reply.texts.length !== group.length) throw new StudyFailure([outOfTurn(first.at)]);
+      if (reply.type !== 'inlines-done' || !Array.isArray(reply.texts) || reply.texts.length !== group.length)
+        throw new StudyFailure([outOfTurn(first.at)]);
       group.forEach((inline, index) => {
         const answer = reply.texts[index] as { inlineId?: unknown; text?: unknown } | undefined;
         if (answer?.inlineId !== inline.inlineId || typeof answer.text !== 'string') throw new StudyFailure([outOfTurn(inline.inline.at)]);
         const problem = outputTextProblem('text', answer.text);
         if (problem) {
-          throw new StudyFailure([{ code: `inline-${problem.code}`, message: `the inline value {{ ${inline.inline.expression} }}: its text ${problem.message}`, at: inline.inline.at, hint: TEXT_PROBLEM_HINTS[problem.code] }]);
+          throw new StudyFailure([
+            {
+              code: `inline-${problem.code}`,
+              message: `the inline value {{ ${inline.inline.expression} }}: its text ${problem.message}`,
+              at: inline.inline.at,
+              hint: TEXT_PROBLEM_HINTS[problem.code],
+            },
+          ]);
         }
         written.characters += answer.text.length;
         outcome.inlineTexts.set(inline.inlineId, answer.text);
@@ -139,8 +161,13 @@ export async function executeStudy(
     for (const [position, block] of blocks.entries()) {
       hooks.onBlockStart?.(block, position, blocks.length);
       const at = { file: study.file, line: block.block.fenceLine };
-      const reply = await ask({ type: 'run-block', blockIndex: block.blockIndex, script: block.script, declarations: block.declarations }, at, `the block at line ${block.block.fenceLine}`);
-      if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex) throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), granted)]);
+      const reply = await ask(
+        { type: 'run-block', blockIndex: block.blockIndex, script: block.script, declarations: block.declarations },
+        at,
+        `the block at line ${block.block.fenceLine}`,
+      );
+      if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex)
+        throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), granted)]);
       if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) throw new StudyFailure([outOfTurn(at)]);
       outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at, written)) });
       await evaluateInlinesAfter(position + 1);
@@ -173,7 +200,8 @@ function toInputData(input: EffectiveInput): InputData {
 function locate(study: Study, block: TranspiledBlock, records: BlockRecord[]): LocatedRecord[] {
   return records.map((record) => {
     const { position, ...rest } = record;
-    if (!position || position.blockIndex !== block.blockIndex) return { ...rest, at: { file: study.file, line: block.block.fenceLine } } as LocatedRecord;
+    if (!position || position.blockIndex !== block.blockIndex)
+      return { ...rest, at: { file: study.file, line: block.block.fenceLine } } as LocatedRecord;
     const mapped = studyPositionOf(block, position.line, position.column);
     return { ...rest, at: { file: study.file, line: mapped.line, column: mapped.column } } as LocatedRecord;
   });
@@ -184,7 +212,10 @@ function raiseHint(granted: GrantedLimits, keys: readonly (keyof RunLimits)[], u
   const capped = keys.filter((key) => granted.asked[key] !== undefined);
   if (capped.length === 0) return `may raise limits.${keys.join(' or limits.')} in the front matter`;
   return capped
-    .map((key) => `the study asks limits.${key}: ${granted.asked[key]}, but this run's ceiling is ${granted.limits[key]} ${unit[key]} (raise it with ${CEILING_OPTIONS[key]})`)
+    .map(
+      (key) =>
+        `the study asks limits.${key}: ${granted.asked[key]}, but this run's ceiling is ${granted.limits[key]} ${unit[key]} (raise it with ${CEILING_OPTIONS[key]})`,
+    )
     .join('; ');
 }
 
@@ -228,7 +259,13 @@ function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorRep
   if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, granted);
   const refused = refusedCapability(error);
   if (refused) {
-    return { code: 'block-denied', message: `a calculation block may not ${refused}`, at, excerpt: excerptAround(study.source, mapped.line, mapped.column), hint: DENIED_HINT };
+    return {
+      code: 'block-denied',
+      message: `a calculation block may not ${refused}`,
+      at,
+      excerpt: excerptAround(study.source, mapped.line, mapped.column),
+      hint: DENIED_HINT,
+    };
   }
   return {
     code: error.code === DENIAL_MARK ? 'block-denied' : error.code ? `block-${error.code}` : 'block-threw',
@@ -287,7 +324,13 @@ class Conversation {
     child.on('message', (message: unknown) => {
       const waiting = this.waiting;
       if (!waiting || !isChildMessage(message)) return;
-      if (message.type === 'ready' || message.type === 'block-done' || message.type === 'block-failed' || message.type === 'inlines-done' || message.type === 'inline-failed') {
+      if (
+        message.type === 'ready' ||
+        message.type === 'block-done' ||
+        message.type === 'block-failed' ||
+        message.type === 'inlines-done' ||
+        message.type === 'inline-failed'
+      ) {
         this.waiting = undefined;
         waiting.resolve(message);
       }

@@ -81,7 +81,13 @@ function transpileOne(study: Study, block: CalcBlock, diagnostics: Diagnostic[])
   let code: string;
   let map: string;
   try {
-    const result = transformSync(block.code, { loader: 'ts', target: 'es2022', sourcemap: 'external', sourcefile: `block-${block.index}.ts`, supported: { 'top-level-await': true } });
+    const result = transformSync(block.code, {
+      loader: 'ts',
+      target: 'es2022',
+      sourcemap: 'external',
+      sourcefile: `block-${block.index}.ts`,
+      supported: { 'top-level-await': true },
+    });
     code = result.code;
     map = result.map;
   } catch (error) {
@@ -92,7 +98,12 @@ function transpileOne(study: Study, block: CalcBlock, diagnostics: Diagnostic[])
   try {
     program = parse(code, { ecmaVersion: 'latest', sourceType: 'module', allowAwaitOutsideFunction: true });
   } catch (error) {
-    diagnostics.push({ code: 'block-syntax', message: (error as Error).message, at: { file: study.file, line: block.fenceLine }, hint: 'check the block syntax' });
+    diagnostics.push({
+      code: 'block-syntax',
+      message: (error as Error).message,
+      at: { file: study.file, line: block.fenceLine },
+      hint: 'check the block syntax',
+    });
     return undefined;
   }
   const traceMap = new TraceMap(map);
@@ -102,10 +113,23 @@ function transpileOne(study: Study, block: CalcBlock, diagnostics: Diagnostic[])
     const original = originalPositionFor(traceMap, { line: start.line, column: start.column });
     const line = (original.line ?? start.line) + block.firstCodeLine - 1;
     const column = (original.column ?? 0) + 1;
-    diagnostics.push({ code: 'block-module-syntax', message, at: { file: study.file, line, column }, excerpt: excerptAround(study.source, line, column), hint });
+    diagnostics.push({
+      code: 'block-module-syntax',
+      message,
+      at: { file: study.file, line, column },
+      excerpt: excerptAround(study.source, line, column),
+      hint,
+    });
   });
   if (!rewritten) return undefined;
-  return { blockIndex: block.index, script: WRAPPER_START + rewritten.code + WRAPPER_END, declarations: rewritten.declarations, traceMap, shifts: rewritten.shifts, block };
+  return {
+    blockIndex: block.index,
+    script: WRAPPER_START + rewritten.code + WRAPPER_END,
+    declarations: rewritten.declarations,
+    traceMap,
+    shifts: rewritten.shifts,
+    block,
+  };
 }
 
 type Complaint = (node: AcornNode, message: string, hint: string) => void;
@@ -151,7 +175,11 @@ function rewriteTopLevel(
   for (const statement of program.body) {
     switch (statement.type) {
       case 'ImportDeclaration':
-        complain(statement, 'a calculation block cannot import modules', 'the solver, charts and the block API are already available as globals (solver.…, charts.…, result, table, …)');
+        complain(
+          statement,
+          'a calculation block cannot import modules',
+          'the solver, charts and the block API are already available as globals (solver.…, charts.…, result, table, …)',
+        );
         ok = false;
         break;
       case 'ExportNamedDeclaration':
@@ -220,7 +248,9 @@ function patternNames(pattern: Pattern): string[] {
     case 'Identifier':
       return [pattern.name];
     case 'ObjectPattern':
-      return pattern.properties.flatMap((property) => (property.type === 'RestElement' ? patternNames(property.argument) : patternNames(property.value)));
+      return pattern.properties.flatMap((property) =>
+        property.type === 'RestElement' ? patternNames(property.argument) : patternNames(property.value),
+      );
     case 'ArrayPattern':
       return pattern.elements.flatMap((element) => (element ? patternNames(element) : []));
     case 'RestElement':
@@ -256,7 +286,11 @@ export function transpileInlines(study: Study): TranspiledInline[] {
   } catch (error) {
     const errors = (error as { errors?: Message[] }).errors ?? [];
     const failing = new Set(errors.map((message) => inlineAtLine(startLines, message.location?.line ?? 1)));
-    throw new StudyFailure([...failing].map((index) => inlineSyntax(study, study.inlines[index]!, errors.find((message) => inlineAtLine(startLines, message.location?.line ?? 1) === index)?.text)));
+    throw new StudyFailure(
+      [...failing].map((index) =>
+        inlineSyntax(study, study.inlines[index]!, errors.find((message) => inlineAtLine(startLines, message.location?.line ?? 1) === index)?.text),
+      ),
+    );
   }
   const statements = parse(code, { ecmaVersion: 'latest', sourceType: 'module', allowAwaitOutsideFunction: true }).body;
   // Each inline value must be exactly one statement; extra statements mean that a text closed its parenthesis and

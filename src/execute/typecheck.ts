@@ -64,13 +64,15 @@ export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_S
     if (!(error instanceof WorkerLimitError)) throw error;
     const { callSeconds, heapMb } = limits;
     const line = study.blocks[0]?.fenceLine ?? 1;
-    throw new StudyFailure([{
-      code: 'typecheck-limit',
-      message: `the type check of the blocks ${error.message} (it may take ${callSeconds} s and ${heapMb} MB)`,
-      at: { file: study.file, line },
-      excerpt: excerptAround(study.source, line),
-      hint: 'look for types that expand without end (recursive or combinatorial types); --no-typecheck skips the step while drafting',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'typecheck-limit',
+        message: `the type check of the blocks ${error.message} (it may take ${callSeconds} s and ${heapMb} MB)`,
+        at: { file: study.file, line },
+        excerpt: excerptAround(study.source, line),
+        hint: 'look for types that expand without end (recursive or combinatorial types); --no-typecheck skips the step while drafting',
+      },
+    ]);
   } finally {
     await worker.close();
   }
@@ -95,7 +97,13 @@ export async function typecheckDiagnostics(study: CheckedStudy): Promise<Diagnos
   const addInlines = (afterRunnableBlocks: number) => {
     for (const inline of inlinesAfter.get(afterRunnableBlocks) ?? []) {
       const prefix = 'void (';
-      segments.push({ virtualStart: line, lineCount: 1, studyLine: inline.at.line, studyColumn: (inline.at.column ?? 1) + 3, prefixLength: prefix.length });
+      segments.push({
+        virtualStart: line,
+        lineCount: 1,
+        studyLine: inline.at.line,
+        studyColumn: (inline.at.column ?? 1) + 3,
+        prefixLength: prefix.length,
+      });
       parts.push(`${prefix}${inline.expression.replace(/\n/g, ' ')});`);
       line += 1;
     }
@@ -119,7 +127,8 @@ export async function typecheckDiagnostics(study: CheckedStudy): Promise<Diagnos
     const segment = segmentAt(segments, position.line);
     if (!segment) return undefined;
     const studyLine = segment.studyLine + (position.line - segment.virtualStart);
-    const column = position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
+    const column =
+      position.line === segment.virtualStart ? Math.max(1, segment.studyColumn + position.character - segment.prefixLength) : position.character + 1;
     return { line: studyLine, column };
   };
   // Before the compiler resolves anything: a study that names another file is refused, and no file is read.

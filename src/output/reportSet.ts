@@ -1,6 +1,21 @@
 // The files of one run as one set: written into a fresh folder and switched in with one rename, never through a link; earlier sets kept whole.
 import { randomBytes, createHash } from 'node:crypto';
-import { closeSync, fsyncSync, lstatSync, mkdirSync, openSync, readdirSync, readFileSync, readlinkSync, realpathSync, renameSync, rmSync, symlinkSync, unlinkSync, writeSync } from 'node:fs';
+import {
+  closeSync,
+  fsyncSync,
+  lstatSync,
+  mkdirSync,
+  openSync,
+  readdirSync,
+  readFileSync,
+  readlinkSync,
+  realpathSync,
+  renameSync,
+  rmSync,
+  symlinkSync,
+  unlinkSync,
+  writeSync,
+} from 'node:fs';
 import { basename, dirname, isAbsolute, join, normalize, sep } from 'node:path';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { processIsRunning } from './liveProcess.ts';
@@ -149,7 +164,9 @@ export function addToSet(reportPath: string, files: { name: string; content: str
   }
   if (inSet) {
     const out = dirname(dirname(dirname(setFolder)));
-    const base = readdirSync(join(out, STORE)).find((name) => entryKind(join(out, STORE, name)) === 'link' && realpathSync(join(out, STORE, name)) === setFolder);
+    const base = readdirSync(join(out, STORE)).find(
+      (name) => entryKind(join(out, STORE, name)) === 'link' && realpathSync(join(out, STORE, name)) === setFolder,
+    );
     if (base !== undefined) for (const file of files) ensureOwnLink({ out, base, names: [file.name] }, file.name);
   }
   return written;
@@ -296,27 +313,33 @@ function realFolderPath(out: string): void {
 }
 
 function linkOnTheWay(path: string): StudyFailure {
-  return new StudyFailure([{
-    code: 'output-folder-link',
-    message: `${path} is a symbolic link (to ${readlinkSync(path)}); kvarbook writes reports only into real folders, never through a link`,
-    hint: 'remove the link, or name a real folder with --out',
-  }]);
+  return new StudyFailure([
+    {
+      code: 'output-folder-link',
+      message: `${path} is a symbolic link (to ${readlinkSync(path)}); kvarbook writes reports only into real folders, never through a link`,
+      hint: 'remove the link, or name a real folder with --out',
+    },
+  ]);
 }
 
 function foreignLink(path: string, target: string): StudyFailure {
-  return new StudyFailure([{
-    code: 'output-folder-link',
-    message: `${path} is a symbolic link to ${target}, which kvarbook did not make; it writes nothing through it`,
-    hint: 'remove the link; kvarbook makes its own links inside the output folder only',
-  }]);
+  return new StudyFailure([
+    {
+      code: 'output-folder-link',
+      message: `${path} is a symbolic link to ${target}, which kvarbook did not make; it writes nothing through it`,
+      hint: 'remove the link; kvarbook makes its own links inside the output folder only',
+    },
+  ]);
 }
 
 function notAFile(path: string): StudyFailure {
-  return new StudyFailure([{
-    code: 'output-folder-entry',
-    message: `${path} is not what kvarbook keeps there (a plain file, or a folder it made)`,
-    hint: 'move it out of the output folder',
-  }]);
+  return new StudyFailure([
+    {
+      code: 'output-folder-entry',
+      message: `${path} is not what kvarbook keeps there (a plain file, or a folder it made)`,
+      hint: 'move it out of the output folder',
+    },
+  ]);
 }
 
 function escapeRegExp(text: string): string {

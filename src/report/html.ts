@@ -29,7 +29,8 @@ export interface ReportParts {
  * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
  * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
  */
-export const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+export const CONTENT_SECURITY_POLICY =
+  "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
 
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
@@ -50,7 +51,11 @@ interface Slugs {
 }
 
 function slug(text: string, slugs: Slugs): string {
-  const base = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '') || 'section';
+  const base =
+    text
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, '-')
+      .replace(/^-|-$/g, '') || 'section';
   let candidate = base;
   for (let n = slugs.next.get(base) ?? 2; slugs.taken.has(candidate); n++) {
     candidate = `${base}-${n}`;
@@ -95,14 +100,18 @@ function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], 
 }
 
 function tableHtml(record: TableRecord, number: number): string {
-  const head = record.columns.map((column) => `<th>${escape(column.label)}${column.unit ? `<span class="unit">${escape(column.unit)}</span>` : ''}</th>`).join('');
+  const head = record.columns
+    .map((column) => `<th>${escape(column.label)}${column.unit ? `<span class="unit">${escape(column.unit)}</span>` : ''}</th>`)
+    .join('');
   const rows = record.rows
     .map(
       (row) =>
         `<tr>${row
           .map((cell, index) => {
             const column = record.columns[index]!;
-            return typeof cell === 'number' ? `<td class="num">${escape(formatNumber(cell, column.digits))}</td>` : `<td>${escape(formatQuantity(cell))}</td>`;
+            return typeof cell === 'number'
+              ? `<td class="num">${escape(formatNumber(cell, column.digits))}</td>`
+              : `<td>${escape(formatQuantity(cell))}</td>`;
           })
           .join('')}</tr>`,
     )
@@ -150,7 +159,9 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
       case 'chart': {
         counters.figure += 1;
         const svg = charts.get(record) ?? '';
-        parts.push(`<figure class="chart">${svg}<figcaption><span class="label">Figure ${counters.figure}</span> ${escape(record.caption)}</figcaption></figure>`);
+        parts.push(
+          `<figure class="chart">${svg}<figcaption><span class="label">Figure ${counters.figure}</span> ${escape(record.caption)}</figcaption></figure>`,
+        );
         break;
       }
       case 'text':
@@ -170,7 +181,10 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
 function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
   const blocksByFence = new Map(run.study.blocks.map((block) => [block.fenceLine, block]));
   const outcomes = new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome]));
-  const slugs: Slugs = { taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']), next: new Map() };
+  const slugs: Slugs = {
+    taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']),
+    next: new Map(),
+  };
   const renderer = md.renderer;
   const rules = { ...renderer.rules };
   renderer.rules[INLINE_VALUE_TOKEN] = (tokens: Token[], index: number) => {
@@ -214,8 +228,12 @@ function inputsTable(run: StudyRun): string {
   if (run.inputs.length === 0) return '<p class="quiet">This study declares no inputs.</p>';
   const rows = run.inputs
     .map((input) => {
-      const range = input.min || input.max ? `${input.min ? formatQuantity(formatStated(input.min.value, 15), input.min.unit) : '−∞'} to ${input.max ? formatQuantity(formatStated(input.max.value, 15), input.max.unit) : '+∞'}` : '';
-      const source = input.source === 'overridden' ? `<span class="overridden">overridden (study gives ${escape(input.givenText)})</span>` : 'as given';
+      const range =
+        input.min || input.max
+          ? `${input.min ? formatQuantity(formatStated(input.min.value, 15), input.min.unit) : '−∞'} to ${input.max ? formatQuantity(formatStated(input.max.value, 15), input.max.unit) : '+∞'}`
+          : '';
+      const source =
+        input.source === 'overridden' ? `<span class="overridden">overridden (study gives ${escape(input.givenText)})</span>` : 'as given';
       return `<tr><td><code>${escape(input.name)}</code></td><td class="num">${escape(formatQuantity(formatStated(input.value, 15), input.unit))}</td><td>${escape(range)}</td><td>${source}</td><td>${escape(input.description ?? '')}</td></tr>`;
     })
     .join('\n');
@@ -233,7 +251,8 @@ function logText(value: unknown, depth = 0): string {
   if (Array.isArray(value)) return `[${value.map((item) => logText(item, depth + 1)).join(', ')}]`;
   if (typeof value !== 'object') return String(value);
   const record = value as Record<string, unknown>;
-  if (typeof record.kind === 'string' && 'A' in record && 'B' in record) return `${record.kind}${typeof record.label === 'string' ? ` “${record.label}”` : ''}`;
+  if (typeof record.kind === 'string' && 'A' in record && 'B' in record)
+    return `${record.kind}${typeof record.label === 'string' ? ` “${record.label}”` : ''}`;
   if (typeof record.re === 'number' && typeof record.im === 'number' && Object.keys(record).length === 2) {
     return `${formatStated(record.re, 5)} ${record.im < 0 ? '−' : '+'} j${formatStated(Math.abs(record.im), 5)}`;
   }
@@ -266,7 +285,8 @@ function calculationLog(run: StudyRun): string {
       } else if (record.kind === 'solver-call') {
         what = `solver <code>${escape(record.functionName)}</code>`;
         // Solver functions take one options object; show it, not a one-element argument list.
-        const args = Array.isArray(record.argumentsSummary) && record.argumentsSummary.length === 1 ? record.argumentsSummary[0] : record.argumentsSummary;
+        const args =
+          Array.isArray(record.argumentsSummary) && record.argumentsSummary.length === 1 ? record.argumentsSummary[0] : record.argumentsSummary;
         detail = `<div class="io"><span class="label">in</span> ${escape(compactLogText(args))}</div><div class="io"><span class="label">out</span> ${escape(compactLogText(record.returnedSummary))}</div>`;
       } else continue;
       step += 1;
@@ -308,7 +328,9 @@ export function hiddenCodeText(run: StudyRun): string {
 function titleBlock(run: StudyRun, failed: number, total: number): string {
   const { meta } = run.study;
   const person = (p: { name: string; licence?: string; jurisdiction?: string } | undefined) =>
-    p ? `${escape(p.name)}${p.licence ? `, licence ${escape(p.licence)}` : ''}${p.jurisdiction ? ` (${escape(p.jurisdiction)})` : ''}` : 'not yet named';
+    p
+      ? `${escape(p.name)}${p.licence ? `, licence ${escape(p.licence)}` : ''}${p.jurisdiction ? ` (${escape(p.jurisdiction)})` : ''}`
+      : 'not yet named';
   const overridden = run.inputs.filter((input) => input.source === 'overridden');
   const status = criteriaStatus(failed, total);
   return `<header class="title-block">
@@ -334,7 +356,9 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
   const headings: { level: number; id: string; text: string }[] = [];
   const body = bodyHtml(run, charts, counters, headings);
   const contents = [
-    ...headings.filter((heading) => heading.level <= 2).map((heading) => `<li class="level-${heading.level}"><a href="#${heading.id}">${escape(heading.text)}</a></li>`),
+    ...headings
+      .filter((heading) => heading.level <= 2)
+      .map((heading) => `<li class="level-${heading.level}"><a href="#${heading.id}">${escape(heading.text)}</a></li>`),
     '<li class="level-1"><a href="#criteria">Design criteria</a></li>',
     '<li class="level-1"><a href="#cautions">Cautions</a></li>',
     '<li class="level-1"><a href="#inputs">Appendix A. Inputs</a></li>',
@@ -342,7 +366,9 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
     '<li class="level-1"><a href="#provenance">Appendix C. Provenance</a></li>',
   ].join('\n');
   const cautions = cautionsOf(run)
-    .map((caution) => `<li class="${caution.standing ? 'standing' : 'study'}">${escape(caution.text)}${caution.at ? ` ${where(caution.at)}` : ''}</li>`)
+    .map(
+      (caution) => `<li class="${caution.standing ? 'standing' : 'study'}">${escape(caution.text)}${caution.at ? ` ${where(caution.at)}` : ''}</li>`,
+    )
     .join('\n');
   const { meta } = run.study;
   const head = `<!DOCTYPE html>
@@ -411,4 +437,5 @@ export function assembleReport(parts: ReportParts, sealSection: string): string 
   return `${parts.head}${SEAL_SLOT_START}${sealSection}${SEAL_SLOT_END}${parts.body}`;
 }
 
-export const UNSEALED_NOTICE = '<section class="seal unsealed"><p><strong>Not sealed.</strong> This report has not been sealed by a licensed engineer; it is a working draft.</p></section>';
+export const UNSEALED_NOTICE =
+  '<section class="seal unsealed"><p><strong>Not sealed.</strong> This report has not been sealed by a licensed engineer; it is a working draft.</p></section>';

@@ -17,7 +17,9 @@ export interface StudyRun {
 type Located<T> = T & { at?: SourceLocation };
 
 export function recordsOf<K extends LocatedRecord['kind']>(run: StudyRun, kind: K): Located<Extract<LocatedRecord, { kind: K }>>[] {
-  return run.outcome.blocks.flatMap((block) => block.records.filter((record): record is Located<Extract<LocatedRecord, { kind: K }>> => record.kind === kind));
+  return run.outcome.blocks.flatMap((block) =>
+    block.records.filter((record): record is Located<Extract<LocatedRecord, { kind: K }>> => record.kind === kind),
+  );
 }
 
 export interface CautionEntry {
@@ -27,7 +29,11 @@ export interface CautionEntry {
 }
 
 export function cautionsOf(run: StudyRun): CautionEntry[] {
-  const fromStudy = recordsOf(run, 'caution').map((record: Located<CautionRecord>) => ({ text: record.text, standing: false, ...(record.at ? { at: record.at } : {}) }));
+  const fromStudy = recordsOf(run, 'caution').map((record: Located<CautionRecord>) => ({
+    text: record.text,
+    standing: false,
+    ...(record.at ? { at: record.at } : {}),
+  }));
   return [...STANDING_CAUTIONS.map((caution) => ({ text: caution.text, standing: true })), ...fromStudy];
 }
 

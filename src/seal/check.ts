@@ -77,7 +77,18 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
   const reading = readSealedHtml(request.html);
   if (!reading.ok) {
     steps.push({ name: 'seal', passed: false, detail: reading.problem });
-    return { verdict: 'failed', steps, signer: null, envelope: null, checks: [], comparison: null, study: null, blocks: null, bodyDifference: null, rerun: null };
+    return {
+      verdict: 'failed',
+      steps,
+      signer: null,
+      envelope: null,
+      checks: [],
+      comparison: null,
+      study: null,
+      blocks: null,
+      bodyDifference: null,
+      rerun: null,
+    };
   }
   const { parts } = reading.contents;
 
@@ -134,8 +145,15 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
   let rerun: RunProduct | null = null;
   if (manifest && request.source !== undefined && sourceMatches) {
     try {
-      rerun = await request.rerun({ source: request.source, studyFile: manifest.studyFile, overrides: overridesOf(manifest), environment: sealedEnvironment(manifest) });
-      comparison = compareResults(sealedFigures(manifest), rerunFigures(rerun.results), { defaultRelativeTolerance: request.defaultRelativeTolerance });
+      rerun = await request.rerun({
+        source: request.source,
+        studyFile: manifest.studyFile,
+        overrides: overridesOf(manifest),
+        environment: sealedEnvironment(manifest),
+      });
+      comparison = compareResults(sealedFigures(manifest), rerunFigures(rerun.results), {
+        defaultRelativeTolerance: request.defaultRelativeTolerance,
+      });
       const problems = comparison.mismatches.length + comparison.missing.length + comparison.extra.length;
       steps.push({
         name: 're-run',
@@ -180,7 +198,12 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
     steps.push({
       name: 'counter-signatures',
       passed: verified.every((result) => result.ok),
-      detail: verified.map((result) => `${result.signer ? describeSigner(result.signer) : 'unknown checker'}: ${result.ok ? 'valid' : result.problems.join('; ') || 'not trusted'}`).join('; '),
+      detail: verified
+        .map(
+          (result) =>
+            `${result.signer ? describeSigner(result.signer) : 'unknown checker'}: ${result.ok ? 'valid' : result.problems.join('; ') || 'not trusted'}`,
+        )
+        .join('; '),
     });
   }
 
@@ -210,7 +233,8 @@ function verdictOf(steps: readonly CheckStep[]): 'verified' | 'failed' {
 
 function engineerStep(signer: PublicIdentity | null, engineer: Person | undefined): CheckStep {
   if (signer === null) return { name: 'engineer', passed: false, detail: 'not compared: the seal names no readable signer' };
-  if (engineer === undefined) return { name: 'engineer', passed: false, detail: 'not compared: the study did not re-run, so the engineer it names is not known' };
+  if (engineer === undefined)
+    return { name: 'engineer', passed: false, detail: 'not compared: the study did not re-run, so the engineer it names is not known' };
   const named = `${engineer.name}, licence ${engineer.licence ?? '(none given)'} (${engineer.jurisdiction ?? 'no jurisdiction given'})`;
   const same = signer.name === engineer.name && signer.licence === engineer.licence && signer.jurisdiction === engineer.jurisdiction;
   return same

@@ -28,7 +28,10 @@ const checkContentFields = {
 };
 
 /** A record may not say "verified" over a failed step, whether signing or verifying. */
-function verdictMatchesSteps(content: { verdict: 'verified' | 'failed'; steps: { name: string; passed: boolean }[] }, context: z.RefinementCtx): void {
+function verdictMatchesSteps(
+  content: { verdict: 'verified' | 'failed'; steps: { name: string; passed: boolean }[] },
+  context: z.RefinementCtx,
+): void {
   const failedStep = content.steps.find((step) => !step.passed);
   if (content.verdict === 'verified' && failedStep !== undefined) {
     context.addIssue({ code: 'custom', path: ['verdict'], message: `cannot be "verified" while step "${failedStep.name}" failed` });

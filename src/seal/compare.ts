@@ -52,11 +52,7 @@ export interface ResultComparison {
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-9;
 export const DEFAULT_ABSOLUTE_TOLERANCE_NEAR_ZERO = 1e-12;
 
-export function compareResults(
-  sealed: readonly SealedResult[],
-  rerun: readonly RerunResult[],
-  options: CompareOptions = {},
-): ResultComparison {
+export function compareResults(sealed: readonly SealedResult[], rerun: readonly RerunResult[], options: CompareOptions = {}): ResultComparison {
   const defaultTolerance = checkedTolerance(options.defaultRelativeTolerance ?? DEFAULT_RELATIVE_TOLERANCE, 'defaultRelativeTolerance');
   const absoluteFloor = checkedTolerance(options.absoluteToleranceNearZero ?? DEFAULT_ABSOLUTE_TOLERANCE_NEAR_ZERO, 'absoluteToleranceNearZero');
   const duplicated = new Set<string>();

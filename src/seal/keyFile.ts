@@ -79,7 +79,16 @@ export class KeyFileCostRefused extends Error {
 function deriveKey(passphrase: string, salt: Buffer, cost: ScryptCost): Buffer {
   const memoryBytes = 128 * cost.N * cost.r;
   const powerOfTwo = Number.isInteger(Math.log2(cost.N));
-  if (!powerOfTwo || cost.N < 2 || cost.N > MAX_SCRYPT.N || cost.r < 1 || cost.r > MAX_SCRYPT.r || cost.p < 1 || cost.p > MAX_SCRYPT.p || memoryBytes > MAX_SCRYPT.memoryBytes) {
+  if (
+    !powerOfTwo ||
+    cost.N < 2 ||
+    cost.N > MAX_SCRYPT.N ||
+    cost.r < 1 ||
+    cost.r > MAX_SCRYPT.r ||
+    cost.p < 1 ||
+    cost.p > MAX_SCRYPT.p ||
+    memoryBytes > MAX_SCRYPT.memoryBytes
+  ) {
     throw new KeyFileCostRefused(cost);
   }
   return scryptSync(passphrase.normalize('NFC'), salt, AES_KEY_BYTES, { ...cost, maxmem: 2 * memoryBytes });

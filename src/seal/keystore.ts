@@ -1,9 +1,30 @@
 // The signer's key folder on disk: writing keys without ever overwriting one, and finding them again.
 import { randomUUID, type KeyObject } from 'node:crypto';
-import { chmodSync, closeSync, existsSync, fsyncSync, linkSync, mkdirSync, openSync, readdirSync, readFileSync, renameSync, unlinkSync, writeSync } from 'node:fs';
+import {
+  chmodSync,
+  closeSync,
+  existsSync,
+  fsyncSync,
+  linkSync,
+  mkdirSync,
+  openSync,
+  readdirSync,
+  readFileSync,
+  renameSync,
+  unlinkSync,
+  writeSync,
+} from 'node:fs';
 import { join } from 'node:path';
 import { SealError } from './errors.ts';
-import { checkIdentity, FINGERPRINT_PATTERN, keyBelongsTo, shortFingerprint, unlockSigningKey, type NewSigningKey, type PublicIdentity } from './keys.ts';
+import {
+  checkIdentity,
+  FINGERPRINT_PATTERN,
+  keyBelongsTo,
+  shortFingerprint,
+  unlockSigningKey,
+  type NewSigningKey,
+  type PublicIdentity,
+} from './keys.ts';
 import { describeSigner } from './trust.ts';
 
 const KEY_SUFFIX = '.key.pem';
@@ -69,9 +90,7 @@ export function listKeys(dir: string): StoredKey[] {
 /** By full fingerprint or by its 16-digit short form (as in the file names). */
 export function loadKeyByFingerprint(dir: string, fingerprint: string): StoredKey {
   const wanted = fingerprint.trim().toLowerCase();
-  const found = listKeys(dir).find(
-    (stored) => stored.identity.fingerprint === wanted || shortFingerprint(stored.identity.fingerprint) === wanted,
-  );
+  const found = listKeys(dir).find((stored) => stored.identity.fingerprint === wanted || shortFingerprint(stored.identity.fingerprint) === wanted);
   if (found !== undefined) return found;
   throw new SealError({
     code: 'key-not-found',

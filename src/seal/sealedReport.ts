@@ -108,7 +108,8 @@ export function readSealedHtml(html: string): SealedHtmlReading {
   }
   const slot = html.slice(start + SEAL_SLOT_START.length, end);
   const sealTexts = jsonScriptTexts(slot, SEAL_SCRIPT_OPEN);
-  if (sealTexts.length !== 1) return { ok: false, problem: sealTexts.length === 0 ? 'the report is not sealed (no seal data in it)' : 'the report holds more than one seal' };
+  if (sealTexts.length !== 1)
+    return { ok: false, problem: sealTexts.length === 0 ? 'the report is not sealed (no seal data in it)' : 'the report holds more than one seal' };
   const parse = (text: string): unknown => JSON.parse(text);
   try {
     return {

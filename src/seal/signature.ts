@@ -12,15 +12,10 @@ const ED25519_SIGNATURE_BYTES = 64;
  * Only the one base64 spelling of 64 bytes is accepted: a decoder ignores the unused low bits of
  * the last character, so without this a changed character could leave the signature "valid".
  */
-export const signatureBase64Schema = z
-  .string()
-  .refine(
-    (text) => {
-      const bytes = Buffer.from(text, 'base64');
-      return bytes.length === ED25519_SIGNATURE_BYTES && bytes.toString('base64') === text;
-    },
-    `must be the standard base64 spelling of a ${ED25519_SIGNATURE_BYTES}-byte Ed25519 signature`,
-  );
+export const signatureBase64Schema = z.string().refine((text) => {
+  const bytes = Buffer.from(text, 'base64');
+  return bytes.length === ED25519_SIGNATURE_BYTES && bytes.toString('base64') === text;
+}, `must be the standard base64 spelling of a ${ED25519_SIGNATURE_BYTES}-byte Ed25519 signature`);
 
 /** Signs the canonical JSON of `payload`, after making sure the key really is the identity's. */
 export function signCanonical(payload: unknown, privateKey: KeyObject, identity: PublicIdentity): string {
@@ -73,22 +68,17 @@ export function checkSignedParts(parts: SignedParts, trusted: readonly PublicIde
   if (canonicalJson(parts.signedSigner) !== canonicalJson(parts.outerSigner)) {
     problems.push(`${parts.where}.signer: differs from the signer inside the signed part`);
   }
-  const signatureValid = verify(
-    null,
-    canonicalBytes(parts.signedPart),
-    identityCheck.publicKey,
-    Buffer.from(parts.signatureBase64, 'base64'),
-  );
+  const signatureValid = verify(null, canonicalBytes(parts.signedPart), identityCheck.publicKey, Buffer.from(parts.signatureBase64, 'base64'));
   if (!signatureValid) {
-    problems.push(`${parts.where}.signatureBase64: does not verify with the key of ${describeSigner(signer)}; the signed content was changed after signing or signed by another key`);
+    problems.push(
+      `${parts.where}.signatureBase64: does not verify with the key of ${describeSigner(signer)}; the signed content was changed after signing or signed by another key`,
+    );
   }
   const trustedEntry = findTrusted(signer, trusted);
   if (trustedEntry === undefined) {
     problems.push(`${parts.where}.signer: ${describeSigner(signer)} (${signer.fingerprint}) is not on the trust list`);
   } else if (!sameDetails(trustedEntry, signer)) {
-    problems.push(
-      `${parts.where}.signer: the key is trusted as ${describeSigner(trustedEntry)}, but the document names ${describeSigner(signer)}`,
-    );
+    problems.push(`${parts.where}.signer: the key is trusted as ${describeSigner(trustedEntry)}, but the document names ${describeSigner(signer)}`);
   }
   return { signatureValid, trusted: trustedEntry !== undefined, signer, problems };
 }

@@ -56,7 +56,9 @@ function readIdentityFile(file: string, identities: PublicIdentity[]): string[] 
   }
   return sameDetails(earlier, checked.identity)
     ? []
-    : [`identity: the key ${checked.identity.fingerprint} is already trusted under different details (${describeSigner(earlier)}); this file was ignored`];
+    : [
+        `identity: the key ${checked.identity.fingerprint} is already trusted under different details (${describeSigner(earlier)}); this file was ignored`,
+      ];
 }
 
 /** On the list by fingerprint and by the very same public key bytes (PEM line breaks do not matter). */

@@ -1,7 +1,25 @@
 // Operating cases of a corridor: a case's loading and switching state, solved by Newton-Raphson into per-bus, per-section and per-unit figures.
 import { Complex, angleDegOf, toPlain } from './complex.ts';
-import { readCorridor, systemImpedanceOhm, type Corridor, type CorridorInput, type CorridorSystem, type SeriesSegment, type ShuntUnit, type Svc } from './corridor.ts';
-import { addSection, admittanceMatrix, newNetwork, newtonPowerFlow, sectionPieces, svcInjectionPu, type NetworkBuilder, type NodeSpec } from './corridorNetwork.ts';
+import {
+  readCorridor,
+  systemImpedanceOhm,
+  type Corridor,
+  type CorridorInput,
+  type CorridorSystem,
+  type SeriesSegment,
+  type ShuntUnit,
+  type Svc,
+} from './corridor.ts';
+import {
+  addSection,
+  admittanceMatrix,
+  newNetwork,
+  newtonPowerFlow,
+  sectionPieces,
+  svcInjectionPu,
+  type NetworkBuilder,
+  type NodeSpec,
+} from './corridorNetwork.ts';
 import { seriesCapacitor } from './elements.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV, lineModel } from './lineModels.ts';
@@ -224,7 +242,9 @@ function nameList(path: string, value: unknown, corridor: Corridor, allowed: (ki
     names.map((name, index) => {
       const unit = typeof name === 'string' ? corridor.unitsByName.get(name) : undefined;
       if (!unit || !allowed(kindOfUnit(unit))) {
-        const known = [...corridor.unitsByName.values()].filter((candidate) => allowed(kindOfUnit(candidate))).map((candidate) => `'${candidate.name}'`);
+        const known = [...corridor.unitsByName.values()]
+          .filter((candidate) => allowed(kindOfUnit(candidate)))
+          .map((candidate) => `'${candidate.name}'`);
         throw new SolverDomainError({
           code: 'OUT_OF_RANGE',
           quantity: `${path}[${index}]`,
@@ -246,12 +266,29 @@ function kindOfUnit(unit: ReturnType<Corridor['unitsByName']['get']>): string {
   return 'load';
 }
 
-function readSystemState(path: string, value: unknown, system: CorridorSystem, nominalVoltageKv: number): { system: CorridorSystem; connected: boolean } {
+function readSystemState(
+  path: string,
+  value: unknown,
+  system: CorridorSystem,
+  nominalVoltageKv: number,
+): { system: CorridorSystem; connected: boolean } {
   if (value === undefined) return { system, connected: true };
   const record = requireObject(path, value, 'Pass { shortCircuitMva?, open? }.');
-  const shortCircuitMva = optionalNumber(`${path}.shortCircuitMva`, record.shortCircuitMva, system.shortCircuitMva, { min: 0, max: 1e6, minInclusive: false, unit: 'MVA' }, 'The system strength in this case.');
+  const shortCircuitMva = optionalNumber(
+    `${path}.shortCircuitMva`,
+    record.shortCircuitMva,
+    system.shortCircuitMva,
+    { min: 0, max: 1e6, minInclusive: false, unit: 'MVA' },
+    'The system strength in this case.',
+  );
   if (record.open !== undefined && typeof record.open !== 'boolean') {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: `${path}.open`, value: String(record.open), allowedRange: 'true or false', hint: 'Whether this system is disconnected in the case.' });
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: `${path}.open`,
+      value: String(record.open),
+      allowedRange: 'true or false',
+      hint: 'Whether this system is disconnected in the case.',
+    });
   }
   return {
     system: { ...system, shortCircuitMva, impedanceOhm: systemImpedanceOhm(nominalVoltageKv, shortCircuitMva, system.xOverR) },
@@ -271,12 +308,24 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   const inserted = nameList(`${path}.inserted`, record.inserted, corridor, (kind) => kind === 'segment', 'a series segment');
   for (const name of unitsIn) {
     if (unitsOut.has(name)) {
-      throw new SolverDomainError({ code: 'INCONSISTENT_QUANTITIES', quantity: `${path}.unitsIn`, value: name, allowedRange: 'names not also in unitsOut', hint: 'A unit is either in or out in one case.' });
+      throw new SolverDomainError({
+        code: 'INCONSISTENT_QUANTITIES',
+        quantity: `${path}.unitsIn`,
+        value: name,
+        allowedRange: 'names not also in unitsOut',
+        hint: 'A unit is either in or out in one case.',
+      });
     }
   }
   for (const name of inserted) {
     if (bypassed.has(name) || unitsOut.has(name)) {
-      throw new SolverDomainError({ code: 'INCONSISTENT_QUANTITIES', quantity: `${path}.inserted`, value: name, allowedRange: 'names not also bypassed', hint: 'A segment is either inserted or bypassed in one case.' });
+      throw new SolverDomainError({
+        code: 'INCONSISTENT_QUANTITIES',
+        quantity: `${path}.inserted`,
+        value: name,
+        allowedRange: 'names not also bypassed',
+        hint: 'A segment is either inserted or bypassed in one case.',
+      });
     }
   }
   const sectionNames = corridor.sections.map((section) => section.name);
@@ -304,7 +353,13 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   let generator: EnergisingGenerator | null = null;
   const requireConnected = (end: 'sending' | 'receiving', why: string) => {
     if (!systems[end].connected) {
-      throw new SolverDomainError({ code: 'INCONSISTENT_QUANTITIES', quantity: `${path}.${end}System.open`, value: 'true', allowedRange: 'false for this loading', hint: why });
+      throw new SolverDomainError({
+        code: 'INCONSISTENT_QUANTITIES',
+        quantity: `${path}.${end}System.open`,
+        value: 'true',
+        allowedRange: 'false for this loading',
+        hint: why,
+      });
     }
   };
   if (loading === 'receiving-load') {
@@ -312,17 +367,37 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
     requireConnected('sending', 'A receiving-end load is fed from the sending system.');
     systems.receiving = { ...systems.receiving, connected: false };
   } else if (loading === 'transfer') {
-    transferMw = requireNumber(`${path}.loading.pMw`, loadingRecord.pMw, { min: -1e5, max: 1e5, unit: 'MW' }, 'Active power the receiving system absorbs (negative for a reverse transfer).');
+    transferMw = requireNumber(
+      `${path}.loading.pMw`,
+      loadingRecord.pMw,
+      { min: -1e5, max: 1e5, unit: 'MW' },
+      'Active power the receiving system absorbs (negative for a reverse transfer).',
+    );
     requireConnected('sending', 'A transfer runs between both systems.');
     requireConnected('receiving', 'A transfer runs between both systems.');
   } else {
-    closedEnd = requireChoice(`${path}.loading.closedEnd`, loadingRecord.closedEnd, ['sending', 'receiving'] as const, 'The end whose breaker is closed; the other end is open.');
+    closedEnd = requireChoice(
+      `${path}.loading.closedEnd`,
+      loadingRecord.closedEnd,
+      ['sending', 'receiving'] as const,
+      'The end whose breaker is closed; the other end is open.',
+    );
     if (loadingRecord.generator !== undefined) {
       const generatorHint = 'A generator is { ratedMva, shortCircuitRatio } (SCR = 1 / unsaturated x_d on the machine rating; typically 0.4 to 1.2).';
       const machine = requireObject(`${path}.loading.generator`, loadingRecord.generator, generatorHint);
       generator = {
-        ratedMva: requireNumber(`${path}.loading.generator.ratedMva`, machine.ratedMva, { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' }, generatorHint),
-        shortCircuitRatio: requireNumber(`${path}.loading.generator.shortCircuitRatio`, machine.shortCircuitRatio, { min: 0, max: 10, minInclusive: false }, generatorHint),
+        ratedMva: requireNumber(
+          `${path}.loading.generator.ratedMva`,
+          machine.ratedMva,
+          { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' },
+          generatorHint,
+        ),
+        shortCircuitRatio: requireNumber(
+          `${path}.loading.generator.shortCircuitRatio`,
+          machine.shortCircuitRatio,
+          { min: 0, max: 10, minInclusive: false },
+          generatorHint,
+        ),
       };
     }
     requireConnected(closedEnd, 'The line is energised from the system at its closed end.');
@@ -330,7 +405,9 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
     systems[openEnd] = { ...systems[openEnd], connected: false };
   }
   const controlHint = 'A voltage control is { bus, voltageKv, qMinMvar?, qMaxMvar? }.';
-  const voltageControl = (record.voltageControl === undefined ? [] : requireArray(`${path}.voltageControl`, record.voltageControl, 0, controlHint)).map((item, index) => {
+  const voltageControl = (
+    record.voltageControl === undefined ? [] : requireArray(`${path}.voltageControl`, record.voltageControl, 0, controlHint)
+  ).map((item, index) => {
     const itemPath = `${path}.voltageControl[${index}]`;
     const control = requireObject(itemPath, item, controlHint);
     const busIndex = corridor.buses.findIndex((bus) => bus.name === control.bus);
@@ -343,8 +420,14 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
         hint: 'Name a bus of the corridor.',
       });
     }
-    const qMinMvar = control.qMinMvar === undefined ? null : requireNumber(`${itemPath}.qMinMvar`, control.qMinMvar, { min: -1e5, max: 1e5, unit: 'Mvar' }, controlHint);
-    const qMaxMvar = control.qMaxMvar === undefined ? null : requireNumber(`${itemPath}.qMaxMvar`, control.qMaxMvar, { min: qMinMvar ?? -1e5, max: 1e5, unit: 'Mvar' }, controlHint);
+    const qMinMvar =
+      control.qMinMvar === undefined
+        ? null
+        : requireNumber(`${itemPath}.qMinMvar`, control.qMinMvar, { min: -1e5, max: 1e5, unit: 'Mvar' }, controlHint);
+    const qMaxMvar =
+      control.qMaxMvar === undefined
+        ? null
+        : requireNumber(`${itemPath}.qMaxMvar`, control.qMaxMvar, { min: qMinMvar ?? -1e5, max: 1e5, unit: 'Mvar' }, controlHint);
     return { busIndex, voltageKv: requireNumber(`${itemPath}.voltageKv`, control.voltageKv, VOLTAGE_RANGE_KV, controlHint), qMinMvar, qMaxMvar };
   });
   return {
@@ -402,7 +485,9 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
   const network = newNetwork(corridor);
   const baseV = kvToV(corridor.nominalVoltageKv);
   const sectionBranches = corridor.sections.map((section) =>
-    (state.circuitsInService[section.index] as number) === 0 ? [] : addSection(network, section, state.circuitsInService[section.index] as number, sectionPieces(section, state.bypassed)),
+    (state.circuitsInService[section.index] as number) === 0
+      ? []
+      : addSection(network, section, state.circuitsInService[section.index] as number, sectionPieces(section, state.bypassed)),
   );
   const specs: NodeSpec[] = [];
   const pq = (): NodeSpec => ({ type: 'pq', voltagePu: 1, pPu: 0, qPu: 0, svcSlope: null });
@@ -429,7 +514,10 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
       sourceSpecs.push({ node, spec: { type, voltagePu: system.emfKv / corridor.nominalVoltageKv, pPu, qPu: 0, svcSlope: null } });
     } else {
       systemNodes[end] = bus;
-      sourceSpecs.push({ node: bus, spec: { type, voltagePu: (system.heldVoltageKv as number) / corridor.nominalVoltageKv, pPu, qPu: 0, svcSlope: null } });
+      sourceSpecs.push({
+        node: bus,
+        spec: { type, voltagePu: (system.heldVoltageKv as number) / corridor.nominalVoltageKv, pPu, qPu: 0, svcSlope: null },
+      });
     }
   });
   for (let node = 0; node < network.nodeCount; node += 1) specs.push(pq());
@@ -464,7 +552,11 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
         spec.type = 'pv';
         spec.voltagePu = svc.referenceVoltageKv / corridor.nominalVoltageKv;
       } else {
-        spec.svcSlope = { basePu: svc.slopeBaseMva / BASE_MVA, referencePu: svc.referenceVoltageKv / corridor.nominalVoltageKv, slope: svc.slopePercent / 100 };
+        spec.svcSlope = {
+          basePu: svc.slopeBaseMva / BASE_MVA,
+          referencePu: svc.referenceVoltageKv / corridor.nominalVoltageKv,
+          slope: svc.slopePercent / 100,
+        };
       }
     }
   }
@@ -509,9 +601,17 @@ export interface CaseSolveSettings {
 
 function readSettings(record: Record<string, unknown>): CaseSolveSettings {
   return {
-    toleranceMva: optionalNumber('toleranceMva', record.toleranceMva, 1e-6, { min: 0, max: 1, minInclusive: false, unit: 'MVA' }, 'Power mismatch accepted at convergence.'),
+    toleranceMva: optionalNumber(
+      'toleranceMva',
+      record.toleranceMva,
+      1e-6,
+      { min: 0, max: 1, minInclusive: false, unit: 'MVA' },
+      'Power mismatch accepted at convergence.',
+    ),
     maxIterations: optionalNumber('maxIterations', record.maxIterations, 30, { min: 1, max: 200 }, 'Newton iteration limit.'),
-    profilePointCount: Math.round(optionalNumber('profilePointCount', record.profilePointCount, 101, { min: 2, max: 100_000 }, 'Points along each section.')),
+    profilePointCount: Math.round(
+      optionalNumber('profilePointCount', record.profilePointCount, 101, { min: 2, max: 100_000 }, 'Points along each section.'),
+    ),
   };
 }
 
@@ -525,10 +625,14 @@ function chainNoseNote(corridor: Corridor, state: CaseState, built: BuiltCase): 
   const receivingBus = endBusIndex(corridor, 'receiving');
   const load = state.receivingLoad;
   if (load === null || built.slackEnd !== 'sending') return '';
-  const plain = built.specs.every((spec, node) => spec.type === 'slack' || (spec.type === 'pq' && spec.svcSlope === null && (node === receivingBus || (spec.pPu === 0 && spec.qPu === 0))));
+  const plain = built.specs.every(
+    (spec, node) =>
+      spec.type === 'slack' || (spec.type === 'pq' && spec.svcSlope === null && (node === receivingBus || (spec.pPu === 0 && spec.qPu === 0))),
+  );
   if (!plain) return '';
   let chain = IDENTITY_ABCD;
-  for (const branch of built.network.branches.filter((candidate) => candidate.tag.kind === 'system')) chain = multiplyAbcd(chain, seriesImpedanceAbcd(new Complex(1, 0).div(branch.seriesS)));
+  for (const branch of built.network.branches.filter((candidate) => candidate.tag.kind === 'system'))
+    chain = multiplyAbcd(chain, seriesImpedanceAbcd(new Complex(1, 0).div(branch.seriesS)));
   chain = multiplyAbcd(chain, shuntAdmittanceAbcd(built.network.shuntS[0]!));
   for (const indices of built.sectionBranches) {
     for (const index of indices) {
@@ -613,7 +717,12 @@ function assembleSolution(
   const branchEnds = (index: number) => {
     const branch = built.network.branches[index]!;
     const through = branch.seriesS.mul(phase[branch.from]!.sub(phase[branch.to]!));
-    return { branch, fromCurrent: through.add(branch.shuntFromS.mul(phase[branch.from]!)), toCurrent: through.sub(branch.shuntToS.mul(phase[branch.to]!)), through };
+    return {
+      branch,
+      fromCurrent: through.add(branch.shuntFromS.mul(phase[branch.from]!)),
+      toCurrent: through.sub(branch.shuntToS.mul(phase[branch.to]!)),
+      through,
+    };
   };
   const buses: BusResult[] = corridor.buses.map((bus) => ({
     name: bus.name,
@@ -647,10 +756,23 @@ function assembleSolution(
     };
     if (circuits === 0) {
       const open: SectionEndFlow = { pMw: 0, qMvar: 0, currentA: 0 };
-      const fromPoint = { positionKm: 0, corridorKm: corridorStartKm, voltageKv: kvAt(section.fromIndex), voltagePu: kvAt(section.fromIndex) / nominalKv };
+      const fromPoint = {
+        positionKm: 0,
+        corridorKm: corridorStartKm,
+        voltageKv: kvAt(section.fromIndex),
+        voltagePu: kvAt(section.fromIndex) / nominalKv,
+      };
       return {
-        name: section.name, from, to, circuitsInService: 0, fromEnd: open, toEnd: open, lossesMw: 0, reactiveBalanceMvar: 0,
-        maximum: fromPoint, minimum: fromPoint,
+        name: section.name,
+        from,
+        to,
+        circuitsInService: 0,
+        fromEnd: open,
+        toEnd: open,
+        lossesMw: 0,
+        reactiveBalanceMvar: 0,
+        maximum: fromPoint,
+        minimum: fromPoint,
         seriesCapacitors: section.seriesCapacitors.map((segment) => segmentResult(segment, 0, state.bypassed(segment))),
       };
     }
@@ -694,7 +816,9 @@ function assembleSolution(
       reactiveBalanceMvar: sendingPower.im - receivingPower.im,
       maximum: extreme(profile.maximum),
       minimum: extreme(profile.minimum),
-      seriesCapacitors: section.seriesCapacitors.map((segment) => segmentResult(segment, segmentCurrents.get(segment.name) ?? 0, state.bypassed(segment))),
+      seriesCapacitors: section.seriesCapacitors.map((segment) =>
+        segmentResult(segment, segmentCurrents.get(segment.name) ?? 0, state.bypassed(segment)),
+      ),
     };
   });
   const shuntUnits: ShuntUnitResult[] = corridor.buses.flatMap((bus) =>
@@ -727,22 +851,25 @@ function assembleSolution(
     const inService = svcState.has(svc.name);
     const voltageKv = kvAt(bus.index);
     const outputMvar = inService ? svcOutputMvar(svc) : 0;
-    return [{
-      name: svc.name,
-      bus: bus.name,
-      inService,
-      voltageKv,
-      outputMvar,
-      susceptanceS: outputMvar / (voltageKv * voltageKv),
-      currentA: Math.abs(outputMvar * 1e3) / (SQRT3 * voltageKv),
-      atLimit: inService ? (svcState.get(svc.name) ?? null) : null,
-    }];
+    return [
+      {
+        name: svc.name,
+        bus: bus.name,
+        inService,
+        voltageKv,
+        outputMvar,
+        susceptanceS: outputMvar / (voltageKv * voltageKv),
+        currentA: Math.abs(outputMvar * 1e3) / (SQRT3 * voltageKv),
+        atLimit: inService ? (svcState.get(svc.name) ?? null) : null,
+      },
+    ];
   });
   const systemResult = (end: 'sending' | 'receiving'): SystemResult => {
     const { system, connected } = state.systems[end];
     const node = built.systemNodes[end];
     const bus = endBusIndex(corridor, end);
-    if (!connected || node === null) return { connected: false, shortCircuitMva: system.shortCircuitMva, pMw: 0, qMvar: 0, emfKv: null, emfAngleDeg: null };
+    if (!connected || node === null)
+      return { connected: false, shortCircuitMva: system.shortCircuitMva, pMw: 0, qMvar: 0, emfKv: null, emfAngleDeg: null };
     let power: Complex;
     if (node === bus) {
       power = new Complex(injections[bus]!.re - built.specs[bus]!.pPu, heldQPu(bus)).mul(BASE_MVA);
@@ -763,7 +890,16 @@ function assembleSolution(
   const voltageControlled: VoltageControlResult[] = [
     ...(['sending', 'receiving'] as const).flatMap((end) =>
       systems[end].connected
-        ? [{ source: `${end} system`, kind: 'system' as const, bus: buses[endBusIndex(corridor, end)]!.name, voltageKv: buses[endBusIndex(corridor, end)]!.voltageKv, qMvar: systems[end].qMvar, pMw: systems[end].pMw }]
+        ? [
+            {
+              source: `${end} system`,
+              kind: 'system' as const,
+              bus: buses[endBusIndex(corridor, end)]!.name,
+              voltageKv: buses[endBusIndex(corridor, end)]!.voltageKv,
+              qMvar: systems[end].qMvar,
+              pMw: systems[end].pMw,
+            },
+          ]
         : [],
     ),
     ...state.voltageControl.map((control) => ({
@@ -774,7 +910,9 @@ function assembleSolution(
       qMvar: heldQPu(control.busIndex) * BASE_MVA,
       pMw: 0,
     })),
-    ...svcs.filter((svc) => svc.inService).map((svc) => ({ source: svc.name, kind: 'svc' as const, bus: svc.bus, voltageKv: svc.voltageKv, qMvar: svc.outputMvar, pMw: 0 })),
+    ...svcs
+      .filter((svc) => svc.inService)
+      .map((svc) => ({ source: svc.name, kind: 'svc' as const, bus: svc.bus, voltageKv: svc.voltageKv, qMvar: svc.outputMvar, pMw: 0 })),
   ];
   let energisation: EnergisationResult | null = null;
   if (state.closedEnd !== null) {
@@ -793,7 +931,12 @@ function assembleSolution(
       energisingBusVoltageBeforeKv: beforeKv,
       energisingBusVoltageKv: energisingBus.voltageKv,
       energisingBusRisePercent: ((energisingBus.voltageKv - beforeKv) / beforeKv) * 100,
-      highestAlongLine: { section: highest.name, corridorKm: highest.maximum.corridorKm, voltageKv: highest.maximum.voltageKv, voltagePu: highest.maximum.voltagePu },
+      highestAlongLine: {
+        section: highest.name,
+        corridorKm: highest.maximum.corridorKm,
+        voltageKv: highest.maximum.voltageKv,
+        voltagePu: highest.maximum.voltagePu,
+      },
       selfExcitation: null,
     };
     if (state.generator) {
@@ -827,7 +970,13 @@ function assembleSolution(
 const OPTIONS_HINT = 'Pass { corridor, case, toleranceMva?, maxIterations?, profilePointCount? }.';
 
 /** Solves one operating case of a corridor. Bad data throws; a case without an operating point is returned as { solved: false, reason }. */
-export function solveCorridorCase(options: { corridor: CorridorInput; case: CorridorCaseInput; toleranceMva?: number; maxIterations?: number; profilePointCount?: number }): CorridorCaseSolution {
+export function solveCorridorCase(options: {
+  corridor: CorridorInput;
+  case: CorridorCaseInput;
+  toleranceMva?: number;
+  maxIterations?: number;
+  profilePointCount?: number;
+}): CorridorCaseSolution {
   const record = requireObject('options', options, OPTIONS_HINT);
   const corridor = readCorridor(record.corridor);
   const state = readCase(corridor, record.case, 'case');
@@ -842,7 +991,13 @@ export interface CorridorCaseTable {
 }
 
 /** Solves every case of a corridor, in order; unsolved cases stay in the table with their reason. */
-export function solveCorridorCases(options: { corridor: CorridorInput; cases: CorridorCaseInput[]; toleranceMva?: number; maxIterations?: number; profilePointCount?: number }): CorridorCaseTable {
+export function solveCorridorCases(options: {
+  corridor: CorridorInput;
+  cases: CorridorCaseInput[];
+  toleranceMva?: number;
+  maxIterations?: number;
+  profilePointCount?: number;
+}): CorridorCaseTable {
   const record = requireObject('options', options, 'Pass { corridor, cases: [...], toleranceMva?, maxIterations?, profilePointCount? }.');
   const corridor = readCorridor(record.corridor);
   const settings = readSettings(record);

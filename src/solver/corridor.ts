@@ -225,8 +225,18 @@ function optionalList(path: string, value: unknown, hint: string): unknown[] {
 function readSystem(path: string, value: unknown, nominalVoltageKv: number, fallbackLabel: string): CorridorSystem {
   const hint = 'A system is { shortCircuitMva, xOverR, emfKv } or { shortCircuitMva, xOverR, heldVoltageKv }.';
   const record = requireObject(path, value, hint);
-  const shortCircuitMva = requireNumber(`${path}.shortCircuitMva`, record.shortCircuitMva, { min: 0, max: 1e6, minInclusive: false, unit: 'MVA' }, hint);
-  const xOverR = requireNumber(`${path}.xOverR`, record.xOverR, { min: 0, max: 1e4, minInclusive: false }, 'Ratio of Thevenin reactance to resistance; transmission systems are typically 10 to 30.');
+  const shortCircuitMva = requireNumber(
+    `${path}.shortCircuitMva`,
+    record.shortCircuitMva,
+    { min: 0, max: 1e6, minInclusive: false, unit: 'MVA' },
+    hint,
+  );
+  const xOverR = requireNumber(
+    `${path}.xOverR`,
+    record.xOverR,
+    { min: 0, max: 1e4, minInclusive: false },
+    'Ratio of Thevenin reactance to resistance; transmission systems are typically 10 to 30.',
+  );
   if ((record.emfKv === undefined) === (record.heldVoltageKv === undefined)) {
     throw new SolverDomainError({
       code: record.emfKv === undefined ? 'MISSING_QUANTITY' : 'INCONSISTENT_QUANTITIES',
@@ -237,7 +247,8 @@ function readSystem(path: string, value: unknown, nominalVoltageKv: number, fall
     });
   }
   const emfKv = record.emfKv === undefined ? null : requireNumber(`${path}.emfKv`, record.emfKv, VOLTAGE_RANGE_KV, hint);
-  const heldVoltageKv = record.heldVoltageKv === undefined ? null : requireNumber(`${path}.heldVoltageKv`, record.heldVoltageKv, VOLTAGE_RANGE_KV, hint);
+  const heldVoltageKv =
+    record.heldVoltageKv === undefined ? null : requireNumber(`${path}.heldVoltageKv`, record.heldVoltageKv, VOLTAGE_RANGE_KV, hint);
   return {
     label: typeof record.label === 'string' && record.label !== '' ? record.label : fallbackLabel,
     shortCircuitMva,
@@ -274,20 +285,38 @@ function readShuntUnit(path: string, value: unknown, kind: ShuntUnit['kind'], bu
 }
 
 function readSvc(path: string, value: unknown, busIndex: number): Svc {
-  const hint = 'An SVC is { name, capacitiveMvar, inductiveMvar, slopePercent, slopeBaseMva?, referenceVoltageKv, inService? }, ratings at nominal voltage.';
+  const hint =
+    'An SVC is { name, capacitiveMvar, inductiveMvar, slopePercent, slopeBaseMva?, referenceVoltageKv, inService? }, ratings at nominal voltage.';
   const record = requireObject(path, value, hint);
   const capacitiveMvar = requireNumber(`${path}.capacitiveMvar`, record.capacitiveMvar, { min: 0, max: 1e5, unit: 'Mvar' }, hint);
   const inductiveMvar = requireNumber(`${path}.inductiveMvar`, record.inductiveMvar, { min: 0, max: 1e5, unit: 'Mvar' }, hint);
   if (capacitiveMvar + inductiveMvar <= 0) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: `${path}.capacitiveMvar + inductiveMvar`, value: 0, allowedRange: '(0, ∞) Mvar', hint: 'An SVC needs a range.' });
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: `${path}.capacitiveMvar + inductiveMvar`,
+      value: 0,
+      allowedRange: '(0, ∞) Mvar',
+      hint: 'An SVC needs a range.',
+    });
   }
   return {
     name: requireName(`${path}.name`, record.name, hint),
     busIndex,
     capacitiveMvar,
     inductiveMvar,
-    slopePercent: requireNumber(`${path}.slopePercent`, record.slopePercent, { min: 0, max: 20, unit: '%' }, 'SVC slope, commonly 1 to 5 % (common practice).'),
-    slopeBaseMva: optionalNumber(`${path}.slopeBaseMva`, record.slopeBaseMva, Math.max(capacitiveMvar, inductiveMvar), { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' }, hint),
+    slopePercent: requireNumber(
+      `${path}.slopePercent`,
+      record.slopePercent,
+      { min: 0, max: 20, unit: '%' },
+      'SVC slope, commonly 1 to 5 % (common practice).',
+    ),
+    slopeBaseMva: optionalNumber(
+      `${path}.slopeBaseMva`,
+      record.slopeBaseMva,
+      Math.max(capacitiveMvar, inductiveMvar),
+      { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' },
+      hint,
+    ),
     referenceVoltageKv: requireNumber(`${path}.referenceVoltageKv`, record.referenceVoltageKv, VOLTAGE_RANGE_KV, hint),
     inService: optionalBoolean(`${path}.inService`, record.inService, true, hint),
     path,
@@ -308,7 +337,8 @@ function readLoadUnit(path: string, value: unknown, busIndex: number): FixedLoad
 }
 
 function readSegment(path: string, value: unknown, sectionIndex: number): SeriesSegment {
-  const hint = "A series segment is { name, position: 'sending-end' | 'mid-section' | 'receiving-end', reactanceOhm, ratedCurrentA, emergencyCurrentA?, bypassed? }.";
+  const hint =
+    "A series segment is { name, position: 'sending-end' | 'mid-section' | 'receiving-end', reactanceOhm, ratedCurrentA, emergencyCurrentA?, bypassed? }.";
   const record = requireObject(path, value, hint);
   const ratedCurrentA = requireNumber(`${path}.ratedCurrentA`, record.ratedCurrentA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, hint);
   return {
@@ -320,7 +350,12 @@ function readSegment(path: string, value: unknown, sectionIndex: number): Series
     emergencyCurrentA:
       record.emergencyCurrentA === undefined
         ? null
-        : requireNumber(`${path}.emergencyCurrentA`, record.emergencyCurrentA, { min: ratedCurrentA, max: 1e5, unit: 'A' }, 'The emergency rating is at least the rated current.'),
+        : requireNumber(
+            `${path}.emergencyCurrentA`,
+            record.emergencyCurrentA,
+            { min: ratedCurrentA, max: 1e5, unit: 'A' },
+            'The emergency rating is at least the rated current.',
+          ),
     bypassed: optionalBoolean(`${path}.bypassed`, record.bypassed, false, hint),
     path,
   };
@@ -330,7 +365,12 @@ function readSegment(path: string, value: unknown, sectionIndex: number): Series
 export function readCorridor(value: unknown, path = 'corridor'): Corridor {
   const record = requireObject(path, value, CORRIDOR_HINT);
   const frequencyHz = requireNumber(`${path}.frequencyHz`, record.frequencyHz, FREQUENCY_RANGE_HZ, 'Power frequency, usually 50 or 60 Hz.');
-  const nominalVoltageKv = requireNumber(`${path}.nominalVoltageKv`, record.nominalVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line nominal voltage of the corridor.');
+  const nominalVoltageKv = requireNumber(
+    `${path}.nominalVoltageKv`,
+    record.nominalVoltageKv,
+    VOLTAGE_RANGE_KV,
+    'Line-to-line nominal voltage of the corridor.',
+  );
   const sendingSystem = readSystem(`${path}.sendingSystem`, record.sendingSystem, nominalVoltageKv, 'sending system');
   const receivingSystem = readSystem(`${path}.receivingSystem`, record.receivingSystem, nominalVoltageKv, 'receiving system');
   const unitsByName: Corridor['unitsByName'] = new Map();
@@ -349,36 +389,41 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
     return item;
   };
   const busNames = new Map<string, number>();
-  const buses = requireArray(`${path}.buses`, record.buses, 2, 'List the buses from the sending end to the receiving end: at least the two end buses.').map(
-    (busValue, index): CorridorBus => {
-      const busPath = `${path}.buses[${index}]`;
-      const bus = requireObject(busPath, busValue, CORRIDOR_HINT);
-      const name = requireName(`${busPath}.name`, bus.name, 'Every bus needs a name; cases and results refer to it.');
-      if (busNames.has(name)) {
-        throw new SolverDomainError({
-          code: 'INCONSISTENT_QUANTITIES',
-          quantity: `${busPath}.name`,
-          value: name,
-          allowedRange: `a name not used by another bus (already buses[${busNames.get(name)}])`,
-          hint: 'Bus names must be unique.',
-        });
-      }
-      busNames.set(name, index);
-      const unitHint = 'A list of units.';
-      return {
-        name,
-        index,
-        reactors: optionalList(`${busPath}.reactors`, bus.reactors, unitHint).map((unit, unitIndex) =>
-          register(readShuntUnit(`${busPath}.reactors[${unitIndex}]`, unit, 'shunt-reactor', index)),
-        ),
-        capacitors: optionalList(`${busPath}.capacitors`, bus.capacitors, unitHint).map((unit, unitIndex) =>
-          register(readShuntUnit(`${busPath}.capacitors[${unitIndex}]`, unit, 'shunt-capacitor', index)),
-        ),
-        svc: bus.svc === undefined ? null : register(readSvc(`${busPath}.svc`, bus.svc, index)),
-        loads: optionalList(`${busPath}.loads`, bus.loads, unitHint).map((unit, unitIndex) => register(readLoadUnit(`${busPath}.loads[${unitIndex}]`, unit, index))),
-      };
-    },
-  );
+  const buses = requireArray(
+    `${path}.buses`,
+    record.buses,
+    2,
+    'List the buses from the sending end to the receiving end: at least the two end buses.',
+  ).map((busValue, index): CorridorBus => {
+    const busPath = `${path}.buses[${index}]`;
+    const bus = requireObject(busPath, busValue, CORRIDOR_HINT);
+    const name = requireName(`${busPath}.name`, bus.name, 'Every bus needs a name; cases and results refer to it.');
+    if (busNames.has(name)) {
+      throw new SolverDomainError({
+        code: 'INCONSISTENT_QUANTITIES',
+        quantity: `${busPath}.name`,
+        value: name,
+        allowedRange: `a name not used by another bus (already buses[${busNames.get(name)}])`,
+        hint: 'Bus names must be unique.',
+      });
+    }
+    busNames.set(name, index);
+    const unitHint = 'A list of units.';
+    return {
+      name,
+      index,
+      reactors: optionalList(`${busPath}.reactors`, bus.reactors, unitHint).map((unit, unitIndex) =>
+        register(readShuntUnit(`${busPath}.reactors[${unitIndex}]`, unit, 'shunt-reactor', index)),
+      ),
+      capacitors: optionalList(`${busPath}.capacitors`, bus.capacitors, unitHint).map((unit, unitIndex) =>
+        register(readShuntUnit(`${busPath}.capacitors[${unitIndex}]`, unit, 'shunt-capacitor', index)),
+      ),
+      svc: bus.svc === undefined ? null : register(readSvc(`${busPath}.svc`, bus.svc, index)),
+      loads: optionalList(`${busPath}.loads`, bus.loads, unitHint).map((unit, unitIndex) =>
+        register(readLoadUnit(`${busPath}.loads[${unitIndex}]`, unit, index)),
+      ),
+    };
+  });
   const sectionsInput = requireArray(`${path}.sections`, record.sections, 1, 'One section between each pair of consecutive buses.');
   if (sectionsInput.length !== buses.length - 1) {
     throw new SolverDomainError({
@@ -406,9 +451,18 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
       }
     });
     const constants = atPath(sectionPath, () => resolveLineConstants({ ...section, frequencyHz }));
-    const circuits = section.circuits === undefined ? 1 : requireNumber(`${sectionPath}.circuits`, section.circuits, { min: 1, max: 2 }, 'One or two identical circuits.');
+    const circuits =
+      section.circuits === undefined
+        ? 1
+        : requireNumber(`${sectionPath}.circuits`, section.circuits, { min: 1, max: 2 }, 'One or two identical circuits.');
     if (circuits !== 1 && circuits !== 2) {
-      throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: `${sectionPath}.circuits`, value: circuits, allowedRange: '1 or 2', hint: 'One or two identical circuits.' });
+      throw new SolverDomainError({
+        code: 'OUT_OF_RANGE',
+        quantity: `${sectionPath}.circuits`,
+        value: circuits,
+        allowedRange: '1 or 2',
+        hint: 'One or two identical circuits.',
+      });
     }
     return {
       name: section.name === undefined ? `${expected[0]} - ${expected[1]}` : requireName(`${sectionPath}.name`, section.name, 'A section name.'),
@@ -418,8 +472,8 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
       lengthKm: requireNumber(`${sectionPath}.lengthKm`, section.lengthKm, LENGTH_RANGE_KM, 'Route length of this section.'),
       perKm: constants.perKm,
       circuits,
-      seriesCapacitors: optionalList(`${sectionPath}.seriesCapacitors`, section.seriesCapacitors, 'A list of segments.').map((segment, segmentIndex) =>
-        register(readSegment(`${sectionPath}.seriesCapacitors[${segmentIndex}]`, segment, index)),
+      seriesCapacitors: optionalList(`${sectionPath}.seriesCapacitors`, section.seriesCapacitors, 'A list of segments.').map(
+        (segment, segmentIndex) => register(readSegment(`${sectionPath}.seriesCapacitors[${segmentIndex}]`, segment, index)),
       ),
     };
   });

@@ -11,7 +11,10 @@ export interface NetworkBranch {
   shuntFromS: Complex;
   shuntToS: Complex;
   /** What the branch is, so results can be read back. */
-  tag: { kind: 'line'; sectionIndex: number; lengthKm: number; offsetKm: number } | { kind: 'segment'; segment: SeriesSegment } | { kind: 'system'; end: 'sending' | 'receiving' };
+  tag:
+    | { kind: 'line'; sectionIndex: number; lengthKm: number; offsetKm: number }
+    | { kind: 'segment'; segment: SeriesSegment }
+    | { kind: 'system'; end: 'sending' | 'receiving' };
 }
 
 /** One piece of a section's chain from its from-bus: a run of line or an inserted series segment. */
@@ -20,7 +23,9 @@ export type SectionPiece = { kind: 'line'; lengthKm: number; offsetKm: number } 
 /** The chain of a section in one switching state: segments at the sending end, the line (split around mid-section segments), segments at the receiving end. */
 export function sectionPieces(section: CorridorSection, bypassed: (segment: SeriesSegment) => boolean): SectionPiece[] {
   const inserted = (position: SeriesSegment['position']) =>
-    section.seriesCapacitors.filter((segment) => segment.position === position && !bypassed(segment)).map((segment): SectionPiece => ({ kind: 'segment', segment }));
+    section.seriesCapacitors
+      .filter((segment) => segment.position === position && !bypassed(segment))
+      .map((segment): SectionPiece => ({ kind: 'segment', segment }));
   const middle = inserted('mid-section');
   const half = section.lengthKm / 2;
   const line: SectionPiece[] =

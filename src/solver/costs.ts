@@ -57,7 +57,7 @@ export interface CapitalisedCostComparison {
 }
 
 const HINT =
-  "Pass { discountRatePercent, lifeYears, energyCostPerMwh, demandCostPerKwYear?, costUnit?, options: [{ label, equipmentCost, lineLosses: { resistanceOhmPerPhase, loadDuration: [{ hours, currentA }] } | { peakLossMw, lossFactor } | { peakLossMw, loadFactor, lossFactorCoefficient? }, equipmentLosses?: [{ label, lossMw, hoursPerYear? }], annualMaintenanceCost? }] }.";
+  'Pass { discountRatePercent, lifeYears, energyCostPerMwh, demandCostPerKwYear?, costUnit?, options: [{ label, equipmentCost, lineLosses: { resistanceOhmPerPhase, loadDuration: [{ hours, currentA }] } | { peakLossMw, lossFactor } | { peakLossMw, loadFactor, lossFactorCoefficient? }, equipmentLosses?: [{ label, lossMw, hoursPerYear? }], annualMaintenanceCost? }] }.';
 
 /** Discounted sum of a constant end-of-year amount: sum over t = 1..n of 1 / (1 + r)^t (the annuity formula is checked against it). */
 export function presentValueOfConstantAnnual(annualAmount: number, discountRate: number, lifeYears: number): number {
@@ -69,7 +69,12 @@ export function presentValueOfConstantAnnual(annualAmount: number, discountRate:
 function readLineLosses(where: string, value: unknown): { energyMwh: number; peakMw: number; lossFactor: number } {
   const record = requireObject(where, value, HINT);
   if (record.loadDuration !== undefined) {
-    const resistanceOhm = requireNumber(`${where}.resistanceOhmPerPhase`, record.resistanceOhmPerPhase, { min: 0, max: 1e4, unit: 'ohm' }, 'Series resistance of one phase of the line (at operating temperature).');
+    const resistanceOhm = requireNumber(
+      `${where}.resistanceOhmPerPhase`,
+      record.resistanceOhmPerPhase,
+      { min: 0, max: 1e4, unit: 'ohm' },
+      'Series resistance of one phase of the line (at operating temperature).',
+    );
     const blocks = requireArray(`${where}.loadDuration`, record.loadDuration, 1, HINT).map((block, index) => {
       const entry = requireObject(`${where}.loadDuration[${index}]`, block, HINT);
       return {
@@ -79,7 +84,13 @@ function readLineLosses(where: string, value: unknown): { energyMwh: number; pea
     });
     const totalHours = blocks.reduce((sum, block) => sum + block.hours, 0);
     if (totalHours > HOURS_PER_YEAR + 1e-9) {
-      throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: `${where}.loadDuration (total hours)`, value: totalHours, allowedRange: `[0, ${HOURS_PER_YEAR}] h`, hint: 'The load-duration blocks of one year add up to at most 8760 h.' });
+      throw new SolverDomainError({
+        code: 'OUT_OF_RANGE',
+        quantity: `${where}.loadDuration (total hours)`,
+        value: totalHours,
+        allowedRange: `[0, ${HOURS_PER_YEAR}] h`,
+        hint: 'The load-duration blocks of one year add up to at most 8760 h.',
+      });
     }
     const lossMw = (currentA: number) => (3 * currentA ** 2 * resistanceOhm) / 1e6;
     const energyMwh = blocks.reduce((sum, block) => sum + block.hours * lossMw(block.currentA), 0);
@@ -93,7 +104,13 @@ function readLineLosses(where: string, value: unknown): { energyMwh: number; pea
   } else {
     const loadFactor = requireNumber(`${where}.loadFactor`, record.loadFactor, { min: 0, max: 1 }, 'Give lossFactor, or loadFactor to estimate it.');
     // Buller and Woodrow's estimate, loss factor = k LF + (1 - k) LF^2, with k = 0.3 by common practice (from memory).
-    const k = optionalNumber(`${where}.lossFactorCoefficient`, record.lossFactorCoefficient, 0.3, { min: 0, max: 1 }, 'k in k LF + (1 - k) LF^2; 0.3 in common practice, 0.15 to 0.3 by system.');
+    const k = optionalNumber(
+      `${where}.lossFactorCoefficient`,
+      record.lossFactorCoefficient,
+      0.3,
+      { min: 0, max: 1 },
+      'k in k LF + (1 - k) LF^2; 0.3 in common practice, 0.15 to 0.3 by system.',
+    );
     lossFactor = k * loadFactor + (1 - k) * loadFactor ** 2;
   }
   return { energyMwh: peakMw * lossFactor * HOURS_PER_YEAR, peakMw, lossFactor };
@@ -106,10 +123,21 @@ function readLineLosses(where: string, value: unknown): { energyMwh: number; pea
  */
 export function capitalisedCostComparison(options: CapitalisedCostOptions): CapitalisedCostComparison {
   const record = requireObject('options', options, HINT);
-  const discountRatePercent = requireNumber('discountRatePercent', record.discountRatePercent, { min: 0, max: 50, unit: '%' }, 'A real discount rate, as prices are held constant.');
+  const discountRatePercent = requireNumber(
+    'discountRatePercent',
+    record.discountRatePercent,
+    { min: 0, max: 50, unit: '%' },
+    'A real discount rate, as prices are held constant.',
+  );
   const lifeYears = requireNumber('lifeYears', record.lifeYears, { min: 1, max: 100, unit: 'years' }, HINT);
   if (!Number.isInteger(lifeYears)) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: 'lifeYears', value: lifeYears, allowedRange: 'a whole number of years in [1, 100]', hint: HINT });
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: 'lifeYears',
+      value: lifeYears,
+      allowedRange: 'a whole number of years in [1, 100]',
+      hint: HINT,
+    });
   }
   const energyCostPerMwh = requireNumber('energyCostPerMwh', record.energyCostPerMwh, { min: 0, max: 1e5 }, HINT);
   const demandCostPerKwYear = optionalNumber('demandCostPerKwYear', record.demandCostPerKwYear, 0, { min: 0, max: 1e5 }, HINT);
@@ -128,8 +156,19 @@ export function capitalisedCostComparison(options: CapitalisedCostOptions): Capi
         ? 0
         : requireArray(`${where}.equipmentLosses`, option.equipmentLosses, 0, HINT).reduce<number>((sum, loss, lossIndex) => {
             const entry = requireObject(`${where}.equipmentLosses[${lossIndex}]`, loss, HINT);
-            const lossMw = requireNumber(`${where}.equipmentLosses[${lossIndex}].lossMw`, entry.lossMw, { min: 0, max: 1e3, unit: 'MW' }, 'Losses of the reactor, capacitor or compensator in service (e.g. 0.2 % of rated Mvar for a shunt reactor).');
-            const hours = optionalNumber(`${where}.equipmentLosses[${lossIndex}].hoursPerYear`, entry.hoursPerYear, HOURS_PER_YEAR, { min: 0, max: HOURS_PER_YEAR, unit: 'h' }, HINT);
+            const lossMw = requireNumber(
+              `${where}.equipmentLosses[${lossIndex}].lossMw`,
+              entry.lossMw,
+              { min: 0, max: 1e3, unit: 'MW' },
+              'Losses of the reactor, capacitor or compensator in service (e.g. 0.2 % of rated Mvar for a shunt reactor).',
+            );
+            const hours = optionalNumber(
+              `${where}.equipmentLosses[${lossIndex}].hoursPerYear`,
+              entry.hoursPerYear,
+              HOURS_PER_YEAR,
+              { min: 0, max: HOURS_PER_YEAR, unit: 'h' },
+              HINT,
+            );
             return sum + lossMw * hours;
           }, 0);
     const annualMaintenanceCost = optionalNumber(`${where}.annualMaintenanceCost`, option.annualMaintenanceCost, 0, { min: 0, max: 1e12 }, HINT);
@@ -153,7 +192,11 @@ export function capitalisedCostComparison(options: CapitalisedCostOptions): Capi
   });
   const cheapestCost = Math.min(...costed.map((option) => option.capitalisedCost));
   const order = [...costed].sort((first, second) => first.capitalisedCost - second.capitalisedCost);
-  const ranked = costed.map((option) => ({ ...option, differenceToCheapest: option.capitalisedCost - cheapestCost, rank: order.indexOf(option) + 1 }));
+  const ranked = costed.map((option) => ({
+    ...option,
+    differenceToCheapest: option.capitalisedCost - cheapestCost,
+    rank: order.indexOf(option) + 1,
+  }));
   return assertFiniteResult('capitalisedCostComparison', {
     costUnit,
     discountRatePercent,

@@ -2,7 +2,18 @@
 import { Complex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { beyondNoseError, deliveredReactiveVa, lineModelsOf, noseLoadMultiple, readLoad, readNetwork, receivingVoltageRoots, requireSeriesPath, twoEndPhasors, type LoadInput } from './solutions.ts';
+import {
+  beyondNoseError,
+  deliveredReactiveVa,
+  lineModelsOf,
+  noseLoadMultiple,
+  readLoad,
+  readNetwork,
+  receivingVoltageRoots,
+  requireSeriesPath,
+  twoEndPhasors,
+  type LoadInput,
+} from './solutions.ts';
 import { labelOf, type AbcdMatrix, type TwoPort } from './twoPort.ts';
 import { degToRad, kvToV, radToDeg } from './units.ts';
 
@@ -74,7 +85,7 @@ export function pvCurve(options: {
   const lowerBranch: PvPoint[] = [];
   for (let index = 0; index < pointCount; index += 1) {
     // The last sample stays a hair below the nose, where the two branches meet.
-    const pMw = (noseMultiple * index) / (pointCount - 1) * (index === pointCount - 1 ? 1 - 1e-12 : 1);
+    const pMw = ((noseMultiple * index) / (pointCount - 1)) * (index === pointCount - 1 ? 1 - 1e-12 : 1);
     const roots = voltagesAt(pMw);
     upperBranch.push({ pMw, qMvar: pMw * tangent, receivingVoltageKv: roots.upper / 1e3 });
     lowerBranch.unshift({ pMw, qMvar: pMw * tangent, receivingVoltageKv: roots.lower / 1e3 });
@@ -249,8 +260,14 @@ export function powerCircles(options: { network: TwoPort; sendingVoltageKv: numb
   const receivingV = kvToV(receivingVoltageKv);
   const bConjugate = abcd.B.conjugate();
   const radiusMva = (sendingV * receivingV) / abcd.B.abs() / 1e6;
-  const receivingCentre = abcd.A.conjugate().mul(-receivingV * receivingV).div(bConjugate).div(1e6);
-  const sendingCentre = abcd.D.conjugate().mul(sendingV * sendingV).div(bConjugate).div(1e6);
+  const receivingCentre = abcd.A.conjugate()
+    .mul(-receivingV * receivingV)
+    .div(bConjugate)
+    .div(1e6);
+  const sendingCentre = abcd.D.conjugate()
+    .mul(sendingV * sendingV)
+    .div(bConjugate)
+    .div(1e6);
   const circle = (centre: Complex) => ({ centreMw: centre.re, centreMvar: centre.im, radiusMva, maximumPMw: centre.re + radiusMva });
   return assertFiniteResult('powerCircles', {
     networkLabel: labelOf(network),
@@ -293,7 +310,13 @@ export function qvCurve(options: {
   const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const load = readLoad('load', record.load);
   const minimumVoltageKv = optionalNumber('minimumVoltageKv', record.minimumVoltageKv, 0.2 * sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const maximumVoltageKv = optionalNumber('maximumVoltageKv', record.maximumVoltageKv, 1.3 * sendingVoltageKv, { min: minimumVoltageKv, max: 2000, minInclusive: false, unit: 'kV' }, hint);
+  const maximumVoltageKv = optionalNumber(
+    'maximumVoltageKv',
+    record.maximumVoltageKv,
+    1.3 * sendingVoltageKv,
+    { min: minimumVoltageKv, max: 2000, minInclusive: false, unit: 'kV' },
+    hint,
+  );
   const pointCount = Math.round(optionalNumber('pointCount', record.pointCount, 101, POINT_COUNT_RANGE, 'Points on the curve.'));
   requireSeriesPath(abcd, network);
   const sendingLineV = kvToV(sendingVoltageKv);

@@ -206,7 +206,12 @@ export function sourceEquivalent(options: SourceEquivalentOptions): SourceEquiva
   const record = requireObject('options', options, hint);
   const end = requireChoice('end', record.end, ['sending', 'receiving'] as const, hint);
   const shortCircuitMva = requireNumber('shortCircuitMva', record.shortCircuitMva, { min: 0, max: 1e6, minInclusive: false, unit: 'MVA' }, hint);
-  const xOverR = requireNumber('xOverR', record.xOverR, { min: 0, max: 1e4, minInclusive: false }, 'Ratio of Thevenin reactance to resistance; transmission systems are typically 10 to 30.');
+  const xOverR = requireNumber(
+    'xOverR',
+    record.xOverR,
+    { min: 0, max: 1e4, minInclusive: false },
+    'Ratio of Thevenin reactance to resistance; transmission systems are typically 10 to 30.',
+  );
   const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, hint);
   const voltageV = kvToV(nominalVoltageKv);
   const magnitudeOhm = (voltageV * voltageV) / (shortCircuitMva * 1e6);
@@ -238,7 +243,11 @@ export function seriesImpedance(options: { resistanceOhm: number; reactanceOhm: 
 }
 
 /** Symmetrical pi from the total series impedance Z and total shunt admittance Y (Y/2 at each end): A = D = 1 + ZY/2, C = Y (1 + ZY/4). */
-export function symmetricalPi(options: { seriesImpedanceOhm: { re: number; im: number }; shuntAdmittanceS: { re: number; im: number }; label?: string }): LumpedTwoPort {
+export function symmetricalPi(options: {
+  seriesImpedanceOhm: { re: number; im: number };
+  shuntAdmittanceS: { re: number; im: number };
+  label?: string;
+}): LumpedTwoPort {
   const hint = 'Pass { seriesImpedanceOhm: { re, im }, shuntAdmittanceS: { re, im } (the total, split half to each end), label? }.';
   const record = requireObject('options', options, hint);
   const impedance = requireComplex('seriesImpedanceOhm', record.seriesImpedanceOhm, hint);
@@ -265,11 +274,19 @@ export function twoPortFromAbcd(options: {
   tolerance?: number;
   label?: string;
 }): LumpedTwoPort {
-  const hint = 'Pass { A, B, C, D } as { re, im } (B in ohm, C in S), tolerance? (AD - BC = 1 within it; 1e-6 by default, about 1e-3 for values rounded to 3-4 digits), label? }.';
+  const hint =
+    'Pass { A, B, C, D } as { re, im } (B in ohm, C in S), tolerance? (AD - BC = 1 within it; 1e-6 by default, about 1e-3 for values rounded to 3-4 digits), label? }.';
   const record = requireObject('options', options, hint);
-  const values = Object.fromEntries((['A', 'B', 'C', 'D'] as const).map((key) => [key, requireComplex(key, record[key], hint)])) as Record<'A' | 'B' | 'C' | 'D', Complex>;
+  const values = Object.fromEntries((['A', 'B', 'C', 'D'] as const).map((key) => [key, requireComplex(key, record[key], hint)])) as Record<
+    'A' | 'B' | 'C' | 'D',
+    Complex
+  >;
   const tolerance = requireNumber('tolerance', record.tolerance ?? 1e-6, { min: 0, max: 0.05, minInclusive: false }, hint);
-  const element = { kind: 'given-two-port' as const, label: labelFrom(record, 'given two-port'), ...abcdToPlain({ A: values.A, B: values.B, C: values.C, D: values.D }) };
+  const element = {
+    kind: 'given-two-port' as const,
+    label: labelFrom(record, 'given two-port'),
+    ...abcdToPlain({ A: values.A, B: values.B, C: values.C, D: values.D }),
+  };
   checkReciprocity({ network: element, tolerance });
   return assertFiniteResult('twoPortFromAbcd', element);
 }
@@ -277,7 +294,9 @@ export function twoPortFromAbcd(options: {
 function reversedElement(element: ElementTwoPort): ElementTwoPort {
   const { A, B, C, D } = abcdOf(element);
   const swapped = { ...element, ...abcdToPlain({ A: D, B, C, D: A }) };
-  return element.kind === 'source-equivalent' ? { ...swapped, end: element.end === 'sending' ? 'receiving' : 'sending' } as ElementTwoPort : (swapped as ElementTwoPort);
+  return element.kind === 'source-equivalent'
+    ? ({ ...swapped, end: element.end === 'sending' ? 'receiving' : 'sending' } as ElementTwoPort)
+    : (swapped as ElementTwoPort);
 }
 
 /** The same network energised from the other end: elements in reverse order, each with A and D swapped ([A B; C D] becomes [D B; C A]). */

@@ -114,13 +114,7 @@ export function requireNumber(quantity: string, value: unknown, range: NumericRa
 }
 
 /** Like requireNumber, but an absent value takes the documented default. */
-export function optionalNumber(
-  quantity: string,
-  value: unknown,
-  fallback: number,
-  range: NumericRange,
-  hint: string,
-): number {
+export function optionalNumber(quantity: string, value: unknown, fallback: number, range: NumericRange, hint: string): number {
   return value === undefined ? fallback : requireNumber(quantity, value, range, hint);
 }
 

@@ -107,7 +107,12 @@ function readElement(value: unknown, index: number, frequencyHz: number): ScanBr
       };
     }
     case 'series-capacitor': {
-      const reactanceOhm = requireNumber(`${where}.reactanceOhm`, record.reactanceOhm, OHM_RANGE, 'Capacitive reactance of the bank at power frequency, as a positive number.');
+      const reactanceOhm = requireNumber(
+        `${where}.reactanceOhm`,
+        record.reactanceOhm,
+        OHM_RANGE,
+        'Capacitive reactance of the bank at power frequency, as a positive number.',
+      );
       return {
         kind,
         abcdAt: (f) => seriesImpedanceAbcd(new Complex(0, -reactanceOhm / ratio(f))),
@@ -160,7 +165,12 @@ function readElement(value: unknown, index: number, frequencyHz: number): ScanBr
         kind,
         abcdAt: (f) => {
           const omega = angularFrequency(f);
-          return lineAbcd('distributed', new Complex(resistanceOhmPerM, omega * inductanceHPerM), new Complex(conductanceSPerM, omega * capacitanceFPerM), lengthKm * 1e3);
+          return lineAbcd(
+            'distributed',
+            new Complex(resistanceOhmPerM, omega * inductanceHPerM),
+            new Complex(conductanceSPerM, omega * capacitanceFPerM),
+            lengthKm * 1e3,
+          );
         },
         seriesInductiveOhmAtF0: constants.perKm.seriesReactanceOhmPerKm * lengthKm,
         seriesCapacitiveOhmAtF0: 0,
@@ -206,15 +216,38 @@ export function frequencyScan(options: FrequencyScanOptions): FrequencyScan {
   const record = requireObject('options', options, HINT);
   const frequencyHz = requireNumber('frequencyHz', record.frequencyHz, FREQUENCY_RANGE_HZ, HINT);
   const branches = requireArray('elements', record.elements, 1, HINT).map((element, index) => readElement(element, index, frequencyHz));
-  const startHz = optionalNumber('startHz', record.startHz, 1, { min: 0, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' }, HINT);
-  const stopHz = optionalNumber('stopHz', record.stopHz, 0.98 * frequencyHz, { min: startHz, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' }, 'The scan covers the subsynchronous range, below power frequency.');
-  const stepHz = optionalNumber('stepHz', record.stepHz, 0.05, { min: 1e-3, max: stopHz - startHz, unit: 'Hz' }, 'A step small enough that no two resonances fall between neighbouring points (0.05 Hz default).');
+  const startHz = optionalNumber(
+    'startHz',
+    record.startHz,
+    1,
+    { min: 0, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' },
+    HINT,
+  );
+  const stopHz = optionalNumber(
+    'stopHz',
+    record.stopHz,
+    0.98 * frequencyHz,
+    { min: startHz, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' },
+    'The scan covers the subsynchronous range, below power frequency.',
+  );
+  const stepHz = optionalNumber(
+    'stepHz',
+    record.stepHz,
+    0.05,
+    { min: 1e-3, max: stopHz - startHz, unit: 'Hz' },
+    'A step small enough that no two resonances fall between neighbouring points (0.05 Hz default).',
+  );
   const marginHz = optionalNumber('marginHz', record.marginHz, 1, { min: 0, max: frequencyHz, unit: 'Hz' }, HINT);
   const modesHz =
     record.torsionalModesHz === undefined
       ? []
       : requireArray('torsionalModesHz', record.torsionalModesHz, 0, HINT).map((mode, index) =>
-          requireNumber(`torsionalModesHz[${index}]`, mode, { min: 0, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' }, 'Torsional modes lie below power frequency.'),
+          requireNumber(
+            `torsionalModesHz[${index}]`,
+            mode,
+            { min: 0, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' },
+            'Torsional modes lie below power frequency.',
+          ),
         );
 
   const count = Math.floor((stopHz - startHz) / stepHz + 1e-9);
@@ -257,7 +290,13 @@ export function frequencyScan(options: FrequencyScanOptions): FrequencyScan {
   const totalCapacitiveOhm = branches.reduce((sum, branch) => sum + branch.seriesCapacitiveOhmAtF0, 0);
   const handCheck =
     totalCapacitiveOhm > 0 && totalCapacitiveOhm < totalInductiveOhm
-      ? ssrScreening({ frequencyHz, capacitorReactanceOhm: totalCapacitiveOhm, totalReactanceOhm: totalInductiveOhm, torsionalModesHz: modesHz, marginHz })
+      ? ssrScreening({
+          frequencyHz,
+          capacitorReactanceOhm: totalCapacitiveOhm,
+          totalReactanceOhm: totalInductiveOhm,
+          torsionalModesHz: modesHz,
+          marginHz,
+        })
       : null;
 
   const warnings = seriesResonances.flatMap((resonance) =>

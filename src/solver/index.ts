@@ -21,7 +21,17 @@ export type {
   SourceEquivalentTwoPort,
   TwoPort,
 } from './twoPort.ts';
-export { reverseTwoPort, seriesCapacitor, seriesImpedance, seriesReactor, shuntCapacitor, shuntReactor, sourceEquivalent, symmetricalPi, twoPortFromAbcd } from './elements.ts';
+export {
+  reverseTwoPort,
+  seriesCapacitor,
+  seriesImpedance,
+  seriesReactor,
+  shuntCapacitor,
+  shuntReactor,
+  sourceEquivalent,
+  symmetricalPi,
+  twoPortFromAbcd,
+} from './elements.ts';
 export type { SeriesCapacitorOptions, ShuntElementOptions, SourceEquivalentOptions } from './elements.ts';
 export { solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, solveTwoEndVoltages } from './solutions.ts';
 export type { EndQuantities, LoadInput, OperatingCase, OperatingPoint } from './solutions.ts';

@@ -53,15 +53,44 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
   const record = requireObject('options', options, HINT);
   const frequencyHz = requireNumber('frequencyHz', record.frequencyHz, FREQUENCY_RANGE_HZ, HINT);
   const conductor = requireObject('conductor', record.conductor, HINT);
-  const acResistanceOhmPerKm = requireNumber('conductor.acResistanceOhmPerKm', conductor.acResistanceOhmPerKm, { min: 0, max: 100, unit: 'ohm/km' }, HINT);
-  const outsideDiameterMm = requireNumber('conductor.outsideDiameterMm', conductor.outsideDiameterMm, { min: 0, max: 200, minInclusive: false, unit: 'mm' }, HINT);
-  const gmrMm = requireNumber('conductor.gmrMm', conductor.gmrMm, { min: 0, max: outsideDiameterMm / 2, minInclusive: false, unit: 'mm' }, 'The GMR of a conductor is smaller than its outside radius (about 0.78 r for a solid round conductor).');
+  const acResistanceOhmPerKm = requireNumber(
+    'conductor.acResistanceOhmPerKm',
+    conductor.acResistanceOhmPerKm,
+    { min: 0, max: 100, unit: 'ohm/km' },
+    HINT,
+  );
+  const outsideDiameterMm = requireNumber(
+    'conductor.outsideDiameterMm',
+    conductor.outsideDiameterMm,
+    { min: 0, max: 200, minInclusive: false, unit: 'mm' },
+    HINT,
+  );
+  const gmrMm = requireNumber(
+    'conductor.gmrMm',
+    conductor.gmrMm,
+    { min: 0, max: outsideDiameterMm / 2, minInclusive: false, unit: 'mm' },
+    'The GMR of a conductor is smaller than its outside radius (about 0.78 r for a solid round conductor).',
+  );
   const bundle = record.bundle === undefined ? null : requireObject('bundle', record.bundle, HINT);
   const count = bundle === null ? 1 : requireNumber('bundle.subConductorCount', bundle.subConductorCount, { min: 1, max: 16 }, HINT);
   if (!Number.isInteger(count)) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: 'bundle.subConductorCount', value: count, allowedRange: 'an integer in [1, 16]', hint: HINT });
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: 'bundle.subConductorCount',
+      value: count,
+      allowedRange: 'an integer in [1, 16]',
+      hint: HINT,
+    });
   }
-  const spacingM = bundle === null || count === 1 ? 0 : requireNumber('bundle.spacingM', bundle.spacingM, { min: outsideDiameterMm / 1e3, max: 5, unit: 'm' }, 'Spacing between adjacent sub-conductors, larger than their diameter.');
+  const spacingM =
+    bundle === null || count === 1
+      ? 0
+      : requireNumber(
+          'bundle.spacingM',
+          bundle.spacingM,
+          { min: outsideDiameterMm / 1e3, max: 5, unit: 'm' },
+          'Spacing between adjacent sub-conductors, larger than their diameter.',
+        );
   const positions = requireArray('phasePositionsM', record.phasePositionsM, 3, HINT).map((position, index) => {
     const point = requireObject(`phasePositionsM[${index}]`, position, HINT);
     return {
@@ -70,7 +99,13 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
     };
   });
   if (positions.length !== 3) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: 'phasePositionsM.length', value: positions.length, allowedRange: 'exactly 3', hint: HINT });
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: 'phasePositionsM.length',
+      value: positions.length,
+      allowedRange: 'exactly 3',
+      hint: HINT,
+    });
   }
   const [first, second, third] = positions as [{ x: number; y: number }, { x: number; y: number }, { x: number; y: number }];
   const distances = [
@@ -80,7 +115,8 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
   ];
   const gmdM = Math.cbrt(distances[0]! * distances[1]! * distances[2]!);
   const circumradiusM = count === 1 ? 0 : spacingM / (2 * Math.sin(Math.PI / count));
-  const bundleRadius = (subRadiusM: number) => (count === 1 ? subRadiusM : Math.pow(count * subRadiusM * Math.pow(circumradiusM, count - 1), 1 / count));
+  const bundleRadius = (subRadiusM: number) =>
+    count === 1 ? subRadiusM : Math.pow(count * subRadiusM * Math.pow(circumradiusM, count - 1), 1 / count);
   const bundleGmrM = bundleRadius(gmrMm / 1e3);
   const bundleCapacitanceRadiusM = bundleRadius(outsideDiameterMm / 2e3);
   if (!(gmdM > circumradiusM + outsideDiameterMm / 2e3) || !(gmdM > bundleCapacitanceRadiusM)) {

@@ -1,20 +1,7 @@
 // Line models from per-km constants: short, nominal pi and exact distributed two-ports, and the line's wave characteristics.
 import { Complex, toPlain, type ComplexValue } from './complex.ts';
-import {
-  SolverDomainError,
-  assertFiniteResult,
-  optionalNumber,
-  requireChoice,
-  requireNumber,
-  requireObject,
-} from './errors.ts';
-import {
-  abcdToPlain,
-  type AbcdMatrix,
-  type LineModelName,
-  type LineSectionTwoPort,
-  type PerKmConstants,
-} from './twoPort.ts';
+import { SolverDomainError, assertFiniteResult, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
+import { abcdToPlain, type AbcdMatrix, type LineModelName, type LineSectionTwoPort, type PerKmConstants } from './twoPort.ts';
 import { SPEED_OF_LIGHT_M_PER_S, angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
 
 /** Per-km line constants as a study gives them; reactance or inductance, susceptance or capacitance. */
@@ -88,7 +75,12 @@ export interface ResolvedLineConstants {
 export function resolveLineConstants(input: Record<string, unknown>): ResolvedLineConstants {
   const frequencyHz = requireNumber('frequencyHz', input.frequencyHz, FREQUENCY_RANGE_HZ, 'Power frequency, usually 50 or 60 Hz.');
   const omega = angularFrequency(frequencyHz);
-  const seriesResistanceOhmPerKm = requireNumber('seriesResistanceOhmPerKm', input.seriesResistanceOhmPerKm, { min: 0, max: 100, unit: 'ohm/km' }, PER_KM_HINT);
+  const seriesResistanceOhmPerKm = requireNumber(
+    'seriesResistanceOhmPerKm',
+    input.seriesResistanceOhmPerKm,
+    { min: 0, max: 100, unit: 'ohm/km' },
+    PER_KM_HINT,
+  );
   const seriesReactanceOhmPerKm = eitherOf(
     ['seriesReactanceOhmPerKm', 'seriesInductanceMhPerKm'],
     [input.seriesReactanceOhmPerKm, input.seriesInductanceMhPerKm],
@@ -103,7 +95,13 @@ export function resolveLineConstants(input: Record<string, unknown>): ResolvedLi
     { min: 0, max: 1000, unit: 'uS/km' },
     'nF/km',
   );
-  const shuntConductanceUsPerKm = optionalNumber('shuntConductanceUsPerKm', input.shuntConductanceUsPerKm, 0, { min: 0, max: 100, unit: 'uS/km' }, PER_KM_HINT);
+  const shuntConductanceUsPerKm = optionalNumber(
+    'shuntConductanceUsPerKm',
+    input.shuntConductanceUsPerKm,
+    0,
+    { min: 0, max: 100, unit: 'uS/km' },
+    PER_KM_HINT,
+  );
   const distributedShuntCompensationDegree = optionalNumber(
     'distributedShuntCompensationDegree',
     input.distributedShuntCompensationDegree,
@@ -272,7 +270,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
   const shuntTotal = y.mul(lengthM);
   const equivalentSeries = seriesTotal.mul(gammaLength.sinh().div(gammaLength));
   const equivalentShuntHalf = shuntTotal.div(2).mul(gammaLength.div(2).tanh().div(gammaLength.div(2)));
-  const velocityRatio = (angularFrequency(constants.frequencyHz) / (phaseRadPerKm / 1e3)) / SPEED_OF_LIGHT_M_PER_S;
+  const velocityRatio = angularFrequency(constants.frequencyHz) / (phaseRadPerKm / 1e3) / SPEED_OF_LIGHT_M_PER_S;
   return assertFiniteResult('lineCharacteristics', {
     model: 'distributed' as const,
     lengthKm,
@@ -285,7 +283,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
     surgeImpedanceMagnitudeOhm: surgeImpedance.abs(),
     losslessSurgeImpedanceOhm,
     wavelengthKm: (2 * Math.PI) / phaseRadPerKm,
-    propagationVelocityKmPerS: (angularFrequency(constants.frequencyHz) / phaseRadPerKm),
+    propagationVelocityKmPerS: angularFrequency(constants.frequencyHz) / phaseRadPerKm,
     velocityToLightRatio: velocityRatio,
     electricalLengthDeg: radToDeg(gammaLength.im),
     nominalVoltageKv,
@@ -301,7 +299,6 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
     warnings: lineDataWarnings(velocityRatio),
   });
 }
-
 
 export interface CompensatedLineCharacteristics {
   basis: 'lossless, uniformly distributed compensation';
@@ -330,8 +327,18 @@ export function compensatedLineCharacteristics(
   const lengthKm = requireNumber('lengthKm', record.lengthKm, LENGTH_RANGE_KM, 'Route length of the line.');
   const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line nominal voltage.');
   const degreeRange = { min: 0, max: 1, maxInclusive: false } as const;
-  const seriesCompensationDegree = requireNumber('seriesCompensationDegree', record.seriesCompensationDegree, degreeRange, 'Share of the series reactance cancelled by series capacitors, below 1.');
-  const shuntCompensationDegree = requireNumber('shuntCompensationDegree', record.shuntCompensationDegree, degreeRange, 'Share of the line charging cancelled by shunt reactors, below 1.');
+  const seriesCompensationDegree = requireNumber(
+    'seriesCompensationDegree',
+    record.seriesCompensationDegree,
+    degreeRange,
+    'Share of the series reactance cancelled by series capacitors, below 1.',
+  );
+  const shuntCompensationDegree = requireNumber(
+    'shuntCompensationDegree',
+    record.shuntCompensationDegree,
+    degreeRange,
+    'Share of the line charging cancelled by shunt reactors, below 1.',
+  );
   requirePositiveSusceptance('distributed', constants.perKm);
   const x = constants.perKm.seriesReactanceOhmPerKm;
   const b = constants.perKm.shuntSusceptanceUsPerKm * 1e-6;
@@ -348,6 +355,10 @@ export function compensatedLineCharacteristics(
     surgeImpedanceLoadingMw: (voltageV * voltageV) / (zc * impedanceFactor) / 1e6,
     electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm * lengthFactor),
     phaseConstantDegPerKm: radToDeg(betaRadPerKm * lengthFactor),
-    uncompensated: { surgeImpedanceOhm: zc, surgeImpedanceLoadingMw: (voltageV * voltageV) / zc / 1e6, electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm) },
+    uncompensated: {
+      surgeImpedanceOhm: zc,
+      surgeImpedanceLoadingMw: (voltageV * voltageV) / zc / 1e6,
+      electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm),
+    },
   });
 }

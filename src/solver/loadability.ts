@@ -91,23 +91,50 @@ export function lineLoadability(
   const record = requireObject('options', options, HINT);
   const constants = resolveLineConstants(record);
   const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, HINT);
-  const lengthsKm = requireArray('lengthsKm', record.lengthsKm, 1, HINT).map((length, index) => requireNumber(`lengthsKm[${index}]`, length, LENGTH_RANGE_KM, HINT));
+  const lengthsKm = requireArray('lengthsKm', record.lengthsKm, 1, HINT).map((length, index) =>
+    requireNumber(`lengthsKm[${index}]`, length, LENGTH_RANGE_KM, HINT),
+  );
   const nominalV = kvToV(nominalVoltageKv);
   let thermalLimitMw: number;
   if (record.thermalLimitMw !== undefined) {
     thermalLimitMw = requireNumber('thermalLimitMw', record.thermalLimitMw, { min: 0, max: 1e5, minInclusive: false, unit: 'MW' }, HINT);
   } else if (record.thermalLimitA !== undefined) {
-    thermalLimitMw = (SQRT3 * nominalV * requireNumber('thermalLimitA', record.thermalLimitA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, HINT)) / 1e6;
+    thermalLimitMw =
+      (SQRT3 * nominalV * requireNumber('thermalLimitA', record.thermalLimitA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, HINT)) / 1e6;
   } else {
-    throw new SolverDomainError({ code: 'MISSING_QUANTITY', quantity: 'thermalLimitMw (or thermalLimitA)', value: null, allowedRange: '(0, 100000] MW', hint: HINT });
+    throw new SolverDomainError({
+      code: 'MISSING_QUANTITY',
+      quantity: 'thermalLimitMw (or thermalLimitA)',
+      value: null,
+      allowedRange: '(0, 100000] MW',
+      hint: HINT,
+    });
   }
   const shortCircuitRange = { min: 0, max: 1000, minInclusive: false, unit: 'kA' } as const;
   const terminalHint = 'Short-circuit current of the system at the line terminal; the published method used 50 kA at both ends (from memory).';
   const sendingKa = optionalNumber('sendingShortCircuitKa', record.sendingShortCircuitKa, 50, shortCircuitRange, terminalHint);
   const receivingKa = optionalNumber('receivingShortCircuitKa', record.receivingShortCircuitKa, 50, shortCircuitRange, terminalHint);
-  const systemEmfPu = optionalNumber('systemEmfPu', record.systemEmfPu, 1, { min: 0.8, max: 1.2 }, 'EMF magnitude of both terminal systems in pu of nominal voltage; 1.0 in the published method.');
-  const voltageDropPercent = optionalNumber('voltageDropPercent', record.voltageDropPercent, 5, { min: 0, max: 50, minInclusive: false, unit: '%' }, 'Half-width of the voltage band in % of nominal; the published criterion is 5 %.');
-  const stabilityMarginPercent = optionalNumber('stabilityMarginPercent', record.stabilityMarginPercent, 30, { min: 0, max: 90, unit: '%' }, 'The published criterion is 30 %.');
+  const systemEmfPu = optionalNumber(
+    'systemEmfPu',
+    record.systemEmfPu,
+    1,
+    { min: 0.8, max: 1.2 },
+    'EMF magnitude of both terminal systems in pu of nominal voltage; 1.0 in the published method.',
+  );
+  const voltageDropPercent = optionalNumber(
+    'voltageDropPercent',
+    record.voltageDropPercent,
+    5,
+    { min: 0, max: 50, minInclusive: false, unit: '%' },
+    'Half-width of the voltage band in % of nominal; the published criterion is 5 %.',
+  );
+  const stabilityMarginPercent = optionalNumber(
+    'stabilityMarginPercent',
+    record.stabilityMarginPercent,
+    30,
+    { min: 0, max: 90, unit: '%' },
+    'The published criterion is 30 %.',
+  );
   const band = voltageDropPercent / 100;
   const sendingReactanceOhm = nominalV / (SQRT3 * sendingKa * 1e3);
   const receivingReactanceOhm = nominalV / (SQRT3 * receivingKa * 1e3);
@@ -125,7 +152,8 @@ export function lineLoadability(
     const partials = Array.from({ length: PROFILE_INTERVALS + 1 }, (_, index) =>
       lineAbcd('distributed', constants.seriesImpedanceOhmPerM, constants.shuntAdmittanceSPerM, (lengthM * index) / PROFILE_INTERVALS),
     );
-    const stateAt = (angleRad: number) => operatingState(line, wholeSystem, partials, lengthKm, receivingReactanceOhm, emfKv * 1e3, angleRad, nominalV);
+    const stateAt = (angleRad: number) =>
+      operatingState(line, wholeSystem, partials, lengthKm, receivingReactanceOhm, emfKv * 1e3, angleRad, nominalV);
     const limitAngle = steadyStateLimitAngleRad(wholeSystem);
     const maximumMw = receivingPowerAtAngleMw(wholeSystem, emfKv, emfKv, limitAngle);
     const angleForMw = (pMw: number) => (pMw >= maximumMw ? limitAngle : stableAngleForPowerRad(wholeSystem, emfKv, emfKv, pMw));

@@ -41,7 +41,12 @@ export interface NeutralReactorDesign {
   positiveSequenceSusceptanceS: number;
   zeroSequenceSusceptanceS: number;
   chargingMvar: number;
-  phaseReactor: { reactanceOhmPerPhase: number; inductanceHPerPhase: number; qMvarThreePhase: number; perBank: { reactanceOhmPerPhase: number; qMvarThreePhase: number } };
+  phaseReactor: {
+    reactanceOhmPerPhase: number;
+    inductanceHPerPhase: number;
+    qMvarThreePhase: number;
+    perBank: { reactanceOhmPerPhase: number; qMvarThreePhase: number };
+  };
   neutralReactor: {
     reactanceOhm: number;
     inductanceH: number;
@@ -111,15 +116,54 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
   const frequencyHz = requireNumber('frequencyHz', record.frequencyHz, FREQUENCY_RANGE_HZ, HINT);
   const voltageKv = requireNumber('voltageKv', record.voltageKv, VOLTAGE_RANGE_KV, HINT);
   const lengthKm = requireNumber('lengthKm', record.lengthKm, LENGTH_RANGE_KM, HINT);
-  const positiveNfPerKm = requireNumber('positiveSequenceCapacitanceNfPerKm', record.positiveSequenceCapacitanceNfPerKm, { min: 0, max: 100, minInclusive: false, unit: 'nF/km' }, HINT);
-  const zeroNfPerKm = requireNumber('zeroSequenceCapacitanceNfPerKm', record.zeroSequenceCapacitanceNfPerKm, { min: 0, max: positiveNfPerKm, minInclusive: false, maxInclusive: false, unit: 'nF/km' }, 'On an overhead line the zero-sequence capacitance is below the positive-sequence one (typically 0.5 to 0.8 of it).');
-  const degree = requireNumber('shuntCompensationDegree', record.shuntCompensationDegree, { min: 0, max: 2, minInclusive: false }, 'Phase reactor Mvar over line charging Mvar, e.g. 0.7.');
-  const cancellation = optionalNumber('interphaseCancellation', record.interphaseCancellation, 1, { min: 0, max: 1 }, '1 cancels the interphase capacitance fully.');
-  const bankCount = optionalNumber('reactorBankCount', record.reactorBankCount, 1, { min: 1, max: 20 }, 'Number of identical four-reactor banks on the line.');
+  const positiveNfPerKm = requireNumber(
+    'positiveSequenceCapacitanceNfPerKm',
+    record.positiveSequenceCapacitanceNfPerKm,
+    { min: 0, max: 100, minInclusive: false, unit: 'nF/km' },
+    HINT,
+  );
+  const zeroNfPerKm = requireNumber(
+    'zeroSequenceCapacitanceNfPerKm',
+    record.zeroSequenceCapacitanceNfPerKm,
+    { min: 0, max: positiveNfPerKm, minInclusive: false, maxInclusive: false, unit: 'nF/km' },
+    'On an overhead line the zero-sequence capacitance is below the positive-sequence one (typically 0.5 to 0.8 of it).',
+  );
+  const degree = requireNumber(
+    'shuntCompensationDegree',
+    record.shuntCompensationDegree,
+    { min: 0, max: 2, minInclusive: false },
+    'Phase reactor Mvar over line charging Mvar, e.g. 0.7.',
+  );
+  const cancellation = optionalNumber(
+    'interphaseCancellation',
+    record.interphaseCancellation,
+    1,
+    { min: 0, max: 1 },
+    '1 cancels the interphase capacitance fully.',
+  );
+  const bankCount = optionalNumber(
+    'reactorBankCount',
+    record.reactorBankCount,
+    1,
+    { min: 1, max: 20 },
+    'Number of identical four-reactor banks on the line.',
+  );
   if (!Number.isInteger(bankCount)) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: 'reactorBankCount', value: bankCount, allowedRange: 'an integer in [1, 20]', hint: HINT });
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: 'reactorBankCount',
+      value: bankCount,
+      allowedRange: 'an integer in [1, 20]',
+      hint: HINT,
+    });
   }
-  const limitA = optionalNumber('secondaryArcLimitA', record.secondaryArcLimitA, 20, { min: 0, max: 1000, minInclusive: false, unit: 'A' }, 'Self-extinction limit (common practice: about 20 A rms; set from the utility standard or test data).');
+  const limitA = optionalNumber(
+    'secondaryArcLimitA',
+    record.secondaryArcLimitA,
+    20,
+    { min: 0, max: 1000, minInclusive: false, unit: 'A' },
+    'Self-extinction limit (common practice: about 20 A rms; set from the utility standard or test data).',
+  );
   const unbalancePercent =
     record.steadyStateZeroSequenceVoltagePercent === undefined
       ? null
@@ -144,13 +188,13 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
   const phaseReactanceOhm = 1 / reactor1;
   const neutralReactanceOhm = (1 / reactor0 - phaseReactanceOhm) / 3;
 
-  const withNeutralReactor = deadTimeCase(phaseVoltageV, ((b1 - b0) - (reactor1 - reactor0)) / 3, b0 - reactor0);
+  const withNeutralReactor = deadTimeCase(phaseVoltageV, (b1 - b0 - (reactor1 - reactor0)) / 3, b0 - reactor0);
   const solidlyGroundedNeutral = deadTimeCase(phaseVoltageV, (b1 - b0) / 3, b0 - reactor1);
   const withoutReactors = deadTimeCase(phaseVoltageV, (b1 - b0) / 3, b0);
 
   // Neutral voltage of the star: (Va + Vb + Vc) Xn / (3 Xn + Xp); while arcing Va = 0, afterwards Va = -rho Ea with Vb + Vc = -Ea.
   const starShare = neutralReactanceOhm / (3 * neutralReactanceOhm + phaseReactanceOhm);
-  const netInterphase = ((b1 - b0) - (reactor1 - reactor0)) / 3;
+  const netInterphase = (b1 - b0 - (reactor1 - reactor0)) / 3;
   const rho = netInterphase / (b0 - reactor0 + 2 * netInterphase);
   const arcingVoltageV = phaseVoltageV * starShare;
   const openPhaseVoltageV = phaseVoltageV * Math.abs(1 + rho) * starShare;
@@ -166,10 +210,25 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
   let faultPositionPu: number | null = null;
   if (record.inductiveCoupling !== undefined) {
     const coupling = requireObject('inductiveCoupling', record.inductiveCoupling, HINT);
-    const loadCurrentA = requireNumber('inductiveCoupling.loadCurrentA', coupling.loadCurrentA, { min: 0, max: 1e5, unit: 'A' }, 'Load current of the healthy phases during the dead time.');
-    const mutual = requireComplex('inductiveCoupling.mutualImpedanceOhmPerKm', coupling.mutualImpedanceOhmPerKm, '(Z0 - Z1) / 3 per km, as { re, im }.');
+    const loadCurrentA = requireNumber(
+      'inductiveCoupling.loadCurrentA',
+      coupling.loadCurrentA,
+      { min: 0, max: 1e5, unit: 'A' },
+      'Load current of the healthy phases during the dead time.',
+    );
+    const mutual = requireComplex(
+      'inductiveCoupling.mutualImpedanceOhmPerKm',
+      coupling.mutualImpedanceOhmPerKm,
+      '(Z0 - Z1) / 3 per km, as { re, im }.',
+    );
     // Worst case at a line end unless a position is given.
-    faultPositionPu = optionalNumber('inductiveCoupling.faultPositionPu', coupling.faultPositionPu, 0, { min: 0, max: 1 }, 'Fault position from the sending end, 0 to 1.');
+    faultPositionPu = optionalNumber(
+      'inductiveCoupling.faultPositionPu',
+      coupling.faultPositionPu,
+      0,
+      { min: 0, max: 1 },
+      'Fault position from the sending end, 0 to 1.',
+    );
     // The EMF induced along the open phase, E = Zm (Ib + Ic) l, drives the phase's own (self) susceptance, split evenly either side
     // of the line's middle: with the potential zero at the fault, I = E (1/2 - m) b_self (reactors taken as split between the ends).
     const inducedEmfV = mutual.abs() * loadCurrentA * lengthKm;
@@ -179,13 +238,19 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
   const totalUpperBoundA = withNeutralReactor.capacitiveCurrentA + (inductiveCurrentA ?? 0);
   const warnings: string[] = [];
   if (totalUpperBoundA > limitA) {
-    warnings.push(`Secondary arc current up to ${totalUpperBoundA.toFixed(1)} A exceeds the ${limitA} A self-extinction limit taken (common practice): single-pole reclosing may fail; consider fuller cancellation, a longer dead time or high-speed grounding switches.`);
+    warnings.push(
+      `Secondary arc current up to ${totalUpperBoundA.toFixed(1)} A exceeds the ${limitA} A self-extinction limit taken (common practice): single-pole reclosing may fail; consider fuller cancellation, a longer dead time or high-speed grounding switches.`,
+    );
   }
   if (withNeutralReactor.recoveryVoltagePu > 1 || openPhaseVoltageV > phaseVoltageV) {
-    warnings.push(`The open phase is near resonance with the reactors (recovery voltage ${withNeutralReactor.recoveryVoltagePu.toFixed(2)} pu): a pole left open can sustain an overvoltage; check with reactor losses and the real degree of transposition.`);
+    warnings.push(
+      `The open phase is near resonance with the reactors (recovery voltage ${withNeutralReactor.recoveryVoltagePu.toFixed(2)} pu): a pole left open can sustain an overvoltage; check with reactor losses and the real degree of transposition.`,
+    );
   }
   if (record.inductiveCoupling === undefined) {
-    warnings.push('The inductive part of the secondary arc current was not evaluated (no inductiveCoupling given); on a heavily loaded long line it can dominate at the line ends.');
+    warnings.push(
+      'The inductive part of the secondary arc current was not evaluated (no inductiveCoupling given); on a heavily loaded long line it can dominate at the line ends.',
+    );
   }
 
   return assertFiniteResult('neutralReactorDesign', {

@@ -30,7 +30,8 @@ export interface VoltageProfile {
   minimum: { positionKm: number; voltageKv: number };
 }
 
-const PROFILE_HINT = 'Pass { network, operatingPoint, pointCount?, nominalVoltageKv? } with operatingPoint from a solve... function on the same network.';
+const PROFILE_HINT =
+  'Pass { network, operatingPoint, pointCount?, nominalVoltageKv? } with operatingPoint from a solve... function on the same network.';
 
 /** Sample positions strictly inside (0, lengthKm) on a route-wide grid, so adjacent sections share one spacing. */
 function interiorPositions(startKm: number, lengthKm: number, stepKm: number): number[] {
@@ -122,7 +123,14 @@ export function readOperatingPointEnds(value: unknown, hint: string) {
  * compared on the scale of the larger end current: an open or lightly loaded receiving end carries only the rounding
  * of the sending end's charging current.
  */
-export function requireSameNetwork(voltage: Complex, current: Complex, expectedVoltage: Complex, expectedCurrent: Complex, sendingCurrent: Complex, label: string): void {
+export function requireSameNetwork(
+  voltage: Complex,
+  current: Complex,
+  expectedVoltage: Complex,
+  expectedCurrent: Complex,
+  sendingCurrent: Complex,
+  label: string,
+): void {
   const scaleV = Math.max(voltage.abs(), expectedVoltage.abs(), 1);
   const scaleI = Math.max(current.abs(), expectedCurrent.abs(), sendingCurrent.abs(), 1e-3);
   const voltageDeviation = voltage.sub(expectedVoltage).abs() / scaleV;
@@ -153,8 +161,11 @@ export function voltageProfile(options: {
   const { network } = readNetwork(record);
   const ends = readOperatingPointEnds(record.operatingPoint, PROFILE_HINT);
   let { voltage, current } = ends.sending;
-  const requestedPoints = Math.round(optionalNumber('pointCount', record.pointCount, 201, { min: 2, max: 1_000_000 }, 'About how many points along the route.'));
-  const nominalVoltageKv = record.nominalVoltageKv === undefined ? null : requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, PROFILE_HINT);
+  const requestedPoints = Math.round(
+    optionalNumber('pointCount', record.pointCount, 201, { min: 2, max: 1_000_000 }, 'About how many points along the route.'),
+  );
+  const nominalVoltageKv =
+    record.nominalVoltageKv === undefined ? null : requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, PROFILE_HINT);
   const elements = elementsOf(network);
   const routeLengthKm = elements.reduce((sum, element) => sum + (element.kind === 'line-section' ? element.lengthKm : 0), 0);
   if (!(routeLengthKm > 0)) {

@@ -66,7 +66,12 @@ export function sequenceCapacitanceFromGeometry(options: SequenceCapacitanceOpti
   const radiusM = constants.bundleCapacitanceRadiusM;
   const phases: Wire[] = (record.phasePositionsM as Array<{ xM: number; yM: number }>).map((position, index) => ({
     x: position.xM,
-    y: requireNumber(`phasePositionsM[${index}].yM`, position.yM, { min: radiusM, max: 1000, minInclusive: false, unit: 'm' }, 'Mean height of the phase above ground, larger than the bundle radius.'),
+    y: requireNumber(
+      `phasePositionsM[${index}].yM`,
+      position.yM,
+      { min: radiusM, max: 1000, minInclusive: false, unit: 'm' },
+      'Mean height of the phase above ground, larger than the bundle radius.',
+    ),
     radiusM,
   }));
   const earthWires: Wire[] =
@@ -74,10 +79,20 @@ export function sequenceCapacitanceFromGeometry(options: SequenceCapacitanceOpti
       ? []
       : requireArray('earthWires', record.earthWires, 0, HINT).map((value, index) => {
           const wire = requireObject(`earthWires[${index}]`, value, HINT);
-          const diameterMm = requireNumber(`earthWires[${index}].diameterMm`, wire.diameterMm, { min: 0, max: 100, minInclusive: false, unit: 'mm' }, HINT);
+          const diameterMm = requireNumber(
+            `earthWires[${index}].diameterMm`,
+            wire.diameterMm,
+            { min: 0, max: 100, minInclusive: false, unit: 'mm' },
+            HINT,
+          );
           return {
             x: requireNumber(`earthWires[${index}].xM`, wire.xM, { min: -1000, max: 1000, unit: 'm' }, HINT),
-            y: requireNumber(`earthWires[${index}].yM`, wire.yM, { min: diameterMm / 2e3, max: 1000, minInclusive: false, unit: 'm' }, 'Mean height of the earth wire above ground.'),
+            y: requireNumber(
+              `earthWires[${index}].yM`,
+              wire.yM,
+              { min: diameterMm / 2e3, max: 1000, minInclusive: false, unit: 'm' },
+              'Mean height of the earth wire above ground.',
+            ),
             radiusM: diameterMm / 2e3,
           };
         });

@@ -1,6 +1,15 @@
 // Series capacitor bank design: degree of compensation for a target transfer within an angle limit, bank ratings and duty, MOV level.
 import { Complex, fromPlain } from './complex.ts';
-import { assertFiniteResult, forMessage, SolverDomainError, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
+import {
+  assertFiniteResult,
+  forMessage,
+  SolverDomainError,
+  optionalNumber,
+  requireArray,
+  requireChoice,
+  requireNumber,
+  requireObject,
+} from './errors.ts';
 import { seriesCapacitor } from './elements.ts';
 import { VOLTAGE_RANGE_KV, resizedSection } from './lineModels.ts';
 import { angleForTransfer, goldenSectionMinimum, receivingPowerAtAngleMw, steadyStateLimitAngleRad } from './curves.ts';
@@ -52,7 +61,11 @@ export interface BankOperatingPoint {
 }
 
 function compensatedNetworkFor(line: LineSectionTwoPort, location: CapacitorLocation, degree: number): CascadeTwoPort {
-  const capacitor = seriesCapacitor({ degreeOfCompensation: degree, compensatedLine: line, label: `series capacitor ${(degree * 100).toFixed(1)} %` });
+  const capacitor = seriesCapacitor({
+    degreeOfCompensation: degree,
+    compensatedLine: line,
+    label: `series capacitor ${(degree * 100).toFixed(1)} %`,
+  });
   if (location === 'sending-end') return cascade({ elements: [capacitor, line] });
   if (location === 'receiving-end') return cascade({ elements: [line, capacitor] });
   const half = line.lengthKm / 2;
@@ -71,7 +84,11 @@ function largestTransfer(scan: Array<{ degree: number; transferMw: number }>, tr
   const best = scan.reduce((top, sample) => (sample.transferMw > top.transferMw ? sample : top));
   const first = scan[0]?.degree ?? 0;
   const last = scan[scan.length - 1]?.degree ?? best.degree;
-  const degree = goldenSectionMinimum((candidate) => -transferWith(candidate), Math.max(first, best.degree - stepDegree), Math.min(last, best.degree + stepDegree));
+  const degree = goldenSectionMinimum(
+    (candidate) => -transferWith(candidate),
+    Math.max(first, best.degree - stepDegree),
+    Math.min(last, best.degree + stepDegree),
+  );
   const refined = { degree, transferMw: transferWith(degree) };
   return refined.transferMw > best.transferMw ? refined : best;
 }
@@ -111,7 +128,8 @@ function bankOperatingPoint(
     angleDeg,
     bankCurrentA,
     capacitorVoltageKv: hasBank && bank ? kv(bank.after.voltage.sub(bank.before.voltage)) : 0,
-    bankTerminalVoltagesKv: hasBank && bank ? { sendingSide: kv(bank.before.voltage), receivingSide: kv(bank.after.voltage) } : { sendingSide: 0, receivingSide: 0 },
+    bankTerminalVoltagesKv:
+      hasBank && bank ? { sendingSide: kv(bank.before.voltage), receivingSide: kv(bank.after.voltage) } : { sendingSide: 0, receivingSide: 0 },
     midLineVoltageKv: kv(midVoltage),
   };
 }
@@ -148,22 +166,53 @@ export function seriesCompensationDesign(options: {
       hint: 'Give the uncompensated line as one section from lineModel so it can be split around the capacitor.',
     });
   }
-  const location = record.location === undefined ? 'mid-line' : requireChoice('location', record.location, ['mid-line', 'sending-end', 'receiving-end'] as const, hint);
+  const location =
+    record.location === undefined
+      ? 'mid-line'
+      : requireChoice('location', record.location, ['mid-line', 'sending-end', 'receiving-end'] as const, hint);
   const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const targetTransferMw = requireNumber('targetTransferMw', record.targetTransferMw, { min: 0, max: 1e5, minInclusive: false, unit: 'MW' }, hint);
-  const angleLimitDeg = requireNumber('angleLimitDeg', record.angleLimitDeg, { min: 0, max: 90, minInclusive: false, unit: 'deg' }, 'Largest angle across the line allowed in steady state, often 30 to 45 deg (common practice).');
+  const angleLimitDeg = requireNumber(
+    'angleLimitDeg',
+    record.angleLimitDeg,
+    { min: 0, max: 90, minInclusive: false, unit: 'deg' },
+    'Largest angle across the line allowed in steady state, often 30 to 45 deg (common practice).',
+  );
   const ratedCurrentA = requireNumber('ratedCurrentA', record.ratedCurrentA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, hint);
-  const emergencyCurrentA = requireNumber('emergencyCurrentA', record.emergencyCurrentA, { min: ratedCurrentA, max: 1e5, unit: 'A' }, 'Emergency (short-time overload) current, at least the rated current.');
-  const throughFaultCurrentA = requireNumber('throughFaultCurrentA', record.throughFaultCurrentA, { min: 0, max: 1e6, minInclusive: false, unit: 'A' }, 'Largest fault current through the bank for an external fault.');
-  const protectiveLevelPu = optionalNumber('protectiveLevelPu', record.protectiveLevelPu, 2.3, { min: 1, max: 4 }, 'MOV protective level as a multiple of the rated capacitor voltage; 2.0 to 2.5 pu is common practice.');
-  const maxDegree = optionalNumber('maxDegreeOfCompensation', record.maxDegreeOfCompensation, 0.8, { min: 0, max: 1, minInclusive: false, maxInclusive: false }, 'Largest degree considered; banks above about 0.7 to 0.8 are rare (common practice).');
+  const emergencyCurrentA = requireNumber(
+    'emergencyCurrentA',
+    record.emergencyCurrentA,
+    { min: ratedCurrentA, max: 1e5, unit: 'A' },
+    'Emergency (short-time overload) current, at least the rated current.',
+  );
+  const throughFaultCurrentA = requireNumber(
+    'throughFaultCurrentA',
+    record.throughFaultCurrentA,
+    { min: 0, max: 1e6, minInclusive: false, unit: 'A' },
+    'Largest fault current through the bank for an external fault.',
+  );
+  const protectiveLevelPu = optionalNumber(
+    'protectiveLevelPu',
+    record.protectiveLevelPu,
+    2.3,
+    { min: 1, max: 4 },
+    'MOV protective level as a multiple of the rated capacitor voltage; 2.0 to 2.5 pu is common practice.',
+  );
+  const maxDegree = optionalNumber(
+    'maxDegreeOfCompensation',
+    record.maxDegreeOfCompensation,
+    0.8,
+    { min: 0, max: 1, minInclusive: false, maxInclusive: false },
+    'Largest degree considered; banks above about 0.7 to 0.8 are rare (common practice).',
+  );
   const angleLimitRad = degToRad(angleLimitDeg);
   const lineReactanceOhm = line.perKm.seriesReactanceOhmPerKm * line.lengthKm;
 
   const caseInputs = record.cases === undefined ? [] : requireArray('cases', record.cases, 0, hint);
   const uncompensatedMw = transferAtAngleMw(line, sendingVoltageKv, receivingVoltageKv, angleLimitRad);
-  const transferWith = (degree: number) => transferAtAngleMw(compensatedNetworkFor(line, location, degree), sendingVoltageKv, receivingVoltageKv, angleLimitRad);
+  const transferWith = (degree: number) =>
+    transferAtAngleMw(compensatedNetworkFor(line, location, degree), sendingVoltageKv, receivingVoltageKv, angleLimitRad);
   let degree = 0;
   if (uncompensatedMw < targetTransferMw) {
     // On a lossy line the transfer at a fixed angle peaks and then falls as the net reactance goes to zero (arg B falls toward the
@@ -208,8 +257,20 @@ export function seriesCompensationDesign(options: {
     const label = typeof caseRecord.label === 'string' && caseRecord.label !== '' ? caseRecord.label : `case ${index + 1}`;
     const caseHint = 'Each case is { label, transferMw, sendingVoltageKv?, receivingVoltageKv? } (voltages default to the design voltages).';
     const transferMw = requireNumber(`cases[${index}].transferMw`, caseRecord.transferMw, { min: -1e5, max: 1e5, unit: 'MW' }, caseHint);
-    const caseSendingKv = optionalNumber(`cases[${index}].sendingVoltageKv`, caseRecord.sendingVoltageKv, sendingVoltageKv, VOLTAGE_RANGE_KV, caseHint);
-    const caseReceivingKv = optionalNumber(`cases[${index}].receivingVoltageKv`, caseRecord.receivingVoltageKv, receivingVoltageKv, VOLTAGE_RANGE_KV, caseHint);
+    const caseSendingKv = optionalNumber(
+      `cases[${index}].sendingVoltageKv`,
+      caseRecord.sendingVoltageKv,
+      sendingVoltageKv,
+      VOLTAGE_RANGE_KV,
+      caseHint,
+    );
+    const caseReceivingKv = optionalNumber(
+      `cases[${index}].receivingVoltageKv`,
+      caseRecord.receivingVoltageKv,
+      receivingVoltageKv,
+      VOLTAGE_RANGE_KV,
+      caseHint,
+    );
     return { label, ...bankAt(transferMw, caseSendingKv, caseReceivingKv) };
   });
   const warnings: string[] = [];
@@ -219,13 +280,18 @@ export function seriesCompensationDesign(options: {
     );
   }
   if (degree > 0) {
-    for (const [where, point] of [['at the design point', designPoint], ...cases.map((item) => [`in case '${item.label}'`, item] as const)] as const) {
+    for (const [where, point] of [
+      ['at the design point', designPoint],
+      ...cases.map((item) => [`in case '${item.label}'`, item] as const),
+    ] as const) {
       if (point.bankCurrentA > emergencyCurrentA) {
         warnings.push(
-          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its emergency current of ${emergencyCurrentA} A: the varistor would conduct in service (capacitor peak ${(Math.SQRT2 * point.bankCurrentA * reactanceOhm / 1e3).toFixed(1)} kV); raise the bank's ratings.`,
+          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its emergency current of ${emergencyCurrentA} A: the varistor would conduct in service (capacitor peak ${((Math.SQRT2 * point.bankCurrentA * reactanceOhm) / 1e3).toFixed(1)} kV); raise the bank's ratings.`,
         );
       } else if (point.bankCurrentA > ratedCurrentA) {
-        warnings.push(`The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its rated current of ${ratedCurrentA} A: rate the bank for this current or limit the transfer.`);
+        warnings.push(
+          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its rated current of ${ratedCurrentA} A: rate the bank for this current or limit the transfer.`,
+        );
       }
     }
   }

@@ -1,9 +1,30 @@
 // Shunt compensation sizing: reactors for the no-load voltage, capacitors for a heavy-load voltage, and SVC range over load cases.
 import { Complex } from './complex.ts';
-import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
+import {
+  SolverDomainError,
+  assertFiniteResult,
+  forMessage,
+  optionalNumber,
+  requireArray,
+  requireChoice,
+  requireNumber,
+  requireObject,
+} from './errors.ts';
 import { lineShuntSusceptanceS, shuntCapacitor, shuntReactor } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { deliveredReactiveVa, lineModelsOf, noseLoadMultiple, readLoad, readNetwork, receivingVoltageRoots, solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, type LoadInput, type OperatingPoint } from './solutions.ts';
+import {
+  deliveredReactiveVa,
+  lineModelsOf,
+  noseLoadMultiple,
+  readLoad,
+  readNetwork,
+  receivingVoltageRoots,
+  solveFixedSendingVoltage,
+  solveNoLoad,
+  solveReceivingLoad,
+  type LoadInput,
+  type OperatingPoint,
+} from './solutions.ts';
 import { voltageProfile } from './profile.ts';
 import {
   abcdOf,
@@ -95,13 +116,15 @@ export function shuntReactorForNoLoad(options: {
     : requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const targetReceivingVoltageKv = requireNumber('targetReceivingVoltageKv', record.targetReceivingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const ratedVoltageKv = requireNumber('ratedVoltageKv', record.ratedVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const placement = record.placement === undefined ? 'receiving-end' : requireChoice('placement', record.placement, ['receiving-end', 'both-ends'] as const, hint);
+  const placement =
+    record.placement === undefined ? 'receiving-end' : requireChoice('placement', record.placement, ['receiving-end', 'both-ends'] as const, hint);
   const sendingSystem = record.sendingSystem === undefined ? null : readTwoPort('sendingSystem', record.sendingSystem);
   const lineSusceptanceS = lineShuntSusceptanceS(line);
   const ratedVoltageV = kvToV(ratedVoltageKv);
   const reactorCount = placement === 'both-ends' ? 2 : 1;
 
-  const reactor = (susceptanceS: number, label: string) => shuntReactor({ qMvar: (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6, ratedVoltageKv, label });
+  const reactor = (susceptanceS: number, label: string) =>
+    shuntReactor({ qMvar: (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6, ratedVoltageKv, label });
   /** The network from the sending bus on: [sending reactor?, line, receiving reactor?]. */
   const fromBus = (susceptanceS: number): TwoPort[] => {
     const parts: TwoPort[] = [];
@@ -151,7 +174,9 @@ export function shuntReactorForNoLoad(options: {
   const reactors =
     susceptanceS > 0
       ? [
-          ...(placement === 'both-ends' ? [{ location: 'sending-end' as const, busVoltageKv: sendingBusVoltageKv, mvarAtBusVoltage: atBus(sendingBusVoltageKv) }] : []),
+          ...(placement === 'both-ends'
+            ? [{ location: 'sending-end' as const, busVoltageKv: sendingBusVoltageKv, mvarAtBusVoltage: atBus(sendingBusVoltageKv) }]
+            : []),
           { location: 'receiving-end' as const, busVoltageKv: finalReceivingKv, mvarAtBusVoltage: atBus(finalReceivingKv) },
         ]
       : [];
@@ -228,7 +253,13 @@ export function shuntCapacitorForLoadVoltage(options: {
   const targetReceivingVoltageKv = requireNumber('targetReceivingVoltageKv', record.targetReceivingVoltageKv, VOLTAGE_RANGE_KV, hint);
   const load = readLoad('load', record.load);
   const ratedVoltageKv = requireNumber('ratedVoltageKv', record.ratedVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const minimumNoseMarginPercent = optionalNumber('minimumNoseMarginPercent', record.minimumNoseMarginPercent, 10, { min: 0, max: 90, unit: '%' }, 'Smallest acceptable margin to the nose of the P-V curve; 10 % is common practice in planning.');
+  const minimumNoseMarginPercent = optionalNumber(
+    'minimumNoseMarginPercent',
+    record.minimumNoseMarginPercent,
+    10,
+    { min: 0, max: 90, unit: '%' },
+    'Smallest acceptable margin to the nose of the P-V curve; 10 % is common practice in planning.',
+  );
   const receivingV = kvToV(targetReceivingVoltageKv);
   const sendingV = kvToV(sendingVoltageKv);
   const constantPart = abcd.A.mul(receivingV).add(abcd.B.mul(load.conjugate()).div(receivingV));
@@ -236,7 +267,8 @@ export function shuntCapacitorForLoadVoltage(options: {
   const a = perSusceptance.abs() ** 2;
   const b = 2 * constantPart.mul(perSusceptance.conjugate()).re;
   const c = constantPart.abs() ** 2 - sendingV * sendingV;
-  const withBank = (susceptanceS: number): AbcdMatrix => (susceptanceS > 0 ? multiplyAbcd(abcd, shuntAdmittanceAbcd(new Complex(0, susceptanceS))) : abcd);
+  const withBank = (susceptanceS: number): AbcdMatrix =>
+    susceptanceS > 0 ? multiplyAbcd(abcd, shuntAdmittanceAbcd(new Complex(0, susceptanceS))) : abcd;
   // Seen from the bus the network is a Thevenin source behind B / A; a bank at or beyond parallel resonance with it is no design.
   const theveninReactanceOhm = abcd.B.div(abcd.A).im;
   const onUpperBranch = (susceptanceS: number): boolean => {
@@ -247,7 +279,8 @@ export function shuntCapacitorForLoadVoltage(options: {
   let susceptanceS = 0;
   if (c > 0) {
     const discriminant = b * b - 4 * a * c;
-    const roots = discriminant >= 0 ? [(-b - Math.sqrt(discriminant)) / (2 * a), (-b + Math.sqrt(discriminant)) / (2 * a)].filter((root) => root >= 0) : [];
+    const roots =
+      discriminant >= 0 ? [(-b - Math.sqrt(discriminant)) / (2 * a), (-b + Math.sqrt(discriminant)) / (2 * a)].filter((root) => root >= 0) : [];
     const upper = roots.find(onUpperBranch);
     if (upper === undefined) {
       throw new SolverDomainError({
@@ -343,8 +376,18 @@ export function svcRange(options: {
   const sendingV = kvToV(requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, hint));
   const referenceVoltageKv = requireNumber('referenceVoltageKv', record.referenceVoltageKv, VOLTAGE_RANGE_KV, hint);
   const nominalVoltageKv = requireNumber('nominalVoltageKv', record.nominalVoltageKv, VOLTAGE_RANGE_KV, hint);
-  const slopePercent = requireNumber('slopePercent', record.slopePercent, { min: 0, max: 20, unit: '%' }, 'SVC slope, commonly 1 to 5 % (common practice).');
-  const slopeBaseMva = requireNumber('slopeBaseMva', record.slopeBaseMva, { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' }, 'Rating on which the slope is expressed.');
+  const slopePercent = requireNumber(
+    'slopePercent',
+    record.slopePercent,
+    { min: 0, max: 20, unit: '%' },
+    'SVC slope, commonly 1 to 5 % (common practice).',
+  );
+  const slopeBaseMva = requireNumber(
+    'slopeBaseMva',
+    record.slopeBaseMva,
+    { min: 0, max: 1e5, minInclusive: false, unit: 'MVA' },
+    'Rating on which the slope is expressed.',
+  );
   const caseInputs = requireArray('loadCases', record.loadCases, 1, hint);
   const referenceV = kvToV(referenceVoltageKv);
   const nominalV = kvToV(nominalVoltageKv);
@@ -385,7 +428,15 @@ export function svcRange(options: {
     }
     const susceptance = output / (busV * busV);
     const mode: SvcCaseResult['mode'] = Math.abs(output) < 1 ? 'floating' : output > 0 ? 'capacitive' : 'inductive';
-    return { label, pMw: load.re / 1e6, qMvar: load.im / 1e6, busVoltageKv: busV / 1e3, svcOutputMvar: output / 1e6, svcSusceptanceS: susceptance, mode };
+    return {
+      label,
+      pMw: load.re / 1e6,
+      qMvar: load.im / 1e6,
+      busVoltageKv: busV / 1e3,
+      svcOutputMvar: output / 1e6,
+      svcSusceptanceS: susceptance,
+      mode,
+    };
   });
   const maxCapacitiveSusceptance = Math.max(0, ...cases.map((item) => item.svcSusceptanceS));
   const maxInductiveSusceptance = Math.max(0, ...cases.map((item) => -item.svcSusceptanceS));
@@ -401,4 +452,3 @@ export function svcRange(options: {
     lineModels: lineModelsOf(network),
   });
 }
-

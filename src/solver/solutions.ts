@@ -1,23 +1,13 @@
 // Steady-state operating points of a two-port network: no load, receiving-end load, both end voltages, fixed sending voltage (Newton).
 import { Complex, angleDegOf, fromPolar, toPlain, type ComplexValue } from './complex.ts';
-import {
-  SolverDomainError,
-  assertFiniteResult,
-  forMessage,
-  optionalNumber,
-  requireChoice,
-  requireNumber,
-  requireObject,
-} from './errors.ts';
+import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { requireInductiveSeriesPath } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import { abcdOf, elementsOf, labelOf, readTwoPort, type AbcdMatrix, type TwoPort } from './twoPort.ts';
 import { SQRT3, degToRad, kvToV, lineKvFromPhaseVolts, phaseVoltsFromLineKv } from './units.ts';
 
 /** A receiving-end load: P with Q, or P with a power factor and its sense (lagging = inductive, absorbs vars). */
-export type LoadInput =
-  | { pMw: number; qMvar: number }
-  | { pMw: number; powerFactor: number; powerFactorSense: 'lagging' | 'leading' };
+export type LoadInput = { pMw: number; qMvar: number } | { pMw: number; powerFactor: number; powerFactorSense: 'lagging' | 'leading' };
 
 const LOAD_HINT = "Give { pMw, qMvar } or { pMw, powerFactor, powerFactorSense: 'lagging' | 'leading' }.";
 
@@ -151,7 +141,14 @@ export function solveNoLoad(options: { network: TwoPort; sendingVoltageKv: numbe
   const sendingCurrent = abcd.C.mul(receivingVoltage);
   return assertFiniteResult(
     'solveNoLoad',
-    buildOperatingPoint('no-load', network, abcd, { voltage: sendingVoltage, current: sendingCurrent }, { voltage: receivingVoltage, current: new Complex(0, 0) }, null),
+    buildOperatingPoint(
+      'no-load',
+      network,
+      abcd,
+      { voltage: sendingVoltage, current: sendingCurrent },
+      { voltage: receivingVoltage, current: new Complex(0, 0) },
+      null,
+    ),
   );
 }
 
@@ -168,7 +165,14 @@ export function solveReceivingLoad(options: { network: TwoPort; receivingVoltage
   const sendingCurrent = abcd.C.mul(receivingVoltage).add(abcd.D.mul(receivingCurrent));
   return assertFiniteResult(
     'solveReceivingLoad',
-    buildOperatingPoint('receiving-load', network, abcd, { voltage: sendingVoltage, current: sendingCurrent }, { voltage: receivingVoltage, current: receivingCurrent }, null),
+    buildOperatingPoint(
+      'receiving-load',
+      network,
+      abcd,
+      { voltage: sendingVoltage, current: sendingCurrent },
+      { voltage: receivingVoltage, current: receivingCurrent },
+      null,
+    ),
   );
 }
 
@@ -182,12 +186,22 @@ export function twoEndPhasors(abcd: AbcdMatrix, sendingVoltageKv: number, receiv
 }
 
 /** Both end voltages and the angle by which the sending voltage leads the receiving voltage are given. */
-export function solveTwoEndVoltages(options: { network: TwoPort; sendingVoltageKv: number; receivingVoltageKv: number; angleDeg: number }): OperatingPoint {
+export function solveTwoEndVoltages(options: {
+  network: TwoPort;
+  sendingVoltageKv: number;
+  receivingVoltageKv: number;
+  angleDeg: number;
+}): OperatingPoint {
   const record = requireObject('options', options, 'Pass { network, sendingVoltageKv, receivingVoltageKv, angleDeg }.');
   const { network, abcd } = readNetwork(record);
   const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line sending-end voltage.');
   const receivingVoltageKv = requireNumber('receivingVoltageKv', record.receivingVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line receiving-end voltage.');
-  const angleDeg = requireNumber('angleDeg', record.angleDeg, { min: -180, max: 180, unit: 'deg' }, 'Angle by which the sending voltage leads the receiving voltage.');
+  const angleDeg = requireNumber(
+    'angleDeg',
+    record.angleDeg,
+    { min: -180, max: 180, unit: 'deg' },
+    'Angle by which the sending voltage leads the receiving voltage.',
+  );
   requireSeriesPath(abcd, network);
   const phasors = twoEndPhasors(abcd, sendingVoltageKv, receivingVoltageKv, degToRad(angleDeg));
   return assertFiniteResult(
@@ -270,7 +284,13 @@ export function solveFixedSendingVoltage(options: {
   const sendingVoltageKv = requireNumber('sendingVoltageKv', record.sendingVoltageKv, VOLTAGE_RANGE_KV, 'Line-to-line sending-end voltage.');
   const load = readLoad('load', record.load);
   const maxIterations = optionalNumber('maxIterations', record.maxIterations, 30, { min: 1, max: 200 }, 'Newton iteration limit.');
-  const toleranceMva = optionalNumber('toleranceMva', record.toleranceMva, 1e-6, { min: 0, max: 1, minInclusive: false, unit: 'MVA' }, 'Power mismatch accepted at convergence.');
+  const toleranceMva = optionalNumber(
+    'toleranceMva',
+    record.toleranceMva,
+    1e-6,
+    { min: 0, max: 1, minInclusive: false, unit: 'MVA' },
+    'Power mismatch accepted at convergence.',
+  );
   requireSeriesPath(abcd, network);
   requireUsableA(abcd, network);
   const sendingLineV = kvToV(sendingVoltageKv);
@@ -287,7 +307,10 @@ export function solveFixedSendingVoltage(options: {
   let mismatch = Number.POSITIVE_INFINITY;
   for (; iterations <= maxIterations; iterations += 1) {
     const rotation = fromPolar(1, angle);
-    const injected = sendingPart.mul(rotation).mul(magnitude).add(selfPart.mul(magnitude * magnitude));
+    const injected = sendingPart
+      .mul(rotation)
+      .mul(magnitude)
+      .add(selfPart.mul(magnitude * magnitude));
     const residual = injected.add(load);
     mismatch = residual.abs();
     if (mismatch <= toleranceMva * 1e6 || iterations === maxIterations) break;

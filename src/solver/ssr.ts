@@ -24,14 +24,30 @@ export function ssrScreening(options: {
   torsionalModesHz: number[];
   marginHz: number;
 }): SsrScreening {
-  const hint = 'Pass { frequencyHz, capacitorReactanceOhm, totalReactanceOhm (generator + transformer + line + system, at f0), torsionalModesHz: [...], marginHz }.';
+  const hint =
+    'Pass { frequencyHz, capacitorReactanceOhm, totalReactanceOhm (generator + transformer + line + system, at f0), torsionalModesHz: [...], marginHz }.';
   const record = requireObject('options', options, hint);
   const frequencyHz = requireNumber('frequencyHz', record.frequencyHz, FREQUENCY_RANGE_HZ, hint);
-  const totalReactanceOhm = requireNumber('totalReactanceOhm', record.totalReactanceOhm, { min: 0, max: 1e6, minInclusive: false, unit: 'ohm' }, hint);
-  const capacitorReactanceOhm = requireNumber('capacitorReactanceOhm', record.capacitorReactanceOhm, { min: 0, max: totalReactanceOhm, minInclusive: false, maxInclusive: false, unit: 'ohm' }, 'The capacitor must cancel less than the total series reactance, or the path resonates at or above power frequency.');
+  const totalReactanceOhm = requireNumber(
+    'totalReactanceOhm',
+    record.totalReactanceOhm,
+    { min: 0, max: 1e6, minInclusive: false, unit: 'ohm' },
+    hint,
+  );
+  const capacitorReactanceOhm = requireNumber(
+    'capacitorReactanceOhm',
+    record.capacitorReactanceOhm,
+    { min: 0, max: totalReactanceOhm, minInclusive: false, maxInclusive: false, unit: 'ohm' },
+    'The capacitor must cancel less than the total series reactance, or the path resonates at or above power frequency.',
+  );
   const marginHz = requireNumber('marginHz', record.marginHz, { min: 0, max: frequencyHz, unit: 'Hz' }, hint);
   const modesHz = requireArray('torsionalModesHz', record.torsionalModesHz, 0, hint).map((mode, index) =>
-    requireNumber(`torsionalModesHz[${index}]`, mode, { min: 0, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' }, 'Torsional modes lie below power frequency.'),
+    requireNumber(
+      `torsionalModesHz[${index}]`,
+      mode,
+      { min: 0, max: frequencyHz, minInclusive: false, maxInclusive: false, unit: 'Hz' },
+      'Torsional modes lie below power frequency.',
+    ),
   );
   const electricalResonanceHz = frequencyHz * Math.sqrt(capacitorReactanceOhm / totalReactanceOhm);
   const complementHz = frequencyHz - electricalResonanceHz;

@@ -105,7 +105,12 @@ export function switchingSteps(options: {
   const record = requireObject('options', options, HINT);
   const corridor = readCorridor(record.corridor);
   const state = readCase(corridor, record.case, 'case');
-  const stepLimitPercent = requireNumber('stepLimitPercent', record.stepLimitPercent, { min: 0, max: 50, minInclusive: false, unit: '%' }, 'The largest voltage step allowed on switching one unit; a few per cent is common practice, the utility criterion governs.');
+  const stepLimitPercent = requireNumber(
+    'stepLimitPercent',
+    record.stepLimitPercent,
+    { min: 0, max: 50, minInclusive: false, unit: '%' },
+    'The largest voltage step allowed on switching one unit; a few per cent is common practice, the utility criterion governs.',
+  );
   const allUnits = corridor.buses.flatMap((bus) => [...bus.reactors, ...bus.capacitors]);
   const units =
     record.units === undefined
@@ -117,26 +122,46 @@ export function switchingSteps(options: {
               code: 'OUT_OF_RANGE',
               quantity: `units[${index}]`,
               value: String(name),
-              allowedRange: allUnits.length === 0 ? 'no shunt units in this corridor' : `one of ${allUnits.map((candidate) => `'${candidate.name}'`).join(', ')}`,
+              allowedRange:
+                allUnits.length === 0 ? 'no shunt units in this corridor' : `one of ${allUnits.map((candidate) => `'${candidate.name}'`).join(', ')}`,
               hint: 'Name a shunt reactor or capacitor step of the corridor.',
             });
           }
           return unit;
         });
   const settings = {
-    toleranceMva: optionalNumber('toleranceMva', record.toleranceMva, 1e-6, { min: 0, max: 1, minInclusive: false, unit: 'MVA' }, 'Power mismatch accepted at convergence.'),
+    toleranceMva: optionalNumber(
+      'toleranceMva',
+      record.toleranceMva,
+      1e-6,
+      { min: 0, max: 1, minInclusive: false, unit: 'MVA' },
+      'Power mismatch accepted at convergence.',
+    ),
     maxIterations: optionalNumber('maxIterations', record.maxIterations, 30, { min: 1, max: 200 }, 'Newton iteration limit.'),
     profilePointCount: 2,
   };
   const before = solveCaseState(corridor, state, settings);
   if (!before.solved) {
-    return assertFiniteResult('switchingSteps', { case: state.label, solved: false, reason: before.reason, stepLimitPercent, steps: [], worst: null });
+    return assertFiniteResult('switchingSteps', {
+      case: state.label,
+      solved: false,
+      reason: before.reason,
+      stepLimitPercent,
+      steps: [],
+      worst: null,
+    });
   }
   const strength = shortCircuitMvaAtBuses(corridor, state);
   const steps = units.map((unit) => stepFor(corridor, state, settings, before, unit, strength?.[unit.busIndex] ?? 0, stepLimitPercent));
   const worst = steps
     .filter((step) => step.solved)
-    .reduce<SwitchingSteps['worst']>((largest, step) => (largest === null || Math.abs(step.largestChangePercent) > Math.abs(largest.changePercent) ? { unit: step.unit, bus: step.largestAtBus, changePercent: step.largestChangePercent } : largest), null);
+    .reduce<SwitchingSteps['worst']>(
+      (largest, step) =>
+        largest === null || Math.abs(step.largestChangePercent) > Math.abs(largest.changePercent)
+          ? { unit: step.unit, bus: step.largestAtBus, changePercent: step.largestChangePercent }
+          : largest,
+      null,
+    );
   return assertFiniteResult('switchingSteps', { case: state.label, solved: true, reason: null, stepLimitPercent, steps, worst });
 }
 
@@ -157,9 +182,26 @@ function stepFor(
   const unitMvar = (unit.susceptanceS * (beforeKv * 1e3) ** 2) / 1e6;
   // Switching a unit in adds its output to the bus; switching it out removes it.
   const estimatedChangePercent = shortCircuitMva > 0 ? ((wasInService ? -unitMvar : unitMvar) / shortCircuitMva) * 100 : 0;
-  const common = { unit: unit.name, bus: bus.name, kind: unit.kind, operation: wasInService ? ('switch-out' as const) : ('switch-in' as const), unitMvar, shortCircuitMva, estimatedChangePercent };
+  const common = {
+    unit: unit.name,
+    bus: bus.name,
+    kind: unit.kind,
+    operation: wasInService ? ('switch-out' as const) : ('switch-in' as const),
+    unitMvar,
+    shortCircuitMva,
+    estimatedChangePercent,
+  };
   if (!after.solved) {
-    return { ...common, solved: false, reason: after.reason, changePercent: 0, changes: [], largestChangePercent: 0, largestAtBus: bus.name, withinLimit: false };
+    return {
+      ...common,
+      solved: false,
+      reason: after.reason,
+      changePercent: 0,
+      changes: [],
+      largestChangePercent: 0,
+      largestAtBus: bus.name,
+      withinLimit: false,
+    };
   }
   const changes = before.buses.map((entry, index) => {
     const afterKv = after.buses[index]!.voltageKv;

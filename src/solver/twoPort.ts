@@ -1,12 +1,6 @@
 // Two-port (ABCD) algebra: the plain-data two-port types, cascading, and the reciprocity check AD - BC = 1.
 import { Complex, toPlain, requireComplex, type ComplexValue } from './complex.ts';
-import {
-  SolverDomainError,
-  assertFiniteResult,
-  optionalNumber,
-  requireArray,
-  requireObject,
-} from './errors.ts';
+import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireObject } from './errors.ts';
 
 export type LineModelName = 'distributed' | 'nominal-pi' | 'short';
 
@@ -91,8 +85,7 @@ export interface AbcdMatrix {
   D: Complex;
 }
 
-const TWO_PORT_HINT =
-  'Pass a two-port built by the solver (lineModel, seriesCapacitor, shuntReactor, sourceEquivalent, cascade, ...).';
+const TWO_PORT_HINT = 'Pass a two-port built by the solver (lineModel, seriesCapacitor, shuntReactor, sourceEquivalent, cascade, ...).';
 
 export function abcdOf(twoPort: TwoPortCore): AbcdMatrix {
   return {
@@ -230,7 +223,13 @@ function requireProductOfElements(network: CascadeTwoPort, tolerance: number): v
 export function checkReciprocity(options: { network: TwoPort; tolerance?: number }): ReciprocityCheck {
   const record = requireObject('options', options, 'Pass { network, tolerance? }.');
   const network = readTwoPort('network', record.network);
-  const tolerance = optionalNumber('tolerance', record.tolerance, 1e-9, { min: 0, max: 0.1, minInclusive: false }, 'A small positive number such as 1e-9.');
+  const tolerance = optionalNumber(
+    'tolerance',
+    record.tolerance,
+    1e-9,
+    { min: 0, max: 0.1, minInclusive: false },
+    'A small positive number such as 1e-9.',
+  );
   const elements = elementsOf(network);
   const candidates: Array<{ where: string; twoPort: TwoPortCore }> = elements.map((element, index) => ({
     where: `element ${index} ('${labelOf(element)}', ${element.kind})`,

@@ -109,22 +109,48 @@ export function varistorEnergy(options: VaristorEnergyOptions): VaristorEnergy {
   const protectiveLevelKvPeak =
     record.protectiveLevelKvPeak !== undefined
       ? requireNumber('protectiveLevelKvPeak', record.protectiveLevelKvPeak, { min: 0, max: 1e4, minInclusive: false, unit: 'kV' }, HINT)
-      : (requireNumber('protectiveLevelPu', record.protectiveLevelPu, { min: 1, max: 5, unit: 'pu' }, 'Multiple of the rated peak capacitor voltage, 2.0 to 2.5 in common practice.') *
+      : (requireNumber(
+          'protectiveLevelPu',
+          record.protectiveLevelPu,
+          { min: 1, max: 5, unit: 'pu' },
+          'Multiple of the rated peak capacitor voltage, 2.0 to 2.5 in common practice.',
+        ) *
           Math.SQRT2 *
           requireNumber('ratedCurrentA', record.ratedCurrentA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, HINT) *
           xcOhm) /
         1e3;
   const protectiveLevelCurrentA = (protectiveLevelKvPeak * 1e3) / (Math.SQRT2 * xcOhm);
-  const faultDurationMs = requireNumber('faultDurationMs', record.faultDurationMs, { min: 0, max: 10_000, minInclusive: false, unit: 'ms' }, 'Time the fault current flows through the bank (protection plus breaker time, longer for a back-up clearance).');
-  const capabilityMjPerPhase = requireNumber('capabilityMjPerPhase', record.capabilityMjPerPhase, { min: 0, max: 1e4, minInclusive: false, unit: 'MJ' }, HINT);
+  const faultDurationMs = requireNumber(
+    'faultDurationMs',
+    record.faultDurationMs,
+    { min: 0, max: 10_000, minInclusive: false, unit: 'ms' },
+    'Time the fault current flows through the bank (protection plus breaker time, longer for a back-up clearance).',
+  );
+  const capabilityMjPerPhase = requireNumber(
+    'capabilityMjPerPhase',
+    record.capabilityMjPerPhase,
+    { min: 0, max: 1e4, minInclusive: false, unit: 'MJ' },
+    HINT,
+  );
   const faultLocation = requireChoice('faultLocation', record.faultLocation, ['internal', 'external'] as const, HINT);
   let faultCurrentA: number;
   if (record.faultCurrentA !== undefined) {
-    faultCurrentA = requireNumber('faultCurrentA', record.faultCurrentA, { min: 0, max: MAXIMUM_RATIO_PU * protectiveLevelCurrentA, minInclusive: false, unit: 'A' }, `The linearised model is used up to ${MAXIMUM_RATIO_PU} times the protective-level current (${forMessage(protectiveLevelCurrentA)} A).`);
+    faultCurrentA = requireNumber(
+      'faultCurrentA',
+      record.faultCurrentA,
+      { min: 0, max: MAXIMUM_RATIO_PU * protectiveLevelCurrentA, minInclusive: false, unit: 'A' },
+      `The linearised model is used up to ${MAXIMUM_RATIO_PU} times the protective-level current (${forMessage(protectiveLevelCurrentA)} A).`,
+    );
   } else {
     const circuit = requireObject('faultCircuit', record.faultCircuit, HINT);
-    const sourcePhaseV = phaseVoltsFromLineKv(requireNumber('faultCircuit.sourceVoltageKv', circuit.sourceVoltageKv, { min: 0, max: 2000, minInclusive: false, unit: 'kV' }, HINT));
-    const loop = requireComplex('faultCircuit.impedanceOhm', circuit.impedanceOhm, 'Loop impedance from the source EMF to the fault, excluding the bank, as { re, im }.');
+    const sourcePhaseV = phaseVoltsFromLineKv(
+      requireNumber('faultCircuit.sourceVoltageKv', circuit.sourceVoltageKv, { min: 0, max: 2000, minInclusive: false, unit: 'kV' }, HINT),
+    );
+    const loop = requireComplex(
+      'faultCircuit.impedanceOhm',
+      circuit.impedanceOhm,
+      'Loop impedance from the source EMF to the fault, excluding the bank, as { re, im }.',
+    );
     faultCurrentA = solveFaultCurrentA(sourcePhaseV, loop, xcOhm, protectiveLevelCurrentA);
   }
   const currentRatioPu = faultCurrentA / protectiveLevelCurrentA;
@@ -147,10 +173,14 @@ export function varistorEnergy(options: VaristorEnergyOptions): VaristorEnergy {
       : `The varistor absorbs ${energyMj.toFixed(2)} MJ per phase in ${faultDurationMs} ms, within its capability of ${capabilityMjPerPhase} MJ: no bypass is needed for this fault.`;
   const warnings: string[] = [];
   if (bypassNeeded && faultLocation === 'external') {
-    warnings.push('An external fault would bypass the bank, removing the compensation when the system most needs it (common practice is to ride through external faults on the varistor): consider a larger varistor.');
+    warnings.push(
+      'An external fault would bypass the bank, removing the compensation when the system most needs it (common practice is to ride through external faults on the varistor): consider a larger varistor.',
+    );
   }
   if (currentRatioPu > CONDUCTION_THRESHOLD_PU) {
-    warnings.push('The linearised model is fundamental-frequency only: the first-cycle offset and reinsertion after clearing add energy; confirm the duty with a time-domain study.');
+    warnings.push(
+      'The linearised model is fundamental-frequency only: the first-cycle offset and reinsertion after clearing add energy; confirm the duty with a time-domain study.',
+    );
   }
   return assertFiniteResult('varistorEnergy', {
     model: 'Goldsworthy (linearised, fundamental frequency)' as const,

@@ -120,7 +120,12 @@ function readOneInput(reader: FieldReader, name: string, node: YamlNode | null, 
   }
   const rangeProblem = outOfRange(spec, given.quantity);
   if (rangeProblem) {
-    reader.diagnostics.push({ code: 'input-out-of-range', message: `${where} = ${given.text} ${rangeProblem}`, at: problemAt(valueNode), hint: 'correct the value, or widen min/max if the study really covers it' });
+    reader.diagnostics.push({
+      code: 'input-out-of-range',
+      message: `${where} = ${given.text} ${rangeProblem}`,
+      at: problemAt(valueNode),
+      hint: 'correct the value, or widen min/max if the study really covers it',
+    });
     return undefined;
   }
   return spec;

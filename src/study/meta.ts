@@ -31,7 +31,12 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
   }
   const revision = readNumber(reader, root, 'revision', 'the front matter', { min: 0, max: 9999, integer: true });
   if (nodeOf(root, 'revision') === undefined) {
-    diagnostics.push({ code: 'front-matter-missing-key', message: 'the front matter has no "revision"', at: place.at(root), hint: 'add "revision: 0" for a first issue' });
+    diagnostics.push({
+      code: 'front-matter-missing-key',
+      message: 'the front matter has no "revision"',
+      at: place.at(root),
+      hint: 'add "revision: 0" for a first issue',
+    });
   }
   const date = readString(reader, root, 'date', 'the front matter', true);
   if (date !== undefined && !isIsoDate(date)) {
@@ -61,13 +66,23 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
     const pdf = reportMap.get('pdf');
     if (pdf !== undefined) {
       if (typeof pdf !== 'boolean') {
-        diagnostics.push({ code: 'front-matter-type', message: '"pdf" in "report" must be true or false', at: place.at(nodeOf(reportMap, 'pdf')), hint: 'write "pdf: true"' });
+        diagnostics.push({
+          code: 'front-matter-type',
+          message: '"pdf" in "report" must be true or false',
+          at: place.at(nodeOf(reportMap, 'pdf')),
+          hint: 'write "pdf: true"',
+        });
       } else report.pdf = pdf;
     }
     const paper = readString(reader, reportMap, 'paper', '"report"', false);
     if (paper !== undefined) {
       if (paper !== 'A4' && paper !== 'Letter') {
-        diagnostics.push({ code: 'front-matter-range', message: `paper "${paper}" is not supported`, at: place.at(nodeOf(reportMap, 'paper')), hint: 'use A4 or Letter' });
+        diagnostics.push({
+          code: 'front-matter-range',
+          message: `paper "${paper}" is not supported`,
+          at: place.at(nodeOf(reportMap, 'paper')),
+          hint: 'use A4 or Letter',
+        });
       } else report.paper = paper;
     }
   }

@@ -21,21 +21,25 @@ export function parseStudy(file: string, source: string): Study {
   const diagnostics: Diagnostic[] = [];
   const lines = source.split('\n');
   if (!FENCE_LINE.test(lines[0] ?? '')) {
-    throw new StudyFailure([{
-      code: 'front-matter-missing',
-      message: 'the study must start with YAML front matter between two "---" lines',
-      at: { file, line: 1, column: 1 },
-      hint: 'begin the file with ---, the title, id, revision, date, engineer and inputs, then --- (see `kvarbook new blank`)',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'front-matter-missing',
+        message: 'the study must start with YAML front matter between two "---" lines',
+        at: { file, line: 1, column: 1 },
+        hint: 'begin the file with ---, the title, id, revision, date, engineer and inputs, then --- (see `kvarbook new blank`)',
+      },
+    ]);
   }
   const closing = lines.findIndex((line, index) => index > 0 && FENCE_LINE.test(line));
   if (closing < 0) {
-    throw new StudyFailure([{
-      code: 'front-matter-unclosed',
-      message: 'the front matter is never closed with a "---" line',
-      at: { file, line: 1, column: 1 },
-      hint: 'add a line with only --- after the last front-matter key',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'front-matter-unclosed',
+        message: 'the front matter is never closed with a "---" line',
+        at: { file, line: 1, column: 1 },
+        hint: 'add a line with only --- after the last front-matter key',
+      },
+    ]);
   }
   const yamlText = lines.slice(1, closing).join('\n');
   const yamlFirstLine = 2;
@@ -62,12 +66,14 @@ export function parseStudy(file: string, source: string): Study {
   }
   if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
   if (!isMap(document.contents)) {
-    throw new StudyFailure([{
-      code: 'front-matter-shape',
-      message: 'the front matter must be a YAML mapping of keys to values',
-      at: { file, line: yamlFirstLine },
-      hint: 'write one key per line, e.g. "title: Reactive compensation of ..."',
-    }]);
+    throw new StudyFailure([
+      {
+        code: 'front-matter-shape',
+        message: 'the front matter must be a YAML mapping of keys to values',
+        at: { file, line: yamlFirstLine },
+        hint: 'write one key per line, e.g. "title: Reactive compensation of ..."',
+      },
+    ]);
   }
 
   const meta = readMeta(document as Document.Parsed, place, diagnostics);
@@ -143,7 +149,8 @@ function collectBlocksAndInlines(
         }
         if (child.type !== INLINE_VALUE_TOKEN) continue;
         const offset = (child.meta as { offset: number }).offset;
-        for (let index = token.content.indexOf('\n', countedTo); index >= 0 && index < offset; index = token.content.indexOf('\n', index + 1)) lineInParagraph += 1;
+        for (let index = token.content.indexOf('\n', countedTo); index >= 0 && index < offset; index = token.content.indexOf('\n', index + 1))
+          lineInParagraph += 1;
         countedTo = Math.max(countedTo, offset);
         const line = paragraphLine + lineInParagraph;
         const lineText = lines[line - 1] ?? '';
@@ -223,4 +230,3 @@ function checkFenceClosed(
     });
   }
 }
-

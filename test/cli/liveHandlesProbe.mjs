@@ -18,15 +18,15 @@ if (isMainThread) {
     },
   }).enable();
   const holdingTimers = () =>
-    [...timers]
-      .filter((timer) => !timer._destroyed && timer._idleTimeout >= HOLDING_TIMER_MS && timer.hasRef())
-      .map((timer) => timer._idleTimeout);
+    [...timers].filter((timer) => !timer._destroyed && timer._idleTimeout >= HOLDING_TIMER_MS && timer.hasRef()).map((timer) => timer._idleTimeout);
   const write = process.stdout.write.bind(process.stdout);
   process.stdout.write = (chunk, ...rest) => {
     const written = write(chunk, ...rest);
     // setImmediate runs after every pending promise reaction: the command's return is complete by then.
     if (String(chunk).startsWith('pdf: ')) {
-      setImmediate(() => writeSync(2, `${PROBE_PREFIX}${JSON.stringify({ resources: process.getActiveResourcesInfo(), holdingTimersMs: holdingTimers() })}\n`));
+      setImmediate(() =>
+        writeSync(2, `${PROBE_PREFIX}${JSON.stringify({ resources: process.getActiveResourcesInfo(), holdingTimersMs: holdingTimers() })}\n`),
+      );
     }
     return written;
   };

@@ -52,7 +52,9 @@ describe('kvarbook on the command line', () => {
   it('says in one line how to install Chromium when --pdf cannot find it, and still writes the HTML', () => {
     const folder = scratchFolder();
     writeFileSync(join(folder, 'line.study.md'), goodStudy);
-    const { status, stderr } = kvarbook(['run', 'line.study.md', '--pdf', '--no-typecheck'], folder, { KVARBOOK_CHROMIUM: join(folder, 'no-such-chromium') });
+    const { status, stderr } = kvarbook(['run', 'line.study.md', '--pdf', '--no-typecheck'], folder, {
+      KVARBOOK_CHROMIUM: join(folder, 'no-such-chromium'),
+    });
     expect(status).toBe(1);
     expect(stderr.trim().split('\n')[0]).toMatch(/apt-get install -y chromium/);
     expect(existsSync(join(folder, 'build/TEST-1-r1.html'))).toBe(true);

@@ -33,7 +33,13 @@ describe('sealing and checking from the command line', () => {
   });
 
   it('writes the sealed report, its seal file and a PDF, and the check verifies them', () => {
-    expect(readdirSync(join(space.folder, 'build')).sort()).toEqual(['.kvarbook', 'TEST-1-r1.html', 'TEST-1-r1.pdf', 'TEST-1-r1.results.json', 'TEST-1-r1.seal.json']);
+    expect(readdirSync(join(space.folder, 'build')).sort()).toEqual([
+      '.kvarbook',
+      'TEST-1-r1.html',
+      'TEST-1-r1.pdf',
+      'TEST-1-r1.results.json',
+      'TEST-1-r1.seal.json',
+    ]);
     const check = kvarbook(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
     expect(check.stdout).toContain('verdict: VERIFIED');
     expect(check.status).toBe(0);
@@ -94,8 +100,17 @@ describe('sealing and checking from the command line', () => {
 
   it("counter-signs a verified report with the checker's key: a check record and a report showing both signatures", () => {
     const checkerKeys = join(space.folder, 'checker-keys');
-    expect(kvarbook(['key', 'new', '--name', 'Second Checker', '--licence', 'C-2', '--jurisdiction', 'Testland', '--keys', checkerKeys], space.folder, space.env).status).toBe(0);
-    expect(kvarbook(['key', 'show', '--keys', checkerKeys, '--out', join(space.folder, 'home', 'trusted', 'checker.json')], space.folder, space.env).status).toBe(0);
+    expect(
+      kvarbook(
+        ['key', 'new', '--name', 'Second Checker', '--licence', 'C-2', '--jurisdiction', 'Testland', '--keys', checkerKeys],
+        space.folder,
+        space.env,
+      ).status,
+    ).toBe(0);
+    expect(
+      kvarbook(['key', 'show', '--keys', checkerKeys, '--out', join(space.folder, 'home', 'trusted', 'checker.json')], space.folder, space.env)
+        .status,
+    ).toBe(0);
     const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign', '--keys', checkerKeys], space.folder, space.env);
     expect(signed.status).toBe(0);
     const checked = readFileSync(join(space.folder, 'build/TEST-1-r1.checked.html'), 'utf8');
@@ -117,8 +132,12 @@ describe('sealing and checking from the command line', () => {
   it('never writes private key material into any output file', () => {
     const keysFolder = join(space.folder, 'home', 'keys');
     const keyFile = readdirSync(keysFolder).find((name) => name.endsWith('.key.pem'))!;
-    const pemLines = readFileSync(join(keysFolder, keyFile), 'utf8').split('\n').filter((line) => line && !line.startsWith('-----'));
-    const outputs = readdirSync(join(space.folder, 'build')).filter((name) => name.startsWith('TEST-1-r1.') && existsSync(join(space.folder, 'build', name)));
+    const pemLines = readFileSync(join(keysFolder, keyFile), 'utf8')
+      .split('\n')
+      .filter((line) => line && !line.startsWith('-----'));
+    const outputs = readdirSync(join(space.folder, 'build')).filter(
+      (name) => name.startsWith('TEST-1-r1.') && existsSync(join(space.folder, 'build', name)),
+    );
     for (const name of outputs) {
       const content = readFileSync(join(space.folder, 'build', name)).toString('latin1');
       expect(content).not.toMatch(/PRIVATE KEY/);

@@ -12,7 +12,10 @@ describe('the README examples', () => {
   });
 
   it.each(examples.map((code, index) => [index + 1, code]))('example %i type-checks and runs as a calculation block', async (_index, code) => {
-    const source = studyText({ inputs: '  lineLength: { value: 380 km, quantity: length }\n  nominalVoltage: { value: 400 kV, quantity: voltage }', body: `\`\`\`ts\n${code}\`\`\`\n` });
+    const source = studyText({
+      inputs: '  lineLength: { value: 380 km, quantity: length }\n  nominalVoltage: { value: 400 kV, quantity: voltage }',
+      body: `\`\`\`ts\n${code}\`\`\`\n`,
+    });
     const product = await runSource(source, { typecheck: true });
     expect(product.results.provenance.typeChecked).toBe(true);
   });

@@ -6,7 +6,11 @@ const fence = (code: string, options = '') => `\`\`\`ts${options ? ` ${options}`
 describe('running calculation blocks', () => {
   it('runs blocks in document order in one shared scope', async () => {
     const source = studyText({
-      body: [fence('const base = 2;'), fence('function doubled(x: number) { return 2 * x; }\nlet counter = base;'), fence('counter += 1;\nresult("shared", doubled(base) + counter);')].join('\n\n'),
+      body: [
+        fence('const base = 2;'),
+        fence('function doubled(x: number) { return 2 * x; }\nlet counter = base;'),
+        fence('counter += 1;\nresult("shared", doubled(base) + counter);'),
+      ].join('\n\n'),
     });
     const product = await runSource(source);
     expect(product.results.results.map((r) => [r.name, r.value])).toEqual([['shared', 7]]);
@@ -109,13 +113,21 @@ describe('figures a block records', () => {
   });
 
   it('records a criterion as met or not met against its limits', async () => {
-    const source = studyText({ body: fence('criterion("inside", 1.02, { min: 0.95, max: 1.05, unit: "pu" });\ncriterion("above", 1.09, { max: 1.05, unit: "pu" });') });
+    const source = studyText({
+      body: fence('criterion("inside", 1.02, { min: 0.95, max: 1.05, unit: "pu" });\ncriterion("above", 1.09, { max: 1.05, unit: "pu" });'),
+    });
     const product = await runSource(source);
-    expect(product.results.criteria.map((c) => [c.name, c.passed])).toEqual([['inside', true], ['above', false]]);
+    expect(product.results.criteria.map((c) => [c.name, c.passed])).toEqual([
+      ['inside', true],
+      ['above', false],
+    ]);
   });
 
   it('reads an input in the unit the block asks for', async () => {
-    const source = studyText({ inputs: '  nominalVoltage: 400 kV', body: fence('result("volts", inputs.nominalVoltage.in("V"));\nresult("si", inputs.nominalVoltage.si);') });
+    const source = studyText({
+      inputs: '  nominalVoltage: 400 kV',
+      body: fence('result("volts", inputs.nominalVoltage.in("V"));\nresult("si", inputs.nominalVoltage.si);'),
+    });
     const product = await runSource(source);
     expect(product.results.results.map((r) => r.value)).toEqual([400_000, 400_000]);
   });
@@ -136,7 +148,9 @@ describe('figures a block records', () => {
 
 describe('inline values', () => {
   it('splices a value computed by the blocks above into the prose, with its unit', async () => {
-    const source = studyText({ body: `${fence('const chargingMvar = 123.456;')}\n\nCharging is {{ figure(chargingMvar, 'Mvar', 3) }} and twice {{ chargingMvar * 2 }}.` });
+    const source = studyText({
+      body: `${fence('const chargingMvar = 123.456;')}\n\nCharging is {{ figure(chargingMvar, 'Mvar', 3) }} and twice {{ chargingMvar * 2 }}.`,
+    });
     const product = await runSource(source);
     expect([...product.run.outcome.inlineTexts.values()]).toEqual(['123 Mvar', '246.9']);
     expect(product.report.body).toContain('<span class="value">123 Mvar</span>');
@@ -170,14 +184,19 @@ describe('type checking', () => {
   });
 
   it('accepts a well-typed study', async () => {
-    const source = studyText({ inputs: '  lineLength: 320 km', body: fence('const a = inputs.lineLength.in("km");\nresult("a", a, { unit: "km" });') });
+    const source = studyText({
+      inputs: '  lineLength: 320 km',
+      body: fence('const a = inputs.lineLength.in("km");\nresult("a", a, { unit: "km" });'),
+    });
     expect((await runSource(source, { typecheck: true })).results.results).toHaveLength(1);
   });
 });
 
 describe('inline values', () => {
   it('strips the types of every inline value and shows each one', async () => {
-    const source = studyText({ body: `${fence("const lengthKm = 380;\nconst names = ['a', 'b'];")}\n\nLength {{ lengthKm as number }} km, {{ names.length }} names, {{ \`\${lengthKm}\` }}.` });
+    const source = studyText({
+      body: `${fence("const lengthKm = 380;\nconst names = ['a', 'b'];")}\n\nLength {{ lengthKm as number }} km, {{ names.length }} names, {{ \`\${lengthKm}\` }}.`,
+    });
     expect([...(await runSource(source)).run.outcome.inlineTexts.values()]).toEqual(['380.0', '2.000', '380']);
   });
 

@@ -44,7 +44,12 @@ describe('a limited worker', () => {
   it("hands back a thrown error's name, message and fields as plain data", async () => {
     const error = await failureOf('refuseWithDetails', undefined);
     expect(error).toBeInstanceOf(WorkerCallError);
-    expect((error as WorkerCallError).thrown).toMatchObject({ name: 'Error', message: 'refused on purpose', code: 'TEST_REFUSAL', quantity: 'layer.0.mark' });
+    expect((error as WorkerCallError).thrown).toMatchObject({
+      name: 'Error',
+      message: 'refused on purpose',
+      code: 'TEST_REFUSAL',
+      quantity: 'layer.0.mark',
+    });
   });
 
   it('hands back a rejection as a thrown error', async () => {

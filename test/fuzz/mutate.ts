@@ -12,10 +12,49 @@ import { SEED_STUDIES } from './seedStudies.ts';
 
 /** Text dropped into a study: fence and front-matter markers, braces, numbers a solver chokes on, awkward unicode. */
 export const INSERTIONS = [
-  '```', '```ts', '```ts no-run', '~~~ts', '---', '{{', '}}', '{{ }}', '{{ nothing }}', '{', '}', '(', ')', ';', ':', '"', "'", '`',
-  'NaN', 'Infinity', '-Infinity', '1e308', '-1e309', '0 / 0', '9'.repeat(400), '-0',
-  '\u202e', '\ufeff', '\u00a0', '\u2028', '💥', 'Ω', '\t', '\\', '\r',
-  'value:', '  - x', 'inputs:', 'limits: { blockSeconds: 0 }', '__proto__:', 'constructor', 'result("x", 1);', 'const inputs = 1;',
+  '```',
+  '```ts',
+  '```ts no-run',
+  '~~~ts',
+  '---',
+  '{{',
+  '}}',
+  '{{ }}',
+  '{{ nothing }}',
+  '{',
+  '}',
+  '(',
+  ')',
+  ';',
+  ':',
+  '"',
+  "'",
+  '`',
+  'NaN',
+  'Infinity',
+  '-Infinity',
+  '1e308',
+  '-1e309',
+  '0 / 0',
+  '9'.repeat(400),
+  '-0',
+  '\u202e',
+  '\ufeff',
+  '\u00a0',
+  '\u2028',
+  '💥',
+  'Ω',
+  '\t',
+  '\\',
+  '\r',
+  'value:',
+  '  - x',
+  'inputs:',
+  'limits: { blockSeconds: 0 }',
+  '__proto__:',
+  'constructor',
+  'result("x", 1);',
+  'const inputs = 1;',
 ] as const;
 
 export type Mutation =
@@ -33,10 +72,18 @@ export const mutationArbitrary: fc.Arbitrary<Mutation> = fc.oneof(
   fc.record({ kind: fc.constant('delete-line' as const), at: position }),
   fc.record({ kind: fc.constant('duplicate-line' as const), at: position }),
   fc.record({ kind: fc.constant('swap-lines' as const), at: position, other: position }),
-  fc.record({ kind: fc.constant('flip-character' as const), at: position, replacement: fc.oneof(fc.constantFrom(...INSERTIONS), fc.string({ minLength: 1, maxLength: 1, unit: 'binary' })) }),
+  fc.record({
+    kind: fc.constant('flip-character' as const),
+    at: position,
+    replacement: fc.oneof(fc.constantFrom(...INSERTIONS), fc.string({ minLength: 1, maxLength: 1, unit: 'binary' })),
+  }),
   fc.record({ kind: fc.constant('truncate' as const), at: position }),
   fc.record({ kind: fc.constant('insert' as const), at: position, text: fc.constantFrom(...INSERTIONS) }),
-  fc.record({ kind: fc.constant('damage-front-matter' as const), at: position, damage: fc.constantFrom('drop-colon' as const, 'indent' as const, 'unindent' as const, 'quote' as const) }),
+  fc.record({
+    kind: fc.constant('damage-front-matter' as const),
+    at: position,
+    damage: fc.constantFrom('drop-colon' as const, 'indent' as const, 'unindent' as const, 'quote' as const),
+  }),
 );
 
 export interface Mutant {
@@ -108,8 +155,10 @@ export function diagnosticFlaw(diagnostic: Diagnostic, source: string): string |
   // Every problem a study run finds lies in the study, so every one must say where.
   if (!diagnostic.at) return 'no location';
   const lineCount = source.split('\n').length;
-  if (!Number.isInteger(diagnostic.at.line) || diagnostic.at.line < 1 || diagnostic.at.line > lineCount + 1) return `line ${diagnostic.at.line} outside 1..${lineCount}`;
-  if (diagnostic.at.column !== undefined && (!Number.isInteger(diagnostic.at.column) || diagnostic.at.column < 1)) return `column ${diagnostic.at.column}`;
+  if (!Number.isInteger(diagnostic.at.line) || diagnostic.at.line < 1 || diagnostic.at.line > lineCount + 1)
+    return `line ${diagnostic.at.line} outside 1..${lineCount}`;
+  if (diagnostic.at.column !== undefined && (!Number.isInteger(diagnostic.at.column) || diagnostic.at.column < 1))
+    return `column ${diagnostic.at.column}`;
   return undefined;
 }
 
@@ -120,7 +169,9 @@ export async function judge(source: string, stage: () => unknown): Promise<Verdi
     return { outcome: 'ok' };
   } catch (error) {
     if (!(error instanceof StudyFailure)) {
-      throw new Error(`a stage threw ${(error as Error)?.name ?? typeof error} instead of a StudyFailure: ${(error as Error)?.message}`, { cause: error });
+      throw new Error(`a stage threw ${(error as Error)?.name ?? typeof error} instead of a StudyFailure: ${(error as Error)?.message}`, {
+        cause: error,
+      });
     }
     if (error.diagnostics.length === 0) throw new Error('a StudyFailure without diagnostics');
     for (const diagnostic of error.diagnostics) {

@@ -33,7 +33,10 @@ describe('mutated studies', () => {
     for (const mutant of mutants) {
       const source = mutantSource(mutant);
       writeFileSync(file, source);
-      await expect(judge(source, () => fullStages(file, source)), JSON.stringify(mutant)).resolves.toBeDefined();
+      await expect(
+        judge(source, () => fullStages(file, source)),
+        JSON.stringify(mutant),
+      ).resolves.toBeDefined();
     }
   }, 120_000);
 

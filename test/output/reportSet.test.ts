@@ -8,7 +8,11 @@ import { PendingSet, currentSet, openReportFolder, type ReportFolder } from '../
 const notSealed = async () => false;
 
 async function folder(): Promise<ReportFolder> {
-  const report: ReportFolder = { out: join(mkdtempSync(join(tmpdir(), 'kvarbook-set-')), 'build'), base: 'A-r1', names: ['A-r1.html', 'A-r1.json', 'A-r1.pdf'] };
+  const report: ReportFolder = {
+    out: join(mkdtempSync(join(tmpdir(), 'kvarbook-set-')), 'build'),
+    base: 'A-r1',
+    names: ['A-r1.html', 'A-r1.json', 'A-r1.pdf'],
+  };
   await openReportFolder(report, notSealed);
   return report;
 }

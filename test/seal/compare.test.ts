@@ -44,7 +44,9 @@ describe('compareResults', () => {
   it('honours a per-result tolerance tighter than the default', () => {
     // A 1e-12 relative move (1.5e-10 Mvar) passes the default 1e-9 and clears the 1e-12 near-zero floor.
     const exact: SealedResult[] = [{ name: 'reactorRatingMvar', value: 150, tolerance: 0 }];
-    expect(compareResults([{ name: 'reactorRatingMvar', value: 150 }], [{ name: 'reactorRatingMvar', value: 150 * (1 + 1e-12) }]).mismatches).toEqual([]);
+    expect(compareResults([{ name: 'reactorRatingMvar', value: 150 }], [{ name: 'reactorRatingMvar', value: 150 * (1 + 1e-12) }]).mismatches).toEqual(
+      [],
+    );
     const moved = compareResults(exact, [{ name: 'reactorRatingMvar', value: 150 * (1 + 1e-12) }]);
     expect(moved.mismatches[0]).toMatchObject({ name: 'reactorRatingMvar', tolerance: 0 });
   });

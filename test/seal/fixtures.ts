@@ -83,14 +83,7 @@ export function privateKeySpellings(signer: TestSigner): string[] {
   const rawBase64Url = signer.privateKey.export({ format: 'jwk' }).d!;
   const raw = Buffer.from(rawBase64Url, 'base64url');
   const pemBody = signer.encryptedPrivateKeyPem.split('\n').filter((line) => line !== '' && !line.startsWith('-----'));
-  return [
-    pkcs8Der.toString('base64'),
-    pkcs8Der.toString('hex'),
-    raw.toString('base64'),
-    raw.toString('base64url'),
-    raw.toString('hex'),
-    ...pemBody,
-  ];
+  return [pkcs8Der.toString('base64'), pkcs8Der.toString('hex'), raw.toString('base64'), raw.toString('base64url'), raw.toString('hex'), ...pemBody];
 }
 
 export type { PublicIdentity };

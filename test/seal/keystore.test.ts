@@ -3,15 +3,7 @@ import { readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { shortFingerprint } from '../../src/seal/keys.ts';
-import {
-  exportIdentity,
-  listKeys,
-  loadDefaultKey,
-  loadKeyByFingerprint,
-  saveKey,
-  setDefaultKey,
-  unlockStoredKey,
-} from '../../src/seal/keystore.ts';
+import { exportIdentity, listKeys, loadDefaultKey, loadKeyByFingerprint, saveKey, setDefaultKey, unlockStoredKey } from '../../src/seal/keystore.ts';
 import { ENGINEER_PASSPHRASE, freshTempDir, makeSigner, privateKeySpellings, sealErrorOf } from './fixtures.ts';
 
 const permissionBits = (path: string): number => statSync(path).mode & 0o777;
@@ -103,7 +95,11 @@ describe('finding stored keys', () => {
     const dir = freshTempDir('list');
     saveKey(dir, makeSigner('Ilse Marrow', 'PE-40217'));
     saveKey(dir, makeSigner('Tomas Reede', 'PE-51130'));
-    expect(listKeys(dir).map((stored) => stored.identity.name).sort()).toEqual(['Ilse Marrow', 'Tomas Reede']);
+    expect(
+      listKeys(dir)
+        .map((stored) => stored.identity.name)
+        .sort(),
+    ).toEqual(['Ilse Marrow', 'Tomas Reede']);
   });
 });
 
@@ -129,8 +125,13 @@ describe('exportIdentity', () => {
   it('writes only the public identity members', () => {
     const signer = makeSigner('Ilse Marrow', 'PE-40217');
     const leaky = { ...signer.identity, encryptedPrivateKeyPem: signer.encryptedPrivateKeyPem };
-    expect(Object.keys(JSON.parse(exportIdentity(leaky))).sort()).toEqual(
-      ['fingerprint', 'format', 'jurisdiction', 'licence', 'name', 'publicKeyPem'],
-    );
+    expect(Object.keys(JSON.parse(exportIdentity(leaky))).sort()).toEqual([
+      'fingerprint',
+      'format',
+      'jurisdiction',
+      'licence',
+      'name',
+      'publicKeyPem',
+    ]);
   });
 });

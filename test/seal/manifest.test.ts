@@ -62,10 +62,13 @@ describe('signManifest and verifyEnvelope', () => {
     ['an effective input', (envelope) => (envelope.manifest.effectiveInputs['lineLengthKm']!.value = 311)],
     ['an input source', (envelope) => (envelope.manifest.effectiveInputs['lineLengthKm']!.source = 'default')],
     ['the study date', (envelope) => (envelope.manifest.studyDate = '2025-03-15')],
-    ['the signer name in both places', (envelope) => {
-      envelope.manifest.signer.name = 'Someone Else';
-      envelope.signer.name = 'Someone Else';
-    }],
+    [
+      'the signer name in both places',
+      (envelope) => {
+        envelope.manifest.signer.name = 'Someone Else';
+        envelope.signer.name = 'Someone Else';
+      },
+    ],
   ])('detects a changed %s as an invalid signature', (_field, tamper) => {
     const tampered = copyOf(sealSample());
     tamper(tampered);
@@ -108,10 +111,13 @@ describe('signManifest and verifyEnvelope', () => {
     ['null', null],
     ['a string', 'sealed!'],
     ['an empty object', {}],
-    ['an envelope without its signature', (() => {
-      const { signatureBase64: _dropped, ...rest } = sealSample();
-      return rest;
-    })()],
+    [
+      'an envelope without its signature',
+      (() => {
+        const { signatureBase64: _dropped, ...rest } = sealSample();
+        return rest;
+      })(),
+    ],
     ['an envelope of another format', { ...sealSample(), format: 'kvarbook-seal/2' }],
     ['an envelope with an extra member', { ...sealSample(), note: 'approved' }],
   ])('reports %s as a problem instead of throwing', (_label, envelope) => {

@@ -20,7 +20,13 @@ const source = studyText({
 async function sealedFixture() {
   // Sealing requires the type check, and check re-runs with it: the provenance records it.
   const product = await runSource(source, { typecheck: true });
-  const engineer = createSigningKey({ name: 'Test Engineer', licence: 'T-0', jurisdiction: 'Testland', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
+  const engineer = createSigningKey({
+    name: 'Test Engineer',
+    licence: 'T-0',
+    jurisdiction: 'Testland',
+    passphrase: PASSPHRASE,
+    scrypt: TEST_KEY_SCRYPT,
+  });
   const privateKey = unlockSigningKey(engineer.encryptedPrivateKeyPem, PASSPHRASE);
   const envelope = signManifest(buildManifest(sealSubject(product.results, reportBodySha256(product.report))), privateKey, engineer.identity);
   return { product, engineer, envelope, html: sealedReportHtml(product.report, envelope) };
@@ -36,7 +42,8 @@ function request(overrides: Partial<CheckRequest> = {}, trusted: PublicIdentity[
     trusted,
     defaultRelativeTolerance: 1e-9,
     environment: TEST_ENVIRONMENT,
-    rerun: (rerun) => runStudy({ file: rerun.studyFile, source: rerun.source, overrides: rerun.overrides, typecheck: true, environment: rerun.environment }),
+    rerun: (rerun) =>
+      runStudy({ file: rerun.studyFile, source: rerun.source, overrides: rerun.overrides, typecheck: true, environment: rerun.environment }),
     ...overrides,
   };
 }
@@ -59,7 +66,13 @@ describe('checking a sealed report', () => {
   });
 
   it('fails when the signer is not in the trust folder, saying the signature itself is valid', async () => {
-    const stranger = createSigningKey({ name: 'Someone Else', licence: 'X-1', jurisdiction: 'Elsewhere', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
+    const stranger = createSigningKey({
+      name: 'Someone Else',
+      licence: 'X-1',
+      jurisdiction: 'Elsewhere',
+      passphrase: PASSPHRASE,
+      scrypt: TEST_KEY_SCRYPT,
+    });
     const outcome = await checkSealedReport(request({ rerun: sameFigures }, [stranger.identity]));
     expect(outcome.verdict).toBe('failed');
     expect(outcome.steps[0]?.detail).toContain('valid signature');
@@ -88,7 +101,9 @@ describe('checking a sealed report', () => {
   });
 
   it('detects a study source that differs from the sealed one', async () => {
-    const outcome = await checkSealedReport(request({ source: source.replace('0.4 *', '0.41 *'), sourceOrigin: 'edited.study.md', rerun: sameFigures }));
+    const outcome = await checkSealedReport(
+      request({ source: source.replace('0.4 *', '0.41 *'), sourceOrigin: 'edited.study.md', rerun: sameFigures }),
+    );
     expect(outcome.steps.find((step) => step.name === 'study source')).toMatchObject({ passed: false });
     expect(outcome.verdict).toBe('failed');
   });
@@ -96,13 +111,14 @@ describe('checking a sealed report', () => {
   it('reports by name a figure that a changed calculation moves, with both values', async () => {
     const moved: RunProduct = {
       ...fixture.product,
-      results: { ...fixture.product.results, results: fixture.product.results.results.map((result) => (result.name === 'Charging' ? { ...result, value: 128.5 } : result)) },
+      results: {
+        ...fixture.product.results,
+        results: fixture.product.results.results.map((result) => (result.name === 'Charging' ? { ...result, value: 128.5 } : result)),
+      },
     };
     const outcome = await checkSealedReport(request({ rerun: async () => moved }));
     expect(outcome.verdict).toBe('failed');
-    expect(outcome.comparison?.mismatches).toEqual([
-      expect.objectContaining({ name: 'Charging', sealed: 128, rerun: 128.5, difference: 0.5 }),
-    ]);
+    expect(outcome.comparison?.mismatches).toEqual([expect.objectContaining({ name: 'Charging', sealed: 128, rerun: 128.5, difference: 0.5 })]);
   });
 
   it('re-runs with the input overrides that were sealed', async () => {
@@ -114,7 +130,10 @@ describe('checking a sealed report', () => {
   });
 
   it('fails, saying where, when the re-run renders another report body than the sealed one', async () => {
-    const otherBody: RunProduct = { ...fixture.product, report: { ...fixture.product.report, body: fixture.product.report.body.replace('Route length', 'Route lenght') } };
+    const otherBody: RunProduct = {
+      ...fixture.product,
+      report: { ...fixture.product.report, body: fixture.product.report.body.replace('Route length', 'Route lenght') },
+    };
     const outcome = await checkSealedReport(request({ rerun: async () => otherBody }));
     expect(outcome.steps.find((step) => step.name === 'report body')).toMatchObject({ passed: false });
     expect(outcome.bodyDifference?.sealed).toContain('Route length');
@@ -122,10 +141,22 @@ describe('checking a sealed report', () => {
     expect(outcome.verdict).toBe('failed');
   });
 
-  it('fails when a trusted key other than the named engineer\'s sealed the report', async () => {
-    const other = createSigningKey({ name: 'Other Engineer', licence: 'O-9', jurisdiction: 'Testland', passphrase: PASSPHRASE, scrypt: TEST_KEY_SCRYPT });
-    const envelope = signManifest(buildManifest(sealSubject(fixture.product.results, reportBodySha256(fixture.product.report))), unlockSigningKey(other.encryptedPrivateKeyPem, PASSPHRASE), other.identity);
-    const outcome = await checkSealedReport(request({ html: sealedReportHtml(fixture.product.report, envelope), rerun: sameFigures }, [fixture.engineer.identity, other.identity]));
+  it("fails when a trusted key other than the named engineer's sealed the report", async () => {
+    const other = createSigningKey({
+      name: 'Other Engineer',
+      licence: 'O-9',
+      jurisdiction: 'Testland',
+      passphrase: PASSPHRASE,
+      scrypt: TEST_KEY_SCRYPT,
+    });
+    const envelope = signManifest(
+      buildManifest(sealSubject(fixture.product.results, reportBodySha256(fixture.product.report))),
+      unlockSigningKey(other.encryptedPrivateKeyPem, PASSPHRASE),
+      other.identity,
+    );
+    const outcome = await checkSealedReport(
+      request({ html: sealedReportHtml(fixture.product.report, envelope), rerun: sameFigures }, [fixture.engineer.identity, other.identity]),
+    );
     expect(outcome.steps.find((step) => step.name === 'signature')).toMatchObject({ passed: true });
     expect(outcome.steps.find((step) => step.name === 'engineer')).toEqual({
       name: 'engineer',
@@ -142,7 +173,10 @@ describe('checking a sealed report', () => {
   });
 
   it('puts no private key material in the sealed report', () => {
-    const pemBody = fixture.engineer.encryptedPrivateKeyPem.split('\n').filter((line) => line && !line.startsWith('-----')).join('');
+    const pemBody = fixture.engineer.encryptedPrivateKeyPem
+      .split('\n')
+      .filter((line) => line && !line.startsWith('-----'))
+      .join('');
     const privateKey = unlockSigningKey(fixture.engineer.encryptedPrivateKeyPem, PASSPHRASE);
     const raw = createPrivateKey(privateKey.export({ format: 'pem', type: 'pkcs8' })).export({ format: 'jwk' }).d as string;
     expect(fixture.html).not.toContain(pemBody.slice(0, 40));

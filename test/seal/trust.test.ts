@@ -52,7 +52,11 @@ describe('loadTrustedIdentities', () => {
 
   it('reports a missing folder as a problem, not a crash', () => {
     const dir = join(freshTempDir('trust-missing'), 'absent');
-    expect(loadTrustedIdentities(dir)).toEqual({ folder: 'missing', identities: [], problems: [{ file: dir, problems: ['the trust folder does not exist'] }] });
+    expect(loadTrustedIdentities(dir)).toEqual({
+      folder: 'missing',
+      identities: [],
+      problems: [{ file: dir, problems: ['the trust folder does not exist'] }],
+    });
   });
 });
 

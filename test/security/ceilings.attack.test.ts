@@ -19,7 +19,14 @@ describe("the checker's ceilings bound what a study asks for", () => {
   it('stops a block that asked for an hour at the ceiling for one block', async () => {
     const source = studyText({ frontMatter: GREEDY, body: fence('for (;;) {}') });
     const [problem] = await diagnosticsOf(
-      runStudy({ file: 'greedy.study.md', source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT, ceilings: { ...DEFAULT_CEILINGS, blockSeconds: 1 } }),
+      runStudy({
+        file: 'greedy.study.md',
+        source,
+        overrides: [],
+        typecheck: false,
+        environment: TEST_ENVIRONMENT,
+        ceilings: { ...DEFAULT_CEILINGS, blockSeconds: 1 },
+      }),
     );
     expect(problem).toMatchObject({ code: 'time-limit', at: { line: lineOf(source, '```ts') } });
     expect(problem?.message).toContain('1 s per block');
@@ -28,9 +35,19 @@ describe("the checker's ceilings bound what a study asks for", () => {
   });
 
   it('starts the calculation process with the heap ceiling, not the 16 GB the study asks for', async () => {
-    const source = studyText({ frontMatter: GREEDY, body: fence('const hoard: number[][] = [];\nwhile (true) hoard.push(new Array(100_000).fill(1.5));') });
+    const source = studyText({
+      frontMatter: GREEDY,
+      body: fence('const hoard: number[][] = [];\nwhile (true) hoard.push(new Array(100_000).fill(1.5));'),
+    });
     const [problem] = await diagnosticsOf(
-      runStudy({ file: 'greedy.study.md', source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT, ceilings: { ...DEFAULT_CEILINGS, heapMb: 64, blockSeconds: 30 } }),
+      runStudy({
+        file: 'greedy.study.md',
+        source,
+        overrides: [],
+        typecheck: false,
+        environment: TEST_ENVIRONMENT,
+        ceilings: { ...DEFAULT_CEILINGS, heapMb: 64, blockSeconds: 30 },
+      }),
     );
     expect(problem?.code).toBe('memory-limit');
     expect(problem?.message).toContain('64 MB heap');
@@ -82,7 +99,8 @@ describe("the host's own stages stay bounded", () => {
   });
 
   it('stops a type the compiler would expand without end at the type check limits, and the host goes on', async () => {
-    const code = "type D = '0'|'1'|'2'|'3'|'4'|'5'|'6'|'7'|'8'|'9';\ntype A = `${D}${D}${D}${D}`;\ntype B = { [K in A]: { [J in A]: K } };\nconst x: B[A][A] = 1 as any as number;";
+    const code =
+      "type D = '0'|'1'|'2'|'3'|'4'|'5'|'6'|'7'|'8'|'9';\ntype A = `${D}${D}${D}${D}`;\ntype B = { [K in A]: { [J in A]: K } };\nconst x: B[A][A] = 1 as any as number;";
     const source = studyText({ body: fence(code) });
     const [problem] = await diagnosticsOf(typecheckStudy(parseStudy('types.study.md', source), { heapMb: 256, callSeconds: 60 }));
     expect(problem).toMatchObject({ code: 'typecheck-limit', at: { line: lineOf(source, '```ts') } });

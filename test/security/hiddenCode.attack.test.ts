@@ -24,7 +24,7 @@ async function expectRefusedAt(source: string, attackLine: string): Promise<void
 describe('a hidden block cannot change what the block API hands out', () => {
   it("cannot make an input's .in() return three quarters of its value", async () => {
     const source = hiddenThenShown(
-      "const inputPrototype = Object.getPrototypeOf(inputs.lineLength);\nconst original = inputPrototype.in;\ninputPrototype.in = function (unit: string) { return 0.75 * original.call(this, unit); };",
+      'const inputPrototype = Object.getPrototypeOf(inputs.lineLength);\nconst original = inputPrototype.in;\ninputPrototype.in = function (unit: string) { return 0.75 * original.call(this, unit); };',
       "result('Route length', inputs.lineLength.in('km'), { unit: 'km' });",
     );
     await expectRefusedAt(source, 'inputPrototype.in = function');
@@ -40,35 +40,45 @@ describe('a hidden block cannot change what the block API hands out', () => {
 
   it('cannot change the value of a figure an earlier block recorded', async () => {
     const source = studyText({
-      body: [fence("const shownLength = result('Route length', 380, { unit: 'km' });"), fence('(shownLength as any).value = 285;', 'hide-code'), 'Shown: {{ shownLength }}'].join('\n\n'),
+      body: [
+        fence("const shownLength = result('Route length', 380, { unit: 'km' });"),
+        fence('(shownLength as any).value = 285;', 'hide-code'),
+        'Shown: {{ shownLength }}',
+      ].join('\n\n'),
     });
     await expectRefusedAt(source, '(shownLength as any).value = 285');
   });
 
   it('cannot add its own call() to a block-API function', async () => {
-    const source = hiddenThenShown("(result as any).call = () => undefined;", "result.call(undefined, 'x', 1);");
+    const source = hiddenThenShown('(result as any).call = () => undefined;', "result.call(undefined, 'x', 1);");
     await expectRefusedAt(source, '(result as any).call');
   });
 
   it('cannot swap a solver function for its own', async () => {
-    const source = hiddenThenShown("(solver as any).polarForm = () => ({ magnitude: 0, angleDeg: 0 });", "result('m', solver.polarForm({ value: { re: 3, im: 4 } }).magnitude);");
+    const source = hiddenThenShown(
+      '(solver as any).polarForm = () => ({ magnitude: 0, angleDeg: 0 });',
+      "result('m', solver.polarForm({ value: { re: 3, im: 4 } }).magnitude);",
+    );
     await expectRefusedAt(source, '(solver as any).polarForm =');
   });
 
   it('cannot add properties to a solver function', async () => {
-    const source = hiddenThenShown("(solver.polarForm as any).apply = () => ({ magnitude: 0 });", "result('m', solver.polarForm.apply(undefined, [{ value: { re: 3, im: 4 } }]).magnitude);");
+    const source = hiddenThenShown(
+      '(solver.polarForm as any).apply = () => ({ magnitude: 0 });',
+      "result('m', solver.polarForm.apply(undefined, [{ value: { re: 3, im: 4 } }]).magnitude);",
+    );
     await expectRefusedAt(source, '(solver.polarForm as any).apply');
   });
 
   it('cannot change the prototype of the solver error class', async () => {
     const source = hiddenThenShown("(solver.SolverDomainError as any).prototype.toString = () => 'all fine';", "result('one', 1);");
-    await expectRefusedAt(source, "(solver.SolverDomainError as any).prototype.toString");
+    await expectRefusedAt(source, '(solver.SolverDomainError as any).prototype.toString');
   });
 
   it('cannot change a solver result a shown block goes on to use', async () => {
     const source = studyText({
       body: [
-        fence("const polar = solver.polarForm({ value: { re: 3, im: 4 } });"),
+        fence('const polar = solver.polarForm({ value: { re: 3, im: 4 } });'),
         fence('(polar as any).magnitude = 4;', 'hide-code'),
         fence("result('Magnitude', polar.magnitude);"),
       ].join('\n\n'),
@@ -79,7 +89,9 @@ describe('a hidden block cannot change what the block API hands out', () => {
   it('cannot change a nested part of a solver result', async () => {
     const source = studyText({
       body: [
-        fence("const line = solver.lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 380 });"),
+        fence(
+          'const line = solver.lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 380 });',
+        ),
         fence('(line as any).A.re = 1;', 'hide-code'),
         fence("result('A', line.A.re);"),
       ].join('\n\n'),
@@ -88,12 +100,12 @@ describe('a hidden block cannot change what the block API hands out', () => {
   });
 
   it('cannot swap a chart builder', async () => {
-    const source = hiddenThenShown("(charts as any).loadabilityChart = () => ({});", "result('one', 1);");
+    const source = hiddenThenShown('(charts as any).loadabilityChart = () => ({});', "result('one', 1);");
     await expectRefusedAt(source, '(charts as any).loadabilityChart');
   });
 
   it('cannot replace console.log', async () => {
-    const source = hiddenThenShown("(console as any).log = () => undefined;", "console.log('shown');");
+    const source = hiddenThenShown('(console as any).log = () => undefined;', "console.log('shown');");
     await expectRefusedAt(source, '(console as any).log');
   });
 });
@@ -110,7 +122,10 @@ describe("a hidden block cannot change the sandbox's built-ins", () => {
   });
 
   it('cannot change Array.prototype.map', async () => {
-    const source = hiddenThenShown('(Array.prototype as any).map = function () { return [0]; };', "result('sum', [1, 2].map((x) => x * 2).reduce((a, b) => a + b, 0));");
+    const source = hiddenThenShown(
+      '(Array.prototype as any).map = function () { return [0]; };',
+      "result('sum', [1, 2].map((x) => x * 2).reduce((a, b) => a + b, 0));",
+    );
     await expectRefusedAt(source, '(Array.prototype as any).map');
   });
 
@@ -120,7 +135,7 @@ describe("a hidden block cannot change the sandbox's built-ins", () => {
   });
 
   it('cannot change the prototype of async functions', async () => {
-    const source = hiddenThenShown("(Object.getPrototypeOf(async () => {}) as any).extra = 1;", "result('one', 1);");
+    const source = hiddenThenShown('(Object.getPrototypeOf(async () => {}) as any).extra = 1;', "result('one', 1);");
     await expectRefusedAt(source, 'Object.getPrototypeOf(async () => {})');
   });
 
@@ -143,7 +158,9 @@ describe("a hidden block cannot change the sandbox's built-ins", () => {
 
 describe('the report says where hidden code is', () => {
   it('states in the title block how many blocks hide their code, and at which lines', async () => {
-    const source = studyText({ body: [fence('const a = 1;', 'hide-code'), fence("result('shown', a);"), fence('const b = 2;', 'hide-code')].join('\n\n') });
+    const source = studyText({
+      body: [fence('const a = 1;', 'hide-code'), fence("result('shown', a);"), fence('const b = 2;', 'hide-code')].join('\n\n'),
+    });
     const product = await runSource(source);
     const html = assembleReport(product.report, UNSEALED_NOTICE);
     const titleBlock = html.slice(html.indexOf('class="title-block"'), html.indexOf('</header>'));

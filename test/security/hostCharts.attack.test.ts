@@ -3,7 +3,10 @@
 import { describe, expect, it } from 'vitest';
 import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 
-const rows = JSON.stringify([{ distanceKm: 0, voltagePu: 1, label: `${'a'.repeat(40)}!` }, { distanceKm: 100, voltagePu: 1.04, label: 'b' }]);
+const rows = JSON.stringify([
+  { distanceKm: 0, voltagePu: 1, label: `${'a'.repeat(40)}!` },
+  { distanceKm: 100, voltagePu: 1.04, label: 'b' },
+]);
 const encoding = "{ x: { field: 'distanceKm', type: 'quantitative' }, y: { field: 'voltagePu', type: 'quantitative' } }";
 
 /** A study whose one block draws `spec` (TypeScript text); the chart() call is on its own line. */
@@ -22,45 +25,75 @@ async function refusedAtChart(spec: string, path: string) {
 
 describe('a chart cannot make the host work without end', () => {
   it('refuses a regular expression that backtracks without end', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ filter: "test(/^(a+)+$/, datum.label)" }] }`, 'transform.0.filter');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ filter: "test(/^(a+)+$/, datum.label)" }] }`,
+      'transform.0.filter',
+    );
   });
 
   it('refuses an expression that builds a huge sequence', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ calculate: 'length(sequence(0, 1e9))', as: 'n' }] }`, 'transform.0.calculate');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ calculate: 'length(sequence(0, 1e9))', as: 'n' }] }`,
+      'transform.0.calculate',
+    );
   });
 
   it('refuses a signal expression that runs on every update', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, params: [{ name: 'spin', expr: 'pad("", 1e9)' }] }`, 'params');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, params: [{ name: 'spin', expr: 'pad("", 1e9)' }] }`,
+      'params',
+    );
   });
 
   it('refuses a generated sequence of data rows', async () => {
-    await refusedAtChart(`{ data: { sequence: { start: 0, stop: 1e9 } }, mark: 'point', encoding: { x: { field: 'data', type: 'quantitative' } } }`, 'data.sequence');
+    await refusedAtChart(
+      `{ data: { sequence: { start: 0, stop: 1e9 } }, mark: 'point', encoding: { x: { field: 'data', type: 'quantitative' } } }`,
+      'data.sequence',
+    );
   });
 
   it('refuses a flatten transform, which multiplies rows', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ flatten: ['label'] }] }`, 'transform.0.flatten');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ flatten: ['label'] }] }`,
+      'transform.0.flatten',
+    );
   });
 
   it('refuses data rows holding lists, which a flatten would multiply', async () => {
-    await refusedAtChart(`{ data: { values: [{ list: Array.from({ length: 1000 }, (_, index) => index) }] }, mark: 'point', encoding: { x: { field: 'list', type: 'quantitative' } } }`, 'data.values.0.list');
+    await refusedAtChart(
+      `{ data: { values: [{ list: Array.from({ length: 1000 }, (_, index) => index) }] }, mark: 'point', encoding: { x: { field: 'list', type: 'quantitative' } } }`,
+      'data.values.0.list',
+    );
   });
 
   it('refuses a fold transform', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ fold: ['distanceKm', 'voltagePu'] }] }`, 'transform.0.fold');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: ${encoding}, transform: [{ fold: ['distanceKm', 'voltagePu'] }] }`,
+      'transform.0.fold',
+    );
   });
 
   it('refuses more data rows than a report chart draws', async () => {
-    await refusedAtChart(`{ data: { values: Array.from({ length: 20_001 }, (_, index) => ({ distanceKm: index, voltagePu: 1 })) }, mark: 'point', encoding: ${encoding} }`, 'data.values');
+    await refusedAtChart(
+      `{ data: { values: Array.from({ length: 20_001 }, (_, index) => ({ distanceKm: index, voltagePu: 1 })) }, mark: 'point', encoding: ${encoding} }`,
+      'data.values',
+    );
   });
 });
 
 describe('a chart cannot crash the host or reach out of the report', () => {
   it('refuses an href channel, which crashed the host while writing the SVG', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: { ...${encoding}, href: { field: 'label', type: 'nominal' } } }`, 'encoding.href');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: { ...${encoding}, href: { field: 'label', type: 'nominal' } } }`,
+      'encoding.href',
+    );
   });
 
   it('refuses a url channel', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: { ...${encoding}, url: { value: 'https://tracker.invalid/pixel.png' } } }`, 'encoding.url');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: { ...${encoding}, url: { value: 'https://tracker.invalid/pixel.png' } } }`,
+      'encoding.url',
+    );
   });
 
   it('refuses an image mark', async () => {
@@ -68,11 +101,17 @@ describe('a chart cannot crash the host or reach out of the report', () => {
   });
 
   it('refuses a fill that points to an outside resource', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: { type: 'point', fill: 'url(https://tracker.invalid/#g)' }, encoding: ${encoding} }`, 'mark.fill');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: { type: 'point', fill: 'url(https://tracker.invalid/#g)' }, encoding: ${encoding} }`,
+      'mark.fill',
+    );
   });
 
   it('refuses an axis label expression', async () => {
-    await refusedAtChart(`{ data: { values: ${rows} }, mark: 'point', encoding: { x: { field: 'distanceKm', type: 'quantitative', axis: { labelExpr: 'datum.label' } }, y: { field: 'voltagePu', type: 'quantitative' } } }`, 'encoding.x.axis.labelExpr');
+    await refusedAtChart(
+      `{ data: { values: ${rows} }, mark: 'point', encoding: { x: { field: 'distanceKm', type: 'quantitative', axis: { labelExpr: 'datum.label' } }, y: { field: 'voltagePu', type: 'quantitative' } } }`,
+      'encoding.x.axis.labelExpr',
+    );
   });
 });
 

@@ -7,10 +7,13 @@ import { CANARY_TEXT, attackStudy, checkerMachine, fence, firstProblem, runAttac
 /** The attack line, a route to the host's `process` that every escape below starts from. */
 const HOST_PROCESS_VIA_API = "const hostProcess = (result as any).constructor('return process')();";
 
-describe('a study cannot reach the checker\'s files', () => {
+describe("a study cannot reach the checker's files", () => {
   it('refuses the host Function constructor reached through a block-API function, at the attacking line', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, `${HOST_PROCESS_VIA_API}\nresult('stolen', hostProcess.mainModule.require('fs').readFileSync(${JSON.stringify(machine.canaryPath)}, 'utf8'));`);
+    const source = attackStudy(
+      machine,
+      `${HOST_PROCESS_VIA_API}\nresult('stolen', hostProcess.mainModule.require('fs').readFileSync(${JSON.stringify(machine.canaryPath)}, 'utf8'));`,
+    );
     const before = machine.snapshot();
     const problem = await firstProblem(machine, source);
     expect(problem).toMatchObject({ code: 'block-denied', at: { file: machine.studyPath, line: lineOf(source, 'hostProcess =') } });
@@ -41,7 +44,10 @@ describe('a study cannot reach the checker\'s files', () => {
 
   it('refuses the async-function constructor of the sandbox itself', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, "const AsyncFunction = Object.getPrototypeOf(async function () {}).constructor;\nconst stolen = await AsyncFunction('return process')();");
+    const source = attackStudy(
+      machine,
+      "const AsyncFunction = Object.getPrototypeOf(async function () {}).constructor;\nconst stolen = await AsyncFunction('return process')();",
+    );
     expect(await firstProblem(machine, source)).toMatchObject({ code: 'block-denied', at: { line: lineOf(source, 'const stolen') } });
   });
 
@@ -91,7 +97,10 @@ describe('a study cannot reach the checker\'s files', () => {
 
   it('cannot plant a getter on the host Object prototype for host code to call', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, "const hostObjectPrototype = Object.getPrototypeOf(Object.getPrototypeOf(result));\nObject.defineProperty(hostObjectPrototype, 'noDeprecation', { get() { return this; } });");
+    const source = attackStudy(
+      machine,
+      "const hostObjectPrototype = Object.getPrototypeOf(Object.getPrototypeOf(result));\nObject.defineProperty(hostObjectPrototype, 'noDeprecation', { get() { return this; } });",
+    );
     const problem = await firstProblem(machine, source);
     expect(problem).toMatchObject({ code: 'block-threw', at: { line: lineOf(source, 'Object.defineProperty') } });
     expect(problem.message).toContain('not extensible');
@@ -101,7 +110,10 @@ describe('a study cannot reach the checker\'s files', () => {
 describe('a study cannot write files or start processes', () => {
   it('leaves the canary unchanged and adds no file when a block tries to write through the host', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, `${HOST_PROCESS_VIA_API}\nhostProcess.mainModule.require('fs').writeFileSync(${JSON.stringify(machine.canaryPath)}, 'overwritten');`);
+    const source = attackStudy(
+      machine,
+      `${HOST_PROCESS_VIA_API}\nhostProcess.mainModule.require('fs').writeFileSync(${JSON.stringify(machine.canaryPath)}, 'overwritten');`,
+    );
     const before = machine.snapshot();
     expect((await firstProblem(machine, source)).code).toBe('block-denied');
     expect(machine.snapshot()).toEqual(before);
@@ -109,7 +121,10 @@ describe('a study cannot write files or start processes', () => {
 
   it('finds no require, process or Buffer among the globals a block sees', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, "result('reachable', ['require', 'process', 'Buffer', 'module', 'fetch', 'setTimeout'].filter((name) => name in globalThis).join(',') || 'none');");
+    const source = attackStudy(
+      machine,
+      "result('reachable', ['require', 'process', 'Buffer', 'module', 'fetch', 'setTimeout'].filter((name) => name in globalThis).join(',') || 'none');",
+    );
     expect((await runAttack(machine, source)).results.results[0]?.value).toBe('none');
   });
 
@@ -145,17 +160,24 @@ describe('a study cannot open a network connection', () => {
   for (const moduleName of ['net', 'http', 'dgram', 'tls', '_http_client']) {
     it(`refuses the ${moduleName} module through the host`, async () => {
       const machine = checkerMachine();
-      const source = attackStudy(machine, `${HOST_PROCESS_VIA_API}\nconst opened = hostProcess.getBuiltinModule('${moduleName}');\nopened.connect?.(${port}, '127.0.0.1');`);
+      const source = attackStudy(
+        machine,
+        `${HOST_PROCESS_VIA_API}\nconst opened = hostProcess.getBuiltinModule('${moduleName}');\nopened.connect?.(${port}, '127.0.0.1');`,
+      );
       expect((await firstProblem(machine, source)).code).toBe('block-denied');
       expect(connections).toBe(0);
     });
   }
 });
 
-describe('a study cannot exhaust the checker\'s machine', () => {
+describe("a study cannot exhaust the checker's machine", () => {
   it('stops a block whose arrays grow without bound with a memory-limit diagnostic naming the block', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, 'const hoard: number[][] = [];\nwhile (true) hoard.push(new Array(100_000).fill(1.5));', 'limits: { blockSeconds: 20, heapMb: 64 }');
+    const source = attackStudy(
+      machine,
+      'const hoard: number[][] = [];\nwhile (true) hoard.push(new Array(100_000).fill(1.5));',
+      'limits: { blockSeconds: 20, heapMb: 64 }',
+    );
     const problem = await firstProblem(machine, source);
     expect(problem.code).toBe('memory-limit');
     expect(problem.message).toContain(`the block at line ${lineOf(source, '```ts')}`);
@@ -164,7 +186,11 @@ describe('a study cannot exhaust the checker\'s machine', () => {
 
   it('stops a block that hoards typed-array memory outside the JavaScript heap', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, 'const hoard: Float64Array[] = [];\nwhile (true) hoard.push(new Float64Array(10_000_000).fill(1.5));', 'limits: { blockSeconds: 20, heapMb: 64 }');
+    const source = attackStudy(
+      machine,
+      'const hoard: Float64Array[] = [];\nwhile (true) hoard.push(new Float64Array(10_000_000).fill(1.5));',
+      'limits: { blockSeconds: 20, heapMb: 64 }',
+    );
     expect((await firstProblem(machine, source)).code).toBe('memory-limit');
   });
 
@@ -189,13 +215,17 @@ describe('a study cannot exhaust the checker\'s machine', () => {
   it('stops a study whose blocks each stay under the block limit but together pass the study limit', async () => {
     const machine = checkerMachine();
     const busyWait = (name: string) => `const ${name} = Date.now() + 800;\nwhile (Date.now() < ${name}) {}`;
-    const source = studyText({ frontMatter: 'limits: { blockSeconds: 1, studySeconds: 1 }', body: [fence(busyWait('firstUntil')), fence(busyWait('secondUntil'))].join('\n\n') });
+    const source = studyText({
+      frontMatter: 'limits: { blockSeconds: 1, studySeconds: 1 }',
+      body: [fence(busyWait('firstUntil')), fence(busyWait('secondUntil'))].join('\n\n'),
+    });
     expect((await firstProblem(machine, source)).code).toBe('time-limit');
   });
 });
 
 describe('values a study returns cannot pollute the host', () => {
-  const prototypeNames = () => [Object.prototype, Array.prototype, Function.prototype].map((prototype) => Object.getOwnPropertyNames(prototype).sort().join(','));
+  const prototypeNames = () =>
+    [Object.prototype, Array.prototype, Function.prototype].map((prototype) => Object.getOwnPropertyNames(prototype).sort().join(','));
 
   it('keeps Object.prototype clean after a chart specification carrying __proto__ and constructor keys', async () => {
     const machine = checkerMachine();
@@ -217,7 +247,10 @@ describe('values a study returns cannot pollute the host', () => {
   it('refuses solver arguments carrying a __proto__ key at the calling line, with the host clean', async () => {
     const machine = checkerMachine();
     const before = prototypeNames();
-    const source = attackStudy(machine, `solver.polarForm({ value: JSON.parse(${JSON.stringify('{"re": 1, "im": 0, "__proto__": {"polluted": "yes"}}')}) });`);
+    const source = attackStudy(
+      machine,
+      `solver.polarForm({ value: JSON.parse(${JSON.stringify('{"re": 1, "im": 0, "__proto__": {"polluted": "yes"}}')}) });`,
+    );
     const problem = await firstProblem(machine, source);
     expect(problem.at?.line).toBe(lineOf(source, 'solver.polarForm'));
     expect(problem.message).toContain('__proto__');
@@ -228,7 +261,10 @@ describe('values a study returns cannot pollute the host', () => {
   it('keeps the host clean when results and criteria are named __proto__ and constructor', async () => {
     const machine = checkerMachine();
     const before = prototypeNames();
-    const source = attackStudy(machine, "result('__proto__', 1);\nresult('constructor', 2);\ncriterion('__proto__', 1, { max: 2 });\ntable([{ __proto__: 1, constructor: 2 }], { caption: 'keys' });");
+    const source = attackStudy(
+      machine,
+      "result('__proto__', 1);\nresult('constructor', 2);\ncriterion('__proto__', 1, { max: 2 });\ntable([{ __proto__: 1, constructor: 2 }], { caption: 'keys' });",
+    );
     await runAttack(machine, source).catch(() => undefined);
     expect(({} as Record<string, unknown>).polluted).toBeUndefined();
     expect(prototypeNames()).toEqual(before);
@@ -239,12 +275,19 @@ describe('a study cannot end or impersonate its calculation process', () => {
   it('finds no process object to exit with, at the calling line', async () => {
     const machine = checkerMachine();
     const source = attackStudy(machine, "result('before', 1);\nprocess.exit(0);");
-    expect(await firstProblem(machine, source)).toMatchObject({ code: 'block-threw', message: 'ReferenceError: process is not defined', at: { line: lineOf(source, 'process.exit') } });
+    expect(await firstProblem(machine, source)).toMatchObject({
+      code: 'block-threw',
+      message: 'ReferenceError: process is not defined',
+      at: { line: lineOf(source, 'process.exit') },
+    });
   });
 
   it('cannot forge a reply through the host process either', async () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, `${HOST_PROCESS_VIA_API}\nhostProcess.send({ type: 'block-done', blockIndex: 0, records: [{ kind: 'result', name: 'forged', value: 1, unit: '', digits: 4 }] });`);
+    const source = attackStudy(
+      machine,
+      `${HOST_PROCESS_VIA_API}\nhostProcess.send({ type: 'block-done', blockIndex: 0, records: [{ kind: 'result', name: 'forged', value: 1, unit: '', digits: 4 }] });`,
+    );
     expect((await firstProblem(machine, source)).code).toBe('block-denied');
   });
 });
@@ -252,7 +295,9 @@ describe('a study cannot end or impersonate its calculation process', () => {
 describe('the host never evaluates study text', () => {
   it('evaluates inline values in the calculation process, where there is no process object', async () => {
     const machine = checkerMachine();
-    const source = studyText({ body: `${fence('const shown = 1;')}\n\nThe host would say object: {{ typeof (globalThis as any).process }}; the marker {{ ((globalThis as any).hostMarker = 'set') }}.` });
+    const source = studyText({
+      body: `${fence('const shown = 1;')}\n\nThe host would say object: {{ typeof (globalThis as any).process }}; the marker {{ ((globalThis as any).hostMarker = 'set') }}.`,
+    });
     const product = await runAttack(machine, source);
     expect([...product.run.outcome.inlineTexts.values()]).toEqual(['undefined', 'set']);
     expect((globalThis as Record<string, unknown>).hostMarker).toBeUndefined();
@@ -260,9 +305,12 @@ describe('the host never evaluates study text', () => {
 });
 
 describe('an attack through the command line', () => {
-  it('exits 1 with a located message and no stack trace, leaving the checker\'s files as they were', () => {
+  it("exits 1 with a located message and no stack trace, leaving the checker's files as they were", () => {
     const machine = checkerMachine();
-    const source = attackStudy(machine, `${HOST_PROCESS_VIA_API}\nhostProcess.mainModule.require('fs').writeFileSync('../canary.txt', 'overwritten');`);
+    const source = attackStudy(
+      machine,
+      `${HOST_PROCESS_VIA_API}\nhostProcess.mainModule.require('fs').writeFileSync('../canary.txt', 'overwritten');`,
+    );
     const before = machine.snapshot();
     const { status, stderr } = kvarbook(['run', 'attack.study.md', '--no-typecheck'], machine.studyFolder);
     expect(status).toBe(1);

@@ -48,7 +48,11 @@ describe('attacks on the signing key', () => {
     const env = { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE, SOME_USER_TOKEN: 'token-of-the-user-4711' };
     writeFileSync(join(folder, 'line.study.md'), studyText({ body: '```ts\nresult("x", 1);\n```\n' }));
     expect(kvarbook(['key', 'new', '--name', 'Test Engineer', '--licence', 'T-0', '--jurisdiction', 'Testland'], folder, env).status).toBe(0);
-    const run = spawn(process.execPath, [KVARBOOK_BIN, 'run', 'line.study.md', '--seal', '--pdf'], { cwd: folder, env: { ...process.env, ...env }, stdio: 'ignore' });
+    const run = spawn(process.execPath, [KVARBOOK_BIN, 'run', 'line.study.md', '--seal', '--pdf'], {
+      cwd: folder,
+      env: { ...process.env, ...env },
+      stdio: 'ignore',
+    });
     const seen = new Map<number, { command: string; environment: string[] }>();
     let exited = false;
     run.on('exit', () => (exited = true));
@@ -61,7 +65,9 @@ describe('attacks on the signing key', () => {
     // Guards the assertion below: a scan that saw no helper would prove nothing.
     expect(commands.some((command) => command.includes('esbuild'))).toBe(true);
     expect(commands.some((command) => command.includes('chrom'))).toBe(true);
-    const leaking = [...seen.values()].filter((helper) => helper.environment.some((entry) => entry.startsWith('KVARBOOK_PASSPHRASE=') || entry.includes('token-of-the-user-4711')));
+    const leaking = [...seen.values()].filter((helper) =>
+      helper.environment.some((entry) => entry.startsWith('KVARBOOK_PASSPHRASE=') || entry.includes('token-of-the-user-4711')),
+    );
     expect(leaking.map((helper) => helper.command)).toEqual([]);
   });
 });

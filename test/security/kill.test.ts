@@ -27,7 +27,11 @@ function visible(folder: string): Snapshot {
 
 /** The files of one folder that are report files, by name. */
 function filesOf(folder: string): Snapshot {
-  return new Map(readdirSync(folder).filter((name) => SET_NAMES.includes(name)).map((name) => [name, readFileSync(join(folder, name)).toString('latin1')]));
+  return new Map(
+    readdirSync(folder)
+      .filter((name) => SET_NAMES.includes(name))
+      .map((name) => [name, readFileSync(join(folder, name)).toString('latin1')]),
+  );
 }
 
 const same = (a: Snapshot, b: Snapshot) => a.size === b.size && [...a].every(([name, content]) => b.get(name) === content);
@@ -48,7 +52,8 @@ function helpersIn(folder: string): string[] {
   for (const entry of readdirSync('/proc')) {
     if (!/^\d+$/.test(entry)) continue;
     try {
-      if (readlinkSync(`/proc/${entry}/cwd`) === folder) found.push(readFileSync(`/proc/${entry}/cmdline`, 'latin1').split('\0').slice(0, 2).join(' '));
+      if (readlinkSync(`/proc/${entry}/cwd`) === folder)
+        found.push(readFileSync(`/proc/${entry}/cmdline`, 'latin1').split('\0').slice(0, 2).join(' '));
     } catch {
       // Gone while we looked, or a zombie waiting for its parent: neither runs.
     }
@@ -81,7 +86,8 @@ function timed(args: string[], folder: string, env: NodeJS.ProcessEnv = {}): num
 }
 
 /** Seeded moments across the whole run, the switch at its end included. */
-const killMoments = (count: number, fullRunMs: number) => fc.sample(fc.integer({ min: 0, max: fullRunMs + 200 }), { seed: KILL_SEED, numRuns: count });
+const killMoments = (count: number, fullRunMs: number) =>
+  fc.sample(fc.integer({ min: 0, max: fullRunMs + 200 }), { seed: KILL_SEED, numRuns: count });
 
 describe('killing kvarbook while it writes a report', () => {
   it(`shows the earlier set or the new one, never a mix, after each of ${KILLS.plain} kills of a plain run`, async () => {
@@ -127,7 +133,10 @@ describe('killing kvarbook while it writes a report', () => {
     // The next print removes the Chromium profiles the killed ones left.
     const last = `${template}-${KILLS.pdf - 1}`;
     timed([...RUN_ARGUMENTS, '--pdf'], last, { TMPDIR: profiles });
-    expect([...visible(last)].filter(([name, content]) => fresh.get(name) !== content).map(([name]) => name), 'files that differ from a clean run').toEqual([]);
+    expect(
+      [...visible(last)].filter(([name, content]) => fresh.get(name) !== content).map(([name]) => name),
+      'files that differ from a clean run',
+    ).toEqual([]);
     expect(temporaries(last)).toEqual([]);
     expect(readdirSync(profiles).filter((name) => name.startsWith('kvarbook-chromium-'))).toEqual([]);
   }, 300_000);
@@ -172,10 +181,17 @@ describe('killing kvarbook while it writes a report', () => {
       expect(whichSet(visible(folder), { sealedA, sealedB }), `the set shown after a kill at ${delayMs} ms`).toBeDefined();
       // A is shown, or kept whole in a folder of its own: superseded/, or a set the next run will move there.
       const places = [
-        ...(existsSync(join(folder, 'build', 'superseded')) ? readdirSync(join(folder, 'build', 'superseded')).map((name) => join(folder, 'build', 'superseded', name)) : []),
-        ...readdirSync(join(folder, 'build', '.kvarbook', 'sets')).filter((name) => !name.startsWith('.')).map((name) => join(folder, 'build', '.kvarbook', 'sets', name)),
+        ...(existsSync(join(folder, 'build', 'superseded'))
+          ? readdirSync(join(folder, 'build', 'superseded')).map((name) => join(folder, 'build', 'superseded', name))
+          : []),
+        ...readdirSync(join(folder, 'build', '.kvarbook', 'sets'))
+          .filter((name) => !name.startsWith('.'))
+          .map((name) => join(folder, 'build', '.kvarbook', 'sets', name)),
       ];
-      expect(places.some((place) => same(filesOf(place), sealedA)), `the sealed set A after a kill at ${delayMs} ms`).toBe(true);
+      expect(
+        places.some((place) => same(filesOf(place), sealedA)),
+        `the sealed set A after a kill at ${delayMs} ms`,
+      ).toBe(true);
       expect(await helpersLeft(folder)).toEqual([]);
     }
     const last = `${space.folder}-${KILLS.replace - 1}`;
@@ -197,6 +213,10 @@ describe('killing kvarbook while it writes a report', () => {
     const unrelated = `.OTHER-2-r1.${finished}.x.tmp`;
     for (const name of [stale, live, unrelated]) mkdirSync(join(sets, name));
     timed(RUN_ARGUMENTS, folder);
-    expect(readdirSync(sets).filter((name) => name.endsWith('.tmp')).sort()).toEqual([live, unrelated].sort());
+    expect(
+      readdirSync(sets)
+        .filter((name) => name.endsWith('.tmp'))
+        .sort(),
+    ).toEqual([live, unrelated].sort());
   });
 });

@@ -28,7 +28,7 @@ const ROUTES: Record<string, string> = {
   'the internal bindings': "process._linkedBinding('tcp_wrap')",
   'a native add-on': "process.dlopen({ exports: {} }, '/nonexistent.node')",
   'the diagnostic report with environment and host details': 'process.report.getReport()',
-  'fetch': "fetch('http://127.0.0.1:9/')",
+  fetch: "fetch('http://127.0.0.1:9/')",
   'a change of user': 'process.setuid(0)',
   'a require of fs by code loaded before lockDown': "require('fs')",
 };
@@ -51,7 +51,15 @@ function routeProbe(): string {
 function runProbe(): Record<string, string> {
   const folder = mkdtempSync(join(tmpdir(), 'kvarbook-lockdown-'));
   const bundle = join(folder, 'probe.cjs');
-  const built = buildSync({ stdin: { contents: routeProbe(), loader: 'ts', resolveDir: KVARBOOK_ROOT }, bundle: true, platform: 'node', format: 'cjs', target: 'node20', write: false, logLevel: 'silent' });
+  const built = buildSync({
+    stdin: { contents: routeProbe(), loader: 'ts', resolveDir: KVARBOOK_ROOT },
+    bundle: true,
+    platform: 'node',
+    format: 'cjs',
+    target: 'node20',
+    write: false,
+    logLevel: 'silent',
+  });
   writeFileSync(bundle, built.outputFiles[0]!.text);
   const run = spawnSync(process.execPath, [...childExecArguments(folder, bundle, 64), bundle], {
     encoding: 'utf8',
@@ -69,10 +77,9 @@ describe('the calculation child after lockDown, with process in hand', () => {
       expect(outcomes[name]).toBe('denied');
     });
   }
-
 });
 
-describe('the calculation child\'s environment', () => {
+describe("the calculation child's environment", () => {
   it('holds no environment variable of the checker but locale and time zone', () => {
     const saved = { ...process.env };
     Object.assign(process.env, { KVARBOOK_TEST_TOKEN: 'secret', NODE_OPTIONS: '--require=/nonexistent.cjs', LANG: 'C.UTF-8' });

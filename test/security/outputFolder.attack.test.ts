@@ -18,7 +18,12 @@ function studyFolder(prefix: string): string {
 
 /** Every file below `folder`, as paths relative to it. */
 function filesBelow(folder: string): string[] {
-  return existsSync(folder) ? (readdirSync(folder, { recursive: true, withFileTypes: true }) as import('node:fs').Dirent[]).filter((entry) => entry.isFile()).map((entry) => join(entry.parentPath, entry.name).slice(folder.length + 1)).sort() : [];
+  return existsSync(folder)
+    ? (readdirSync(folder, { recursive: true, withFileTypes: true }) as import('node:fs').Dirent[])
+        .filter((entry) => entry.isFile())
+        .map((entry) => join(entry.parentPath, entry.name).slice(folder.length + 1))
+        .sort()
+    : [];
 }
 
 describe('writes through symbolic links', () => {
@@ -56,7 +61,10 @@ describe('nothing lost', () => {
       newSigner(checker, checker === 'First Checker' ? 'C-1' : 'C-2', 'Testland', space.trustFolder, keys);
       const sealed = kvarbook(['run', 'line.study.md', '--seal', '--replace-sealed'], space.folder, space.env);
       expect(sealed.status, sealed.stderr).toBe(0);
-      const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign', '--keys', keys], space.folder, { ...space.env, KVARBOOK_PASSPHRASE: PASSPHRASE });
+      const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign', '--keys', keys], space.folder, {
+        ...space.env,
+        KVARBOOK_PASSPHRASE: PASSPHRASE,
+      });
       expect(signed.status, signed.stdout + signed.stderr).toBe(0);
       records.push(readFileSync(join(space.folder, 'build', 'TEST-1-r1.check.json'), 'utf8'));
     }
@@ -87,4 +95,3 @@ describe('nothing lost', () => {
     expect(readFileSync(join(space.folder, 'build', 'TEST-1-r1.pdf')).equals(sealedPdf)).toBe(true);
   });
 });
-

@@ -42,7 +42,11 @@ describe('no one output is unbounded', () => {
 
   it('refuses a table of more cells than a report table holds', async () => {
     const problem = await refusedAt(
-      studyText({ body: fence(`const rows = Array.from({ length: ${OUTPUT_LIMITS.tableCells / 2 + 1} }, (_, index) => ({ a: index, b: index }));\ntable(rows, { caption: 'huge' });`) }),
+      studyText({
+        body: fence(
+          `const rows = Array.from({ length: ${OUTPUT_LIMITS.tableCells / 2 + 1} }, (_, index) => ({ a: index, b: index }));\ntable(rows, { caption: 'huge' });`,
+        ),
+      }),
       'table(rows',
     );
     expect(problem.message).toContain(`at most ${formatCount(OUTPUT_LIMITS.tableCells)}`);
@@ -69,12 +73,17 @@ describe('no one output is unbounded', () => {
 
 describe('the whole of what a study writes is bounded', () => {
   it('refuses printing in a loop once the study has written its allowance, at the printing line', async () => {
-    const problem = await refusedAt(studyText({ body: fence("const line = 'x'.repeat(9_000);\nfor (let index = 0; index < 10_000; index++) console.log(line);") }), 'console.log(line)');
+    const problem = await refusedAt(
+      studyText({ body: fence("const line = 'x'.repeat(9_000);\nfor (let index = 0; index < 10_000; index++) console.log(line);") }),
+      'console.log(line)',
+    );
     expect(problem.message).toContain(`${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB`);
   });
 
   it('refuses many small results once their total passes the allowance', async () => {
-    const source = studyText({ body: fence(`const note = 'x'.repeat(9_000);\nfor (let index = 0; index < 10_000; index++) result('r' + index, index, { note });`) });
+    const source = studyText({
+      body: fence(`const note = 'x'.repeat(9_000);\nfor (let index = 0; index < 10_000; index++) result('r' + index, index, { note });`),
+    });
     await refusedAt(source, "result('r' + index");
   });
 

@@ -13,7 +13,9 @@ import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.
 
 describe('a study cannot make its report load anything', () => {
   it('shows raw HTML as text: no element of it reaches the report', async () => {
-    const product = await runSource(studyText({ body: 'A pixel <img src="https://tracker.invalid/raw.png"> here.\n\n<div><img src="https://tracker.invalid/block.png"></div>\n' }));
+    const product = await runSource(
+      studyText({ body: 'A pixel <img src="https://tracker.invalid/raw.png"> here.\n\n<div><img src="https://tracker.invalid/block.png"></div>\n' }),
+    );
     expect(product.report.body).not.toMatch(/<img|<div><img/);
     expect(product.report.body).toContain('&lt;img src=&quot;https://tracker.invalid/raw.png&quot;&gt;');
   });
@@ -68,7 +70,8 @@ describe('the content security policy in a browser', () => {
   it('blocks a load that got into a report anyway, and keeps the inline styles and charts working', async () => {
     const chromium = findChromium(process.env);
     if ('error' in chromium) throw new Error(chromium.error);
-    const spec = "{ data: { values: [{ x: 1, y: 2 }, { x: 2, y: 3 }] }, mark: 'line', encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'y', type: 'quantitative' } } }";
+    const spec =
+      "{ data: { values: [{ x: 1, y: 2 }, { x: 2, y: 3 }] }, mark: 'line', encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'y', type: 'quantitative' } } }";
     const product = await runSource(studyText({ body: ['```ts', `chart(${spec}, { caption: 'Inline chart' });`, '```'].join('\n') }));
     // As if a study had found a way past the Markdown rules: a pixel, a stylesheet and a background image.
     const planted = `<img src="${origin}/pixel.png"><link rel="stylesheet" href="${origin}/style.css"><div style="background:url(${origin}/bg.png)">x</div>`;

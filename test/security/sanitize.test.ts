@@ -11,7 +11,9 @@ const at = { file: 'forged.study.md', line: 9 };
 
 describe('chart specifications and solver summaries from the child', () => {
   it('lose every key that reaches a prototype, at any depth', () => {
-    const forged = JSON.parse('{"mark": "point", "__proto__": {"polluted": 1}, "config": {"constructor": {"prototype": {"polluted": 1}}, "axis": {"__proto__": {"polluted": 1}, "grid": false}}}');
+    const forged = JSON.parse(
+      '{"mark": "point", "__proto__": {"polluted": 1}, "config": {"constructor": {"prototype": {"polluted": 1}}, "axis": {"__proto__": {"polluted": 1}, "grid": false}}}',
+    );
     expect(plainData(forged)).toEqual({ mark: 'point', config: { axis: { grid: false } } });
   });
 
@@ -56,7 +58,15 @@ describe('error reports from the child', () => {
   });
 
   it('keep only positions with whole-number lines and columns', () => {
-    const report = sanitizeErrorReport({ name: 'Error', message: 'm', positions: [{ blockIndex: 0, line: 2, column: 5 }, { blockIndex: 0, line: 0, column: 1 }, { blockIndex: 'x', line: 1, column: 1 }] });
+    const report = sanitizeErrorReport({
+      name: 'Error',
+      message: 'm',
+      positions: [
+        { blockIndex: 0, line: 2, column: 5 },
+        { blockIndex: 0, line: 0, column: 1 },
+        { blockIndex: 'x', line: 1, column: 1 },
+      ],
+    });
     expect(report.positions).toEqual([{ blockIndex: 0, line: 2, column: 5 }]);
   });
 
@@ -84,12 +94,16 @@ describe('records from a child that skipped the checks of the block API', () => 
   });
 
   it('refuse a table cell that says NaN', () => {
-    expect(refusal([{ kind: 'table', columns: [{ key: 'a', label: 'a', unit: '', digits: 4 }], rows: [['NaN']] }])).toMatchObject({ code: 'block-non-finite' });
+    expect(refusal([{ kind: 'table', columns: [{ key: 'a', label: 'a', unit: '', digits: 4 }], rows: [['NaN']] }])).toMatchObject({
+      code: 'block-non-finite',
+    });
   });
 
   it('refuse a table of more cells than a report table holds', () => {
     const rows = Array.from({ length: OUTPUT_LIMITS.tableCells + 1 }, () => [1]);
-    expect(refusal([{ kind: 'table', columns: [{ key: 'a', label: 'a', unit: '', digits: 4 }], rows }])).toMatchObject({ code: 'block-output-limit' });
+    expect(refusal([{ kind: 'table', columns: [{ key: 'a', label: 'a', unit: '', digits: 4 }], rows }])).toMatchObject({
+      code: 'block-output-limit',
+    });
   });
 
   it('refuse records once the study has written its allowance across blocks', () => {

@@ -57,7 +57,9 @@ describe('attacks on what a sealed report says', () => {
     try {
       writeFileSync(join(space.folder, 'other.html'), reseal(sealedHtml, other));
       const check = kvarbook(['check', 'other.html'], space.folder, space.env);
-      expect(check.stdout).toMatch(/engineer\s+FAIL\s+the seal is by Other Engineer, licence O-9 \(Testland\), but the study names Test Engineer, licence T-0 \(Testland\)/);
+      expect(check.stdout).toMatch(
+        /engineer\s+FAIL\s+the seal is by Other Engineer, licence O-9 \(Testland\), but the study names Test Engineer, licence T-0 \(Testland\)/,
+      );
       expect(check.stdout).toContain('verdict: NOT VERIFIED');
       expect(check.status).toBe(1);
     } finally {
@@ -71,7 +73,9 @@ describe('attacks on what a sealed report says', () => {
     const from = lineOf(study, '```ts hide-code');
     const lines = check.stdout.trimEnd().split('\n');
     const verdictAt = lines.findIndex((line) => line.startsWith('verdict:'));
-    expect(lines[verdictAt - 1]).toBe(`hidden code: 1 of 2 blocks runs with its code left out of the report; read it in the study source, lines ${from}–${from + 2}`);
+    expect(lines[verdictAt - 1]).toBe(
+      `hidden code: 1 of 2 blocks runs with its code left out of the report; read it in the study source, lines ${from}–${from + 2}`,
+    );
   });
 
   it('names the study, revision and engineer whose report it verified', () => {

@@ -25,7 +25,12 @@ function embeddedFileNames(document: PDFDocument): PDFArray {
 function attachRaw(document: PDFDocument, fileName: string, compressed: Uint8Array, first: boolean): void {
   const { context } = document;
   const stream = PDFRawStream.of(context.obj({ Type: 'EmbeddedFile', Filter: 'FlateDecode', Length: compressed.length }), compressed);
-  const specification = context.obj({ Type: 'Filespec', F: PDFHexString.fromText(fileName), UF: PDFHexString.fromText(fileName), EF: { F: context.register(stream) } });
+  const specification = context.obj({
+    Type: 'Filespec',
+    F: PDFHexString.fromText(fileName),
+    UF: PDFHexString.fromText(fileName),
+    EF: { F: context.register(stream) },
+  });
   const names = embeddedFileNames(document);
   const key = PDFHexString.fromText(fileName);
   const value = context.register(specification);
@@ -46,7 +51,10 @@ describe('attacks on a sealed PDF', () => {
   beforeAll(() => {
     space = sealWorkspace('kvarbook-pdf-attack-');
     writeFileSync(join(space.folder, 'line.study.md'), study);
-    for (const args of [['--out', 'build'], ['--out', 'other', '--set', 'lineLength=100km']]) {
+    for (const args of [
+      ['--out', 'build'],
+      ['--out', 'other', '--set', 'lineLength=100km'],
+    ]) {
       const sealed = kvarbook(['run', 'line.study.md', '--seal', '--pdf', ...args], space.folder, space.env);
       expect(sealed.status, sealed.stderr).toBe(0);
     }

@@ -23,7 +23,9 @@ describe('an inline value inside a table cell', () => {
   const table = ['| Case | Voltage |', '|---|---|', '| light load | {{ lightPu }} |', '| peak load | {{ peakPu }} |'].join('\n');
 
   it('is evaluated and shown in its cell', async () => {
-    const product = await runSource(studyText({ body: `${fence("const lightPu = figure(1.04, 'pu');\nconst peakPu = figure(0.97, 'pu');")}\n\n${table}\n` }));
+    const product = await runSource(
+      studyText({ body: `${fence("const lightPu = figure(1.04, 'pu');\nconst peakPu = figure(0.97, 'pu');")}\n\n${table}\n` }),
+    );
     expect(product.report.body).toContain('<td><span class="value">1.040 pu</span></td>');
     expect(product.report.body).toContain('<td><span class="value">0.9700 pu</span></td>');
   });
@@ -80,7 +82,7 @@ describe('NaN and Infinity never reach a report, not even as text', () => {
   });
 
   it('writes a non-finite solver argument in the calculation log in words', async () => {
-    const source = studyText({ body: fence("solver.polarForm({ value: { re: 3, im: 4 }, unused: 0 / 0 } as any);") });
+    const source = studyText({ body: fence('solver.polarForm({ value: { re: 3, im: 4 }, unused: 0 / 0 } as any);') });
     const product = await runSource(source);
     const log = product.report.body.slice(product.report.body.indexOf('id="calculation-log"'));
     expect(log).not.toMatch(/NaN|Infinity/);

@@ -57,7 +57,8 @@ describe('nothing a study writes reaches the terminal as a control sequence', ()
 /** A terminal writing into strings, as kvarbook's own printing does into the checker's terminal. */
 function capturedTerminal() {
   const written = { out: '', err: '' };
-  const stream = (key: 'out' | 'err') => ({ write: (text: string) => ((written[key] += text), true), isTTY: false }) as unknown as NodeJS.WritableStream;
+  const stream = (key: 'out' | 'err') =>
+    ({ write: (text: string) => ((written[key] += text), true), isTTY: false }) as unknown as NodeJS.WritableStream;
   return { terminal: processTerminal({ out: stream('out'), err: stream('err') }), written };
 }
 
@@ -80,7 +81,7 @@ describe('every line kvarbook prints is escaped', () => {
     noControlCharacters(written.out.slice(0, -1));
   });
 
-  it("keeps the colours kvarbook paints its own verdict with", () => {
+  it('keeps the colours kvarbook paints its own verdict with', () => {
     const { terminal, written } = capturedTerminal();
     const painted = `${ESC}[1m${ESC}[32mVERIFIED${ESC}[39m${ESC}[22m`;
     terminal.say(`verdict: ${painted}`);
@@ -90,7 +91,9 @@ describe('every line kvarbook prints is escaped', () => {
 
   it('indents the continuation lines of a diagnostic so that none can pose as a line of its own', () => {
     const { terminal, written } = capturedTerminal();
-    terminal.problems([{ code: 'block-threw', message: 'first\nverdict: VERIFIED', hint: 'fix it\nverdict: VERIFIED', at: { file: 'a.study.md', line: 3 } }]);
+    terminal.problems([
+      { code: 'block-threw', message: 'first\nverdict: VERIFIED', hint: 'fix it\nverdict: VERIFIED', at: { file: 'a.study.md', line: 3 } },
+    ]);
     expect(written.err.split('\n').filter((line) => line.startsWith('verdict'))).toEqual([]);
   });
 });
@@ -127,7 +130,10 @@ describe('no two names in a report look alike', () => {
   });
 
   it('refuses a direction isolate in a chart caption', async () => {
-    await refusedName("chart({ data: { values: [{ x: 1 }] }, mark: 'point', encoding: { x: { field: 'x', type: 'quantitative' } } }, { caption: 'Profile \\u2067reversed\\u2069' });", 'chart(');
+    await refusedName(
+      "chart({ data: { values: [{ x: 1 }] }, mark: 'point', encoding: { x: { field: 'x', type: 'quantitative' } } }, { caption: 'Profile \\u2067reversed\\u2069' });",
+      'chart(',
+    );
   });
 
   it('refuses a direction override in a unit', async () => {
@@ -139,7 +145,11 @@ describe('no two names in a report look alike', () => {
   });
 
   it('writes invisible characters of a solver label out in the calculation log', async () => {
-    const source = studyText({ body: fence("const line = solver.lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 100, label: 'Line\\u200bA' });") });
+    const source = studyText({
+      body: fence(
+        "const line = solver.lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 100, label: 'Line\\u200bA' });",
+      ),
+    });
     const product = await runSource(source);
     const log = product.report.body.slice(product.report.body.indexOf('id="calculation-log"'));
     expect(log).toContain('Line⟨U+200B⟩A');

@@ -30,13 +30,19 @@ async function refusal(code: string, needle: string) {
 describe('the type check reads no file of the checker', () => {
   it('refuses `import type` of a file elsewhere on the machine, at the import, without quoting the file', async () => {
     const path = secretFile();
-    const problem = await refusal(`import type { Secret } from ${JSON.stringify(path)};\nconst leaked: Secret = 1 as unknown as number;`, 'import type');
+    const problem = await refusal(
+      `import type { Secret } from ${JSON.stringify(path)};\nconst leaked: Secret = 1 as unknown as number;`,
+      'import type',
+    );
     expect(problem.message).toContain(path);
     expect(problem.hint).toContain('block API');
   });
 
   it('refuses a type query through import()', async () => {
-    await refusal(`type Leak = typeof import(${JSON.stringify(secretFile())});\nconst leaked: Leak['secretValue'] = 1 as unknown as number;`, 'typeof import');
+    await refusal(
+      `type Leak = typeof import(${JSON.stringify(secretFile())});\nconst leaked: Leak['secretValue'] = 1 as unknown as number;`,
+      'typeof import',
+    );
   });
 
   it('refuses a dynamic import() the type check would resolve', async () => {
@@ -44,7 +50,10 @@ describe('the type check reads no file of the checker', () => {
   });
 
   it('refuses import-equals with require', async () => {
-    await refusal(`import leak = require(${JSON.stringify(secretFile())});\nconst leaked: typeof leak.secretValue = 1 as unknown as number;`, 'import leak');
+    await refusal(
+      `import leak = require(${JSON.stringify(secretFile())});\nconst leaked: typeof leak.secretValue = 1 as unknown as number;`,
+      'import leak',
+    );
   });
 
   it('refuses a re-export from another file', async () => {
@@ -67,7 +76,9 @@ describe('the type check reads no file of the checker', () => {
   it('still type-checks blocks that use the block API and the solver', async () => {
     const source = studyText({
       inputs: '  lineLength: 380 km',
-      body: fence("const polar = solver.polarForm({ value: { re: 3, im: 4 } });\nresult('Magnitude', polar.magnitude);\nresult('Length', inputs.lineLength.in('km'), { unit: 'km' });"),
+      body: fence(
+        "const polar = solver.polarForm({ value: { re: 3, im: 4 } });\nresult('Magnitude', polar.magnitude);\nresult('Length', inputs.lineLength.in('km'), { unit: 'km' });",
+      ),
     });
     const product = await runSource(source, { typecheck: true });
     expect(product.results.results.map((entry) => entry.value)).toEqual([5, 380]);

@@ -14,7 +14,13 @@ const corridor = (): CorridorInput => ({
   ],
   sections: [
     { from: 'Ashgrove', to: 'Brindle', lengthKm: 150, ...perKm },
-    { from: 'Brindle', to: 'Corrie', lengthKm: 180, ...perKm, seriesCapacitors: [{ name: 'SC', position: 'mid-section', reactanceOhm: 20, ratedCurrentA: 2000 }] },
+    {
+      from: 'Brindle',
+      to: 'Corrie',
+      lengthKm: 180,
+      ...perKm,
+      seriesCapacitors: [{ name: 'SC', position: 'mid-section', reactanceOhm: 20, ratedCurrentA: 2000 }],
+    },
   ],
 });
 
@@ -99,13 +105,18 @@ describe('case data validation', () => {
 
   test('refuses a voltage control at an unknown bus', () => {
     const error = errorOf(() =>
-      solveCorridorCase({ corridor: corridor(), case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Elsewhere', voltageKv: 400 }] } }),
+      solveCorridorCase({
+        corridor: corridor(),
+        case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Elsewhere', voltageKv: 400 }] },
+      }),
     );
     expect(error.quantity).toBe('case.voltageControl[0].bus');
   });
 
   test('refuses a transfer with the receiving system open', () => {
-    const error = errorOf(() => solveCorridorCase({ corridor: corridor(), case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, receivingSystem: { open: true } } }));
+    const error = errorOf(() =>
+      solveCorridorCase({ corridor: corridor(), case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, receivingSystem: { open: true } } }),
+    );
     expect(error.quantity).toBe('case.receivingSystem.open');
   });
 
@@ -125,7 +136,10 @@ describe('case data validation: conflicting voltage controls', () => {
     const data = corridor();
     data.sendingSystem = { shortCircuitMva: 15000, xOverR: 15, heldVoltageKv: 405 };
     const error = errorOf(() =>
-      solveCorridorCase({ corridor: data, case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Ashgrove', voltageKv: 400 }] } }),
+      solveCorridorCase({
+        corridor: data,
+        case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Ashgrove', voltageKv: 400 }] },
+      }),
     );
     expect(error.code).toBe('INCONSISTENT_QUANTITIES');
     expect(error.quantity).toBe('case.voltageControl[0].bus');
@@ -135,7 +149,14 @@ describe('case data validation: conflicting voltage controls', () => {
     const error = errorOf(() =>
       solveCorridorCase({
         corridor: corridor(),
-        case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Brindle', voltageKv: 400 }, { bus: 'Brindle', voltageKv: 405 }] },
+        case: {
+          label: 'x',
+          loading: { kind: 'transfer', pMw: 300 },
+          voltageControl: [
+            { bus: 'Brindle', voltageKv: 400 },
+            { bus: 'Brindle', voltageKv: 405 },
+          ],
+        },
       }),
     );
     expect(error.quantity).toBe('case.voltageControl[1].bus');

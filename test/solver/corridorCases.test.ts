@@ -45,7 +45,10 @@ const sectionArbitrary: fc.Arbitrary<RandomSection> = fc.record({
   b: fc.double({ min: 3, max: 4.5, noNaN: true }),
   circuits: fc.constantFrom(1 as const, 2 as const),
   segment: fc.option(
-    fc.record({ position: fc.constantFrom('sending-end' as const, 'mid-section' as const, 'receiving-end' as const), reactanceOhm: fc.double({ min: 5, max: 30, noNaN: true }) }),
+    fc.record({
+      position: fc.constantFrom('sending-end' as const, 'mid-section' as const, 'receiving-end' as const),
+      reactanceOhm: fc.double({ min: 5, max: 30, noNaN: true }),
+    }),
     { nil: null },
   ),
 });
@@ -76,7 +79,8 @@ function corridorOf(random: RandomCorridor): CorridorInput {
     buses: busNames.map((name, index) => ({
       name,
       reactors: random.reactorsMvar[index] === null ? [] : [{ name: `R${index}`, qMvar: random.reactorsMvar[index] as number, ratedVoltageKv: 400 }],
-      capacitors: index === busNames.length - 1 && random.capacitorMvar !== null ? [{ name: 'C', qMvar: random.capacitorMvar, ratedVoltageKv: 400 }] : [],
+      capacitors:
+        index === busNames.length - 1 && random.capacitorMvar !== null ? [{ name: 'C', qMvar: random.capacitorMvar, ratedVoltageKv: 400 }] : [],
     })),
     sections: random.sections.map((section, index) => ({
       from: busNames[index] as string,
@@ -93,18 +97,27 @@ function corridorOf(random: RandomCorridor): CorridorInput {
 
 /** The same corridor built by hand as one cascade; two identical circuits in parallel are one line with z/2 and y*2 (exact). */
 function cascadeOf(random: RandomCorridor): { elements: TwoPort[]; busElementIndex: number[]; segmentElementIndex: Map<string, number> } {
-  const elements: TwoPort[] = random.held ? [] : [sourceEquivalent({ end: 'sending', shortCircuitMva: random.sendingMva, xOverR: random.xOverR, nominalVoltageKv: 400 })];
+  const elements: TwoPort[] = random.held
+    ? []
+    : [sourceEquivalent({ end: 'sending', shortCircuitMva: random.sendingMva, xOverR: random.xOverR, nominalVoltageKv: 400 })];
   const busElementIndex: number[] = [];
   const segmentElementIndex = new Map<string, number>();
   random.reactorsMvar.forEach((reactor, index) => {
     busElementIndex.push(elements.length);
     if (reactor !== null) elements.push(shuntReactor({ qMvar: reactor, ratedVoltageKv: 400 }));
-    if (index === random.reactorsMvar.length - 1 && random.capacitorMvar !== null) elements.push(shuntCapacitor({ qMvar: random.capacitorMvar, ratedVoltageKv: 400 }));
+    if (index === random.reactorsMvar.length - 1 && random.capacitorMvar !== null)
+      elements.push(shuntCapacitor({ qMvar: random.capacitorMvar, ratedVoltageKv: 400 }));
     const section = random.sections[index];
     if (!section) return;
     const n = section.circuits;
     const line = (lengthKm: number) =>
-      lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: section.r / n, seriesReactanceOhmPerKm: section.x / n, shuntSusceptanceUsPerKm: section.b * n, lengthKm });
+      lineModel({
+        frequencyHz: 50,
+        seriesResistanceOhmPerKm: section.r / n,
+        seriesReactanceOhmPerKm: section.x / n,
+        shuntSusceptanceUsPerKm: section.b * n,
+        lengthKm,
+      });
     const capacitor = section.segment ? seriesCapacitor({ reactanceOhm: section.segment.reactanceOhm / n }) : null;
     const pushCapacitor = () => {
       segmentElementIndex.set(`S${index}`, elements.length);
@@ -139,7 +152,9 @@ describe('solveCorridorCase against the same network built by hand from two-port
         } catch {
           return; // beyond the nose by the closed form: covered by the infeasibility test
         }
-        const result = solved(solveCorridorCase({ corridor: corridorOf(random), case: { label: 'load', loading: { kind: 'receiving-load', ...load } } }));
+        const result = solved(
+          solveCorridorCase({ corridor: corridorOf(random), case: { label: 'load', loading: { kind: 'receiving-load', ...load } } }),
+        );
         const receiving = result.buses[result.buses.length - 1]!;
         expect(receiving.voltageKv).toBeCloseTo(reference.receivingEnd.voltageKv, 5);
         expect(receiving.angleDeg).toBeCloseTo(reference.receivingEnd.voltageAngleDeg, 5);
@@ -149,7 +164,10 @@ describe('solveCorridorCase against the same network built by hand from two-port
         const ir = new Complex(reference.receivingEnd.lineCurrentA.re, reference.receivingEnd.lineCurrentA.im);
         const atElement = (elementIndex: number) => {
           const rest = hand.elements.slice(elementIndex);
-          const tail = rest.length === 0 ? { A: new Complex(1, 0), B: new Complex(0, 0), C: new Complex(0, 0), D: new Complex(1, 0) } : abcdOf(cascade({ elements: rest }));
+          const tail =
+            rest.length === 0
+              ? { A: new Complex(1, 0), B: new Complex(0, 0), C: new Complex(0, 0), D: new Complex(1, 0) }
+              : abcdOf(cascade({ elements: rest }));
           return { voltage: tail.A.mul(vr).add(tail.B.mul(ir)), current: tail.C.mul(vr).add(tail.D.mul(ir)) };
         };
         hand.busElementIndex.forEach((elementIndex, busIndex) => {
@@ -165,7 +183,10 @@ describe('solveCorridorCase against the same network built by hand from two-port
         const emf = new Complex(reference.sendingEnd.phaseVoltageV.re, reference.sendingEnd.phaseVoltageV.im);
         const current = new Complex(reference.sendingEnd.lineCurrentA.re, reference.sendingEnd.lineCurrentA.im);
         const z = random.held ? new Complex(0, 0) : abcdOf(hand.elements[0]!).B;
-        const atBus = emf.sub(z.mul(current)).mul(current.conjugate()).mul(3 / 1e6);
+        const atBus = emf
+          .sub(z.mul(current))
+          .mul(current.conjugate())
+          .mul(3 / 1e6);
         expect(result.systems.sending.pMw).toBeCloseTo(atBus.re, 4);
         expect(result.systems.sending.qMvar).toBeCloseTo(atBus.im, 4);
         // Losses and balance close: generation = load + losses.
@@ -201,14 +222,23 @@ const twoBus = (extra: Partial<CorridorInput> = {}): CorridorInput => ({
   buses: [{ name: 'West' }, { name: 'Mid' }, { name: 'East' }],
   sections: [
     { from: 'West', to: 'Mid', lengthKm: 200, ...perKm, circuits: 2 },
-    { from: 'Mid', to: 'East', lengthKm: 200, ...perKm, seriesCapacitors: [{ name: 'SC1', position: 'sending-end', reactanceOhm: 25, ratedCurrentA: 2000 }] },
+    {
+      from: 'Mid',
+      to: 'East',
+      lengthKm: 200,
+      ...perKm,
+      seriesCapacitors: [{ name: 'SC1', position: 'sending-end', reactanceOhm: 25, ratedCurrentA: 2000 }],
+    },
   ],
   ...extra,
 });
 
 describe('solveCorridorCase: cases that have no operating point', () => {
   test('reports a load far beyond the nose as unsolved with a reason instead of throwing', () => {
-    const result = solveCorridorCase({ corridor: twoBus(), case: { label: 'too much', loading: { kind: 'receiving-load', pMw: 20000, qMvar: 5000 } } });
+    const result = solveCorridorCase({
+      corridor: twoBus(),
+      case: { label: 'too much', loading: { kind: 'receiving-load', pMw: 20000, qMvar: 5000 } },
+    });
     expect(result.solved).toBe(false);
     if (!result.solved) expect(result.reason).toMatch(/nose/);
   });
@@ -240,14 +270,21 @@ describe('solveCorridorCase: cases that have no operating point', () => {
   test('reports a voltage control that would exceed its var limit as unsolved', () => {
     const result = solveCorridorCase({
       corridor: twoBus(),
-      case: { label: 'held mid', loading: { kind: 'transfer', pMw: 800 }, voltageControl: [{ bus: 'Mid', voltageKv: 430, qMinMvar: -50, qMaxMvar: 50 }] },
+      case: {
+        label: 'held mid',
+        loading: { kind: 'transfer', pMw: 800 },
+        voltageControl: [{ bus: 'Mid', voltageKv: 430, qMinMvar: -50, qMaxMvar: 50 }],
+      },
     });
     expect(result.solved).toBe(false);
     if (!result.solved) expect(result.reason).toMatch(/limit/);
   });
 
   test('reports a corridor split by its only circuit out as unsolved', () => {
-    const result = solveCorridorCase({ corridor: twoBus(), case: { label: 'N-1', loading: { kind: 'receiving-load', pMw: 300, qMvar: 0 }, circuitsOut: ['Mid - East'] } });
+    const result = solveCorridorCase({
+      corridor: twoBus(),
+      case: { label: 'N-1', loading: { kind: 'receiving-load', pMw: 300, qMvar: 0 }, circuitsOut: ['Mid - East'] },
+    });
     expect(result.solved).toBe(false);
     if (!result.solved) expect(result.reason).toMatch(/split/);
   });
@@ -268,7 +305,12 @@ describe('solveCorridorCase: cases that have no operating point', () => {
 
 describe('solveCorridorCase: transfer, controls and contingencies', () => {
   test('delivers the stated transfer into the receiving system and reports the vars each voltage source supplies', () => {
-    const result = solved(solveCorridorCase({ corridor: twoBus(), case: { label: 'export', loading: { kind: 'transfer', pMw: 700 }, voltageControl: [{ bus: 'Mid', voltageKv: 405 }] } }));
+    const result = solved(
+      solveCorridorCase({
+        corridor: twoBus(),
+        case: { label: 'export', loading: { kind: 'transfer', pMw: 700 }, voltageControl: [{ bus: 'Mid', voltageKv: 405 }] },
+      }),
+    );
     const receivingBusFlow = result.sections[1]!.toEnd;
     // The receiving system absorbs 700 MW at its EMF: the flow at its bus is 700 MW plus the loss in its Thevenin resistance.
     expect(-result.systems.receiving.pMw).toBeGreaterThan(699.9);
@@ -283,7 +325,9 @@ describe('solveCorridorCase: transfer, controls and contingencies', () => {
 
   test('takes one circuit of a double-circuit section out and roughly doubles the current in the other', () => {
     const base = solved(solveCorridorCase({ corridor: twoBus(), case: { label: 'n', loading: { kind: 'transfer', pMw: 600 } } }));
-    const outage = solved(solveCorridorCase({ corridor: twoBus(), case: { label: 'n-1', loading: { kind: 'transfer', pMw: 600 }, circuitsOut: ['West - Mid'] } }));
+    const outage = solved(
+      solveCorridorCase({ corridor: twoBus(), case: { label: 'n-1', loading: { kind: 'transfer', pMw: 600 }, circuitsOut: ['West - Mid'] } }),
+    );
     expect(outage.sections[0]!.circuitsInService).toBe(1);
     expect(outage.sections[0]!.fromEnd.currentA / base.sections[0]!.fromEnd.currentA).toBeGreaterThan(1.8);
     expect(outage.sections[0]!.lossesMw).toBeGreaterThan(base.sections[0]!.lossesMw);
@@ -295,7 +339,9 @@ describe('solveCorridorCase: transfer, controls and contingencies', () => {
     expect(segment.currentA).toBeCloseTo(inserted.sections[1]!.fromEnd.currentA, 6);
     expect(segment.voltageKv).toBeCloseTo((segment.currentA * 25) / 1e3, 9);
     expect(segment.withinRating).toBe(segment.currentA <= 2000);
-    const bypassed = solved(solveCorridorCase({ corridor: twoBus(), case: { label: 'out', loading: { kind: 'transfer', pMw: 900 }, bypassed: ['SC1'] } }));
+    const bypassed = solved(
+      solveCorridorCase({ corridor: twoBus(), case: { label: 'out', loading: { kind: 'transfer', pMw: 900 }, bypassed: ['SC1'] } }),
+    );
     expect(bypassed.sections[1]!.seriesCapacitors[0]).toMatchObject({ bypassed: true, currentA: 0 });
     // Without the capacitor the same transfer needs a larger angle between the ends.
     expect(bypassed.systems.receiving.emfAngleDeg!).toBeLessThan(inserted.systems.receiving.emfAngleDeg!);
@@ -303,7 +349,11 @@ describe('solveCorridorCase: transfer, controls and contingencies', () => {
 
   test('holds an SVC bus on its slope and clamps it as a fixed susceptance at its limit, flagged', () => {
     const withSvc = twoBus({
-      buses: [{ name: 'West' }, { name: 'Mid', svc: { name: 'SVC', capacitiveMvar: 200, inductiveMvar: 100, slopePercent: 3, referenceVoltageKv: 400 } }, { name: 'East' }],
+      buses: [
+        { name: 'West' },
+        { name: 'Mid', svc: { name: 'SVC', capacitiveMvar: 200, inductiveMvar: 100, slopePercent: 3, referenceVoltageKv: 400 } },
+        { name: 'East' },
+      ],
     });
     const onSlope = solved(solveCorridorCase({ corridor: withSvc, case: { label: 'mid', loading: { kind: 'transfer', pMw: 1000 } } }));
     const svc = onSlope.svcs[0]!;

@@ -30,8 +30,12 @@ const symmetrical: CorridorInput = {
 
 describe('energisation of a corridor from either end', () => {
   test('gives mirrored bus voltages, the same open-end voltage and the same rise when a symmetrical corridor is energised from either end', () => {
-    const fromNorth = solved(solveCorridorCase({ corridor: symmetrical, case: { label: 'from North', loading: { kind: 'energisation', closedEnd: 'sending' } } }));
-    const fromSouth = solved(solveCorridorCase({ corridor: symmetrical, case: { label: 'from South', loading: { kind: 'energisation', closedEnd: 'receiving' } } }));
+    const fromNorth = solved(
+      solveCorridorCase({ corridor: symmetrical, case: { label: 'from North', loading: { kind: 'energisation', closedEnd: 'sending' } } }),
+    );
+    const fromSouth = solved(
+      solveCorridorCase({ corridor: symmetrical, case: { label: 'from South', loading: { kind: 'energisation', closedEnd: 'receiving' } } }),
+    );
     const north = fromNorth.buses.map((bus) => bus.voltageKv);
     const south = fromSouth.buses.map((bus) => bus.voltageKv).reverse();
     north.forEach((value, index) => expect(value).toBeCloseTo(south[index]!, 7));
@@ -56,7 +60,11 @@ describe('energisation of a corridor from either end', () => {
       ],
     });
     const reference = solveNoLoad({ network, sendingVoltageKv: 405 });
-    const corridor: CorridorInput = { ...symmetrical, buses: [symmetrical.buses[0]!, symmetrical.buses[2]!], sections: [{ from: 'North', to: 'South', lengthKm: 440, ...perKm }] };
+    const corridor: CorridorInput = {
+      ...symmetrical,
+      buses: [symmetrical.buses[0]!, symmetrical.buses[2]!],
+      sections: [{ from: 'North', to: 'South', lengthKm: 440, ...perKm }],
+    };
     const result = solved(solveCorridorCase({ corridor, case: { label: 'energise', loading: { kind: 'energisation', closedEnd: 'sending' } } }));
     expect(result.energisation!.openEndVoltageKv).toBeCloseTo(reference.receivingEnd.voltageKv, 5);
     // The line's charging raises the energising bus above the EMF behind the source (the sending-bus rise).
@@ -68,15 +76,33 @@ describe('energisation of a corridor from either end', () => {
   });
 
   test('puts the highest voltage at the open end of an uncompensated line (Ferranti)', () => {
-    const result = solved(solveCorridorCase({ corridor: symmetrical, case: { label: 'bare', loading: { kind: 'energisation', closedEnd: 'sending' }, unitsOut: ['RN', 'RS'] } }));
+    const result = solved(
+      solveCorridorCase({
+        corridor: symmetrical,
+        case: { label: 'bare', loading: { kind: 'energisation', closedEnd: 'sending' }, unitsOut: ['RN', 'RS'] },
+      }),
+    );
     expect(result.energisation!.highestAlongLine.voltageKv).toBeCloseTo(result.energisation!.openEndVoltageKv, 9);
     expect(result.energisation!.highestAlongLine.corridorKm).toBe(440);
   });
 
   test('weakening the energising system raises the sending-bus rise', () => {
-    const strong = solved(solveCorridorCase({ corridor: symmetrical, case: { label: 'strong', loading: { kind: 'energisation', closedEnd: 'sending' }, unitsOut: ['RN', 'RS'] } }));
+    const strong = solved(
+      solveCorridorCase({
+        corridor: symmetrical,
+        case: { label: 'strong', loading: { kind: 'energisation', closedEnd: 'sending' }, unitsOut: ['RN', 'RS'] },
+      }),
+    );
     const weak = solved(
-      solveCorridorCase({ corridor: symmetrical, case: { label: 'weak', loading: { kind: 'energisation', closedEnd: 'sending' }, unitsOut: ['RN', 'RS'], sendingSystem: { shortCircuitMva: 2000 } } }),
+      solveCorridorCase({
+        corridor: symmetrical,
+        case: {
+          label: 'weak',
+          loading: { kind: 'energisation', closedEnd: 'sending' },
+          unitsOut: ['RN', 'RS'],
+          sendingSystem: { shortCircuitMva: 2000 },
+        },
+      }),
     );
     expect(weak.energisation!.energisingBusRisePercent).toBeGreaterThan(2 * strong.energisation!.energisingBusRisePercent);
   });
@@ -89,7 +115,11 @@ describe('self-excitation of an energising generator', () => {
     solved(
       solveCorridorCase({
         corridor: symmetrical,
-        case: { label: 'black start', loading: { kind: 'energisation', closedEnd: 'sending', generator: { ratedMva: 250, shortCircuitRatio: 0.6 } }, unitsOut },
+        case: {
+          label: 'black start',
+          loading: { kind: 'energisation', closedEnd: 'sending', generator: { ratedMva: 250, shortCircuitRatio: 0.6 } },
+          unitsOut,
+        },
       }),
     ).energisation!.selfExcitation!;
 
@@ -124,7 +154,11 @@ describe('switching steps', () => {
       buses: [{ name: 'Strong', capacitors: [{ name: 'C50', qMvar: 50, ratedVoltageKv: 400, inService: false }] }, { name: 'Far' }],
       sections: [{ from: 'Strong', to: 'Far', lengthKm: 60, ...perKm }],
     };
-    const result = switchingSteps({ corridor, case: { label: 'light', loading: { kind: 'receiving-load', pMw: 100, qMvar: 20 } }, stepLimitPercent: 2 });
+    const result = switchingSteps({
+      corridor,
+      case: { label: 'light', loading: { kind: 'receiving-load', pMw: 100, qMvar: 20 } },
+      stepLimitPercent: 2,
+    });
     const step = result.steps[0]!;
     expect(step.operation).toBe('switch-in');
     expect(step.changePercent).toBeGreaterThan(0);
@@ -142,7 +176,11 @@ describe('switching steps', () => {
       buses: [{ name: 'A', reactors: [{ name: 'R', qMvar: 30, ratedVoltageKv: 400 }] }, { name: 'B' }],
       sections: [{ from: 'A', to: 'B', lengthKm: 1, ...perKm }],
     };
-    const result = switchingSteps({ corridor, case: { label: 'energise', loading: { kind: 'energisation', closedEnd: 'sending' } }, stepLimitPercent: 3 });
+    const result = switchingSteps({
+      corridor,
+      case: { label: 'energise', loading: { kind: 'energisation', closedEnd: 'sending' } },
+      stepLimitPercent: 3,
+    });
     // Short-circuit admittance at A: the system's 5000 MVA at atan(15), plus the reactor's 30 Mvar (inductive, adds nearly in phase),
     // less the 1 km line's charging (0.576 Mvar at 400 kV); the line's series impedance is negligible beside the open end.
     const angle = Math.atan(15);
@@ -152,7 +190,11 @@ describe('switching steps', () => {
   });
 
   test('compares each bus step with the limit and names the worst', () => {
-    const result = switchingSteps({ corridor: symmetrical, case: { label: 'energise', loading: { kind: 'energisation', closedEnd: 'sending' } }, stepLimitPercent: 1 });
+    const result = switchingSteps({
+      corridor: symmetrical,
+      case: { label: 'energise', loading: { kind: 'energisation', closedEnd: 'sending' } },
+      stepLimitPercent: 1,
+    });
     expect(result.steps.map((step) => step.unit)).toEqual(['RN', 'CM', 'RS']);
     const rs = result.steps.find((step) => step.unit === 'RS')!;
     // Switching out the far reactor on an open line raises the open end most (weakest point).

@@ -13,7 +13,13 @@ const bookA = new Complex({ abs: 0.9313, arg: (0.209 * Math.PI) / 180 });
 const bookB = new Complex({ abs: 97.0, arg: (87.2 * Math.PI) / 180 });
 const halfShuntS = new Complex(3.7e-7, 7.094e-4);
 const receivingKv = 730;
-const sendingKv = (bookA.mul((receivingKv * 1e3) / Math.sqrt(3)).add(bookB.mul(1900)).abs() * Math.sqrt(3)) / 1e3;
+const sendingKv =
+  (bookA
+    .mul((receivingKv * 1e3) / Math.sqrt(3))
+    .add(bookB.mul(1900))
+    .abs() *
+    Math.sqrt(3)) /
+  1e3;
 const noLoadKv = sendingKv / bookA.abs();
 const compensatedA = new Complex(1, 0).add(new Complex(halfShuntS.re, halfShuntS.im * 0.25).mul(bookB));
 const compensatedNoLoadKv = sendingKv / compensatedA.abs();
@@ -28,7 +34,16 @@ const corridor: CorridorInput = {
     { name: 'Sending', reactors: [{ name: 'sending reactor', qMvar: reactorMvar, ratedVoltageKv: 765, inService: false }] },
     { name: 'Receiving', reactors: [{ name: 'receiving reactor', qMvar: reactorMvar, ratedVoltageKv: 765, inService: false }] },
   ],
-  sections: [{ from: 'Sending', to: 'Receiving', lengthKm: 300, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674 }],
+  sections: [
+    {
+      from: 'Sending',
+      to: 'Receiving',
+      lengthKm: 300,
+      seriesResistanceOhmPerKm: 0.0165,
+      seriesReactanceOhmPerKm: 0.3306,
+      shuntSusceptanceUsPerKm: 4.674,
+    },
+  ],
 };
 
 describe('Glover, Sarma & Overbye (5th ed.) Example 5.9 as a case table', () => {
@@ -37,7 +52,11 @@ describe('Glover, Sarma & Overbye (5th ed.) Example 5.9 as a case table', () => 
     cases: [
       { label: 'full load', loading: { kind: 'receiving-load', pMw: Math.sqrt(3) * receivingKv * 1.9, qMvar: 0 } },
       { label: 'no load', loading: { kind: 'energisation', closedEnd: 'sending' } },
-      { label: 'no load, 75 % shunt compensation', loading: { kind: 'energisation', closedEnd: 'sending' }, unitsIn: ['sending reactor', 'receiving reactor'] },
+      {
+        label: 'no load, 75 % shunt compensation',
+        loading: { kind: 'energisation', closedEnd: 'sending' },
+        unitsIn: ['sending reactor', 'receiving reactor'],
+      },
     ],
   });
   const [fullLoad, noLoad, compensated] = table.cases.map((entry) => {

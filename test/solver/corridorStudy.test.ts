@@ -3,11 +3,11 @@ import { runSource, studyText } from '../support/studies.ts';
 import { solveCorridorCases } from '../../src/solver/index.ts';
 
 const corridorCode = [
-  "const perKm = { seriesResistanceOhmPerKm: 0.028, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };",
+  'const perKm = { seriesResistanceOhmPerKm: 0.028, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };',
   'const corridor = {',
-  "  frequencyHz: 50, nominalVoltageKv: 400,",
-  "  sendingSystem: { shortCircuitMva: 15000, xOverR: 15, emfKv: 410 },",
-  "  receivingSystem: { shortCircuitMva: 8000, xOverR: 12, emfKv: 400 },",
+  '  frequencyHz: 50, nominalVoltageKv: 400,',
+  '  sendingSystem: { shortCircuitMva: 15000, xOverR: 15, emfKv: 410 },',
+  '  receivingSystem: { shortCircuitMva: 8000, xOverR: 12, emfKv: 400 },',
   "  buses: [{ name: 'Kestrel Ridge' }, { name: 'Varnmouth', reactors: [{ name: 'VM-R1', qMvar: 100, ratedVoltageKv: 420 }] }],",
   "  sections: [{ from: 'Kestrel Ridge', to: 'Varnmouth', lengthKm: 320, ...perKm }],",
   '};',

@@ -1,8 +1,28 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { SolverDomainError, angleForTransfer, cascade, lineModel, powerAngleCurve, powerCircles, pvCurve, qvCurve, seriesCapacitor, solveFixedSendingVoltage, solveTwoEndVoltages } from '../../src/solver/index.ts';
+import {
+  SolverDomainError,
+  angleForTransfer,
+  cascade,
+  lineModel,
+  powerAngleCurve,
+  powerCircles,
+  pvCurve,
+  qvCurve,
+  seriesCapacitor,
+  solveFixedSendingVoltage,
+  solveTwoEndVoltages,
+} from '../../src/solver/index.ts';
 
-const shortLossless = (reactanceOhm: number) => lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: reactanceOhm / 100, shuntSusceptanceUsPerKm: 0, lengthKm: 100, model: 'short' });
+const shortLossless = (reactanceOhm: number) =>
+  lineModel({
+    frequencyHz: 50,
+    seriesResistanceOhmPerKm: 0,
+    seriesReactanceOhmPerKm: reactanceOhm / 100,
+    shuntSusceptanceUsPerKm: 0,
+    lengthKm: 100,
+    model: 'short',
+  });
 
 describe('pvCurve', () => {
   // Radial lossless reactance at unity power factor: Pmax = E^2 / (2X) at V = E / sqrt(2)
@@ -20,7 +40,13 @@ describe('pvCurve', () => {
   });
 
   test('agrees with the Newton solution on the upper branch', () => {
-    const line = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 });
+    const line = lineModel({
+      frequencyHz: 60,
+      seriesResistanceOhmPerKm: 0.0165,
+      seriesReactanceOhmPerKm: 0.3306,
+      shuntSusceptanceUsPerKm: 4.674,
+      lengthKm: 300,
+    });
     const curve = pvCurve({ network: line, sendingVoltageKv: 765, powerFactor: 0.97, powerFactorSense: 'lagging', pointCount: 11 });
     const sample = curve.upperBranch[6]!;
     const newton = solveFixedSendingVoltage({ network: line, sendingVoltageKv: 765, load: { pMw: sample.pMw, qMvar: sample.qMvar } });
@@ -43,7 +69,8 @@ describe('powerAngleCurve', () => {
         const line = shortLossless(reactanceOhm);
         const compensated = cascade({ elements: [line, seriesCapacitor({ degreeOfCompensation: degree, compensatedLine: line })] });
         const plain = powerAngleCurve({ network: line, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw;
-        const raised = powerAngleCurve({ network: compensated, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw;
+        const raised = powerAngleCurve({ network: compensated, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit
+          .receivingPMw;
         expect(raised / plain).toBeCloseTo(1 / (1 - degree), 9);
       }),
     );
@@ -78,14 +105,19 @@ describe('a net-capacitive series path', () => {
     const attempt = () => powerAngleCurve({ network, sendingVoltageKv: 400, receivingVoltageKv: 400 });
     expect(attempt).toThrow(SolverDomainError);
     expect(attempt).toThrow(/series capacitor reactance .* = 60 is outside the allowed range \(0, 50\) ohm/);
-    expect(() => angleForTransfer({ network, sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 100 })).toThrow(/series capacitor reactance/);
+    expect(() => angleForTransfer({ network, sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 100 })).toThrow(
+      /series capacitor reactance/,
+    );
     expect(() => solveFixedSendingVoltage({ network, sendingVoltageKv: 400, load: { pMw: 100, qMvar: 0 } })).toThrow(/series capacitor reactance/);
   });
 
   test('is accepted when the bank in ohms is smaller than the line reactance', () => {
     const line = shortLossless(50);
     const network = cascade({ elements: [line, seriesCapacitor({ reactanceOhm: 40 })] });
-    expect(powerAngleCurve({ network, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw).toBeCloseTo(400 ** 2 / 10, 6);
+    expect(powerAngleCurve({ network, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw).toBeCloseTo(
+      400 ** 2 / 10,
+      6,
+    );
   });
 });
 
@@ -114,14 +146,23 @@ describe('powerCircles', () => {
 
   // Lossless line: receiving-end circle centred at (0, -Vr^2 cot(beta l) / Zc), radius Vs Vr / (Zc sin(beta l)).
   test('centres the receiving-end circle of a lossless line at -Vr^2 cot(beta l) / Zc', () => {
-    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 400 });
+    const line = lineModel({
+      frequencyHz: 50,
+      seriesResistanceOhmPerKm: 0,
+      seriesReactanceOhmPerKm: 0.32,
+      shuntSusceptanceUsPerKm: 3.6,
+      lengthKm: 400,
+    });
     const zc = Math.sqrt(0.32 / 3.6e-6);
     const theta = Math.sqrt(0.32 * 3.6e-6) * 400;
     const circles = powerCircles({ network: line, sendingVoltageKv: 400, receivingVoltageKv: 400 });
     expect(circles.receivingEnd.centreMw).toBeCloseTo(0, 9);
     expect(circles.receivingEnd.centreMvar).toBeCloseTo(-(400 ** 2) / Math.tan(theta) / zc, 9);
     expect(circles.receivingEnd.radiusMva).toBeCloseTo(400 ** 2 / (zc * Math.sin(theta)), 9);
-    expect(circles.receivingEnd.maximumPMw).toBeCloseTo(powerAngleCurve({ network: line, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw, 6);
+    expect(circles.receivingEnd.maximumPMw).toBeCloseTo(
+      powerAngleCurve({ network: line, sendingVoltageKv: 400, receivingVoltageKv: 400, pointCount: 2 }).steadyStateLimit.receivingPMw,
+      6,
+    );
   });
 });
 
@@ -137,10 +178,23 @@ describe('qvCurve', () => {
 
   // Consistency: where the curve crosses zero support, the network alone carries the load at that voltage (Newton, upper branch).
   test('crosses zero support at the voltage the network gives without support', () => {
-    const line = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 });
+    const line = lineModel({
+      frequencyHz: 60,
+      seriesResistanceOhmPerKm: 0.0165,
+      seriesReactanceOhmPerKm: 0.3306,
+      shuntSusceptanceUsPerKm: 4.674,
+      lengthKm: 300,
+    });
     const load = { pMw: 1500, qMvar: 300 };
     const newton = solveFixedSendingVoltage({ network: line, sendingVoltageKv: 765, load });
-    const atNewton = qvCurve({ network: line, sendingVoltageKv: 765, load, pointCount: 2, minimumVoltageKv: newton.receivingEnd.voltageKv, maximumVoltageKv: 800 });
+    const atNewton = qvCurve({
+      network: line,
+      sendingVoltageKv: 765,
+      load,
+      pointCount: 2,
+      minimumVoltageKv: newton.receivingEnd.voltageKv,
+      maximumVoltageKv: 800,
+    });
     expect(atNewton.supportMvar[0]).toBeCloseTo(0, 3);
     // Below the nose of the P-V curve the bus has a positive reactive margin.
     expect(qvCurve({ network: line, sendingVoltageKv: 765, load }).reactiveMarginMvar).toBeGreaterThan(0);

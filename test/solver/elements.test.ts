@@ -1,7 +1,25 @@
 import { describe, expect, test } from 'vitest';
-import { SolverDomainError, cascade, lineModel, reverseTwoPort, seriesCapacitor, seriesImpedance, shuntCapacitor, shuntReactor, sourceEquivalent, symmetricalPi, twoPortFromAbcd } from '../../src/solver/index.ts';
+import {
+  SolverDomainError,
+  cascade,
+  lineModel,
+  reverseTwoPort,
+  seriesCapacitor,
+  seriesImpedance,
+  shuntCapacitor,
+  shuntReactor,
+  sourceEquivalent,
+  symmetricalPi,
+  twoPortFromAbcd,
+} from '../../src/solver/index.ts';
 
-const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 250 });
+const line = lineModel({
+  frequencyHz: 50,
+  seriesResistanceOhmPerKm: 0.03,
+  seriesReactanceOhmPerKm: 0.32,
+  shuntSusceptanceUsPerKm: 3.6,
+  lengthKm: 250,
+});
 
 describe('seriesCapacitor', () => {
   test('puts -jXc in the B parameter', () => {
@@ -16,7 +34,9 @@ describe('seriesCapacitor', () => {
   });
 
   test('rejects a degree of compensation of 1 with a readable message', () => {
-    expect(() => seriesCapacitor({ degreeOfCompensation: 1, compensatedLine: line })).toThrow('degreeOfCompensation = 1 is outside the allowed range (0, 1)');
+    expect(() => seriesCapacitor({ degreeOfCompensation: 1, compensatedLine: line })).toThrow(
+      'degreeOfCompensation = 1 is outside the allowed range (0, 1)',
+    );
   });
 });
 
@@ -56,7 +76,14 @@ describe('lumped elements from totals', () => {
   // a symmetrical pi from the totals Z = z l and Y = y l is that nominal pi.
   test('builds the nominal pi of the Glover example from total Z and Y', () => {
     const pi = symmetricalPi({ seriesImpedanceOhm: { re: 0.0165 * 300, im: 0.3306 * 300 }, shuntAdmittanceS: { re: 0, im: 4.674e-6 * 300 } });
-    const nominal = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300, model: 'nominal-pi' });
+    const nominal = lineModel({
+      frequencyHz: 60,
+      seriesResistanceOhmPerKm: 0.0165,
+      seriesReactanceOhmPerKm: 0.3306,
+      shuntSusceptanceUsPerKm: 4.674,
+      lengthKm: 300,
+      model: 'nominal-pi',
+    });
     expect(Math.abs(Math.hypot(pi.B.re, pi.B.im) - 99.3)).toBeLessThanOrEqual(0.05);
     for (const key of ['A', 'B', 'C', 'D'] as const) {
       expect(pi[key].re).toBeCloseTo(nominal[key].re, 12);
@@ -66,7 +93,10 @@ describe('lumped elements from totals', () => {
 
   // Glover, Sarma & Overbye, Example 5.2 (from memory): exact ABCD A = D = 0.9313 at 0.209 deg, B = 97.0 ohm at 87.2 deg,
   // C = 1.37e-3 S at 90.06 deg; rounded to the printed digits they keep AD - BC = 1 to about 1e-4.
-  const polarValue = (magnitude: number, angleDeg: number) => ({ re: magnitude * Math.cos((angleDeg * Math.PI) / 180), im: magnitude * Math.sin((angleDeg * Math.PI) / 180) });
+  const polarValue = (magnitude: number, angleDeg: number) => ({
+    re: magnitude * Math.cos((angleDeg * Math.PI) / 180),
+    im: magnitude * Math.sin((angleDeg * Math.PI) / 180),
+  });
   const gloverAbcd = { A: polarValue(0.9313, 0.209), B: polarValue(97.0, 87.2), C: polarValue(1.37e-3, 90.06), D: polarValue(0.9313, 0.209) };
 
   test('accepts the printed ABCD of the Glover example within the rounding tolerance given', () => {
@@ -83,11 +113,22 @@ describe('lumped elements from totals', () => {
 describe('reverseTwoPort', () => {
   // Identity: energised from the other end, a reciprocal two-port [A B; C D] becomes [D B; C A].
   test('swaps A and D and keeps B and C, element by element', () => {
-    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6, lengthKm: 250 });
+    const line = lineModel({
+      frequencyHz: 50,
+      seriesResistanceOhmPerKm: 0.03,
+      seriesReactanceOhmPerKm: 0.32,
+      shuntSusceptanceUsPerKm: 3.6,
+      lengthKm: 250,
+    });
     const source = sourceEquivalent({ end: 'sending', shortCircuitMva: 8000, xOverR: 12, nominalVoltageKv: 400 });
     const network = cascade({ elements: [source, line, shuntReactor({ qMvar: 90, ratedVoltageKv: 400 }), seriesCapacitor({ reactanceOhm: 20 })] });
     const reversed = reverseTwoPort({ network });
-    for (const [mine, theirs] of [['A', 'D'], ['B', 'B'], ['C', 'C'], ['D', 'A']] as const) {
+    for (const [mine, theirs] of [
+      ['A', 'D'],
+      ['B', 'B'],
+      ['C', 'C'],
+      ['D', 'A'],
+    ] as const) {
       expect(reversed[mine].re).toBeCloseTo(network[theirs].re, 9);
       expect(reversed[mine].im).toBeCloseTo(network[theirs].im, 9);
     }

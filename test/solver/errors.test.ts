@@ -47,7 +47,9 @@ describe('SolverDomainError', () => {
 
   test('reports a load beyond the nose as NO_OPERATING_POINT', () => {
     const line = lineModel({ ...perKm, lengthKm: 300 });
-    expect(caught(() => solveFixedSendingVoltage({ network: line, sendingVoltageKv: 400, load: { pMw: 50000, qMvar: 0 } })).code).toBe('NO_OPERATING_POINT');
+    expect(caught(() => solveFixedSendingVoltage({ network: line, sendingVoltageKv: 400, load: { pMw: 50000, qMvar: 0 } })).code).toBe(
+      'NO_OPERATING_POINT',
+    );
   });
 
   // Property: any numeric input either gives finite results or a SolverDomainError, never NaN or Infinity.
@@ -55,7 +57,14 @@ describe('SolverDomainError', () => {
     fc.assert(
       fc.property(fc.double(), fc.double(), fc.double(), fc.double(), (lengthKm, resistance, reactance, susceptance) => {
         try {
-          const result = lineCharacteristics({ frequencyHz: 50, seriesResistanceOhmPerKm: resistance, seriesReactanceOhmPerKm: reactance, shuntSusceptanceUsPerKm: susceptance, lengthKm, nominalVoltageKv: 400 });
+          const result = lineCharacteristics({
+            frequencyHz: 50,
+            seriesResistanceOhmPerKm: resistance,
+            seriesReactanceOhmPerKm: reactance,
+            shuntSusceptanceUsPerKm: susceptance,
+            lengthKm,
+            nominalVoltageKv: 400,
+          });
           expect(JSON.stringify(result)).not.toMatch(/null|NaN|Infinity/);
         } catch (error) {
           expect(error).toBeInstanceOf(SolverDomainError);

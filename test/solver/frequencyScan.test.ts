@@ -74,9 +74,25 @@ describe('frequencyScan', () => {
 
   test('converges on the lumped result as a distributed line loses its capacitance', () => {
     const line = { kind: 'line-section' as const, lengthKm: 300, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.33 };
-    const lumped = frequencyScan({ frequencyHz: 60, elements: [{ kind: 'generator', subtransientReactanceOhm: 40 }, { ...line, kind: 'series-impedance', reactanceOhm: 99 }, { kind: 'series-capacitor', reactanceOhm: 60 }, { kind: 'system', reactanceOhm: 20 }] });
+    const lumped = frequencyScan({
+      frequencyHz: 60,
+      elements: [
+        { kind: 'generator', subtransientReactanceOhm: 40 },
+        { ...line, kind: 'series-impedance', reactanceOhm: 99 },
+        { kind: 'series-capacitor', reactanceOhm: 60 },
+        { kind: 'system', reactanceOhm: 20 },
+      ],
+    });
     const separations = [5, 0.05].map((shuntSusceptanceUsPerKm) => {
-      const scan = frequencyScan({ frequencyHz: 60, elements: [{ kind: 'generator', subtransientReactanceOhm: 40 }, { ...line, shuntSusceptanceUsPerKm }, { kind: 'series-capacitor', reactanceOhm: 60 }, { kind: 'system', reactanceOhm: 20 }] });
+      const scan = frequencyScan({
+        frequencyHz: 60,
+        elements: [
+          { kind: 'generator', subtransientReactanceOhm: 40 },
+          { ...line, shuntSusceptanceUsPerKm },
+          { kind: 'series-capacitor', reactanceOhm: 60 },
+          { kind: 'system', reactanceOhm: 20 },
+        ],
+      });
       return Math.abs(scan.seriesResonances[0]!.frequencyHz - lumped.seriesResonances[0]!.frequencyHz);
     });
     expect(separations[1]).toBeLessThan(separations[0]! / 50);
@@ -84,8 +100,25 @@ describe('frequencyScan', () => {
   });
 
   test('moves the resonance up when a shunt reactor is added beside the system (it lowers the inductance to ground)', () => {
-    const base = frequencyScan({ frequencyHz: 50, elements: [{ kind: 'generator', subtransientReactanceOhm: 40 }, { kind: 'series-impedance', reactanceOhm: 100 }, { kind: 'series-capacitor', reactanceOhm: 50 }, { kind: 'system', reactanceOhm: 30 }] });
-    const withReactor = frequencyScan({ frequencyHz: 50, elements: [{ kind: 'generator', subtransientReactanceOhm: 40 }, { kind: 'series-impedance', reactanceOhm: 100 }, { kind: 'series-capacitor', reactanceOhm: 50 }, { kind: 'shunt-reactor', qMvar: 150, ratedVoltageKv: 400 }, { kind: 'system', reactanceOhm: 30 }] });
+    const base = frequencyScan({
+      frequencyHz: 50,
+      elements: [
+        { kind: 'generator', subtransientReactanceOhm: 40 },
+        { kind: 'series-impedance', reactanceOhm: 100 },
+        { kind: 'series-capacitor', reactanceOhm: 50 },
+        { kind: 'system', reactanceOhm: 30 },
+      ],
+    });
+    const withReactor = frequencyScan({
+      frequencyHz: 50,
+      elements: [
+        { kind: 'generator', subtransientReactanceOhm: 40 },
+        { kind: 'series-impedance', reactanceOhm: 100 },
+        { kind: 'series-capacitor', reactanceOhm: 50 },
+        { kind: 'shunt-reactor', qMvar: 150, ratedVoltageKv: 400 },
+        { kind: 'system', reactanceOhm: 30 },
+      ],
+    });
     // Reactor 400^2/150 = 1067 ohm in parallel with 30 ohm gives 29.18 ohm: f_er = 50 sqrt(50 / 169.18).
     expect(withReactor.seriesResonances[0]!.frequencyHz).toBeCloseTo(50 * Math.sqrt(50 / (140 + (30 * 1066.667) / 1096.667)), 3);
     expect(withReactor.seriesResonances[0]!.frequencyHz).toBeGreaterThan(base.seriesResonances[0]!.frequencyHz);
@@ -119,7 +152,14 @@ describe('frequencyScan', () => {
   });
 
   test('refuses a chain with no path to ground, naming the fix', () => {
-    const call = () => frequencyScan({ frequencyHz: 60, elements: [{ kind: 'generator', subtransientReactanceOhm: 40 }, { kind: 'series-capacitor', reactanceOhm: 20 }] });
+    const call = () =>
+      frequencyScan({
+        frequencyHz: 60,
+        elements: [
+          { kind: 'generator', subtransientReactanceOhm: 40 },
+          { kind: 'series-capacitor', reactanceOhm: 20 },
+        ],
+      });
     expect(call).toThrow(SolverDomainError);
     expect(call).toThrow(/end the chain with a system/);
   });

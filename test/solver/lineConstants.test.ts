@@ -43,7 +43,11 @@ describe('lineConstantsFromGeometry', () => {
   test('gives the published factor 1.0905 for a square four-conductor bundle', () => {
     const gmrM = 0.0142;
     const spacingM = 0.45;
-    const constants = lineConstantsFromGeometry({ ...bundledLine, conductor: { ...pheasant, gmrMm: gmrM * 1e3 }, bundle: { subConductorCount: 4, spacingM } });
+    const constants = lineConstantsFromGeometry({
+      ...bundledLine,
+      conductor: { ...pheasant, gmrMm: gmrM * 1e3 },
+      bundle: { subConductorCount: 4, spacingM },
+    });
     expect(constants.bundleGmrM / Math.pow(gmrM * spacingM ** 3, 1 / 4)).toBeCloseTo(Math.pow(2, 1 / 8), 10);
   });
 

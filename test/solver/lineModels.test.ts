@@ -43,7 +43,9 @@ describe('lineModel', () => {
         const pi = lineModel({ ...glover, lengthKm, model: 'nominal-pi' });
         const gammaLengthSquared = Math.hypot(0.0165, 0.3306) * 4.674e-6 * lengthKm ** 2;
         expect(Math.hypot(exact.A.re - pi.A.re, exact.A.im - pi.A.im)).toBeLessThanOrEqual((gammaLengthSquared ** 2 / 24) * 1.05);
-        expect(Math.hypot(exact.B.re - pi.B.re, exact.B.im - pi.B.im) / Math.hypot(pi.B.re, pi.B.im)).toBeLessThanOrEqual((gammaLengthSquared / 6) * 1.05);
+        expect(Math.hypot(exact.B.re - pi.B.re, exact.B.im - pi.B.im) / Math.hypot(pi.B.re, pi.B.im)).toBeLessThanOrEqual(
+          (gammaLengthSquared / 6) * 1.05,
+        );
       }),
     );
   });
@@ -51,16 +53,21 @@ describe('lineModel', () => {
   // Physical identity (lossless distributed line): an open line raises the voltage by 1 / cos(beta l) (Ferranti effect).
   test('raises the open-end voltage of a lossless line by 1/cos(beta l)', () => {
     fc.assert(
-      fc.property(fc.double({ min: 10, max: 1000, noNaN: true }), fc.double({ min: 0.2, max: 0.5, noNaN: true }), fc.double({ min: 2.5, max: 5, noNaN: true }), (lengthKm, x, b) => {
-        const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: x, shuntSusceptanceUsPerKm: b, lengthKm });
-        const betaLength = Math.sqrt(x * b * 1e-6) * lengthKm;
-        // The identity holds for lines shorter than a quarter wavelength; at a quarter wavelength the open end
-        // is at resonance and the solver refuses (next test).
-        fc.pre(betaLength < 0.95 * (Math.PI / 2));
-        const noLoad = solveNoLoad({ network: line, sendingVoltageKv: 400 });
-        // Compared as a relative error: near a quarter wavelength the ratio itself grows without bound.
-        expect(Math.abs((noLoad.receivingEnd.voltageKv / 400) * Math.cos(betaLength) - 1)).toBeLessThan(1e-9);
-      }),
+      fc.property(
+        fc.double({ min: 10, max: 1000, noNaN: true }),
+        fc.double({ min: 0.2, max: 0.5, noNaN: true }),
+        fc.double({ min: 2.5, max: 5, noNaN: true }),
+        (lengthKm, x, b) => {
+          const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: x, shuntSusceptanceUsPerKm: b, lengthKm });
+          const betaLength = Math.sqrt(x * b * 1e-6) * lengthKm;
+          // The identity holds for lines shorter than a quarter wavelength; at a quarter wavelength the open end
+          // is at resonance and the solver refuses (next test).
+          fc.pre(betaLength < 0.95 * (Math.PI / 2));
+          const noLoad = solveNoLoad({ network: line, sendingVoltageKv: 400 });
+          // Compared as a relative error: near a quarter wavelength the ratio itself grows without bound.
+          expect(Math.abs((noLoad.receivingEnd.voltageKv / 400) * Math.cos(betaLength) - 1)).toBeLessThan(1e-9);
+        },
+      ),
     );
   });
 });
@@ -92,7 +99,13 @@ describe('a line of a quarter wavelength', () => {
     const x = 0.3;
     const b = 4;
     const quarterWaveKm = Math.PI / 2 / Math.sqrt(x * b * 1e-6);
-    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: x, shuntSusceptanceUsPerKm: b, lengthKm: quarterWaveKm });
+    const line = lineModel({
+      frequencyHz: 50,
+      seriesResistanceOhmPerKm: 0,
+      seriesReactanceOhmPerKm: x,
+      shuntSusceptanceUsPerKm: b,
+      lengthKm: quarterWaveKm,
+    });
     expect(() => solveNoLoad({ network: line, sendingVoltageKv: 400 })).toThrow(/resonance/);
   });
 });
@@ -125,11 +138,18 @@ describe('lineCharacteristics', () => {
         // Overhead lines propagate at 95-100 % of the speed of light; pick L and C accordingly.
         const inductanceMhPerKm = 1.0;
         const speedKmPerS = 299_792.458 * velocityShare;
-        const capacitanceNfPerKm = 1 / (speedKmPerS ** 2 * inductanceMhPerKm * 1e-3) * 1e9;
-        const result = lineCharacteristics({ frequencyHz, seriesResistanceOhmPerKm: 0.02, seriesInductanceMhPerKm: inductanceMhPerKm, shuntCapacitanceNfPerKm: capacitanceNfPerKm, lengthKm: 100, nominalVoltageKv: 400 });
+        const capacitanceNfPerKm = (1 / (speedKmPerS ** 2 * inductanceMhPerKm * 1e-3)) * 1e9;
+        const result = lineCharacteristics({
+          frequencyHz,
+          seriesResistanceOhmPerKm: 0.02,
+          seriesInductanceMhPerKm: inductanceMhPerKm,
+          shuntCapacitanceNfPerKm: capacitanceNfPerKm,
+          lengthKm: 100,
+          nominalVoltageKv: 400,
+        });
         const lightDegPerKm = (360 * frequencyHz) / 299_792.458;
         expect(result.phaseConstantDegPerKm).toBeGreaterThanOrEqual(lightDegPerKm * 0.999);
-        expect(result.phaseConstantDegPerKm).toBeLessThanOrEqual(lightDegPerKm / 0.95 * 1.001);
+        expect(result.phaseConstantDegPerKm).toBeLessThanOrEqual((lightDegPerKm / 0.95) * 1.001);
         expect(Math.abs(result.phaseConstantDegPerKm - (frequencyHz === 50 ? 0.06 : 0.072))).toBeLessThan(0.004);
       }),
     );
@@ -138,7 +158,7 @@ describe('lineCharacteristics', () => {
   // Physical identity: charging Mvar = V^2 omega C length.
   test('reports total charging Mvar as V squared times omega C times length', () => {
     const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
-    expect(result.chargingMvar).toBeCloseTo(((500e3) ** 2 * 2 * Math.PI * 60 * 11.5e-9 * 300) / 1e6, 9);
+    expect(result.chargingMvar).toBeCloseTo((500e3 ** 2 * 2 * Math.PI * 60 * 11.5e-9 * 300) / 1e6, 9);
   });
 
   test('gives the equivalent-pi series impedance equal to the exact B parameter', () => {
@@ -168,9 +188,20 @@ describe('line characteristics with compensation', () => {
   // compensation 411 MW; SIL' = SIL sqrt((1 - k_sh) / (1 - k_se)). The per-km data only need Zc = 345^2 / 325 ohm.
   test('gives the compensated SIL of the Gönen example', () => {
     const zc = 345 ** 2 / 325;
-    const gonen = { frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.5, shuntSusceptanceUsPerKm: (0.5 / zc ** 2) * 1e6, lengthKm: 200, nominalVoltageKv: 345 };
-    expect(compensatedLineCharacteristics({ ...gonen, seriesCompensationDegree: 0.5, shuntCompensationDegree: 0 }).surgeImpedanceLoadingMw).toBeCloseTo(459.6, 1);
-    expect(compensatedLineCharacteristics({ ...gonen, seriesCompensationDegree: 0.5, shuntCompensationDegree: 0.2 }).surgeImpedanceLoadingMw).toBeCloseTo(411.1, 1);
+    const gonen = {
+      frequencyHz: 60,
+      seriesResistanceOhmPerKm: 0,
+      seriesReactanceOhmPerKm: 0.5,
+      shuntSusceptanceUsPerKm: (0.5 / zc ** 2) * 1e6,
+      lengthKm: 200,
+      nominalVoltageKv: 345,
+    };
+    expect(
+      compensatedLineCharacteristics({ ...gonen, seriesCompensationDegree: 0.5, shuntCompensationDegree: 0 }).surgeImpedanceLoadingMw,
+    ).toBeCloseTo(459.6, 1);
+    expect(
+      compensatedLineCharacteristics({ ...gonen, seriesCompensationDegree: 0.5, shuntCompensationDegree: 0.2 }).surgeImpedanceLoadingMw,
+    ).toBeCloseTo(411.1, 1);
   });
 
   // Identity (Miller, "Reactive Power Control in Electric Systems", 1982, ch. 2; from memory): uniformly distributed compensation
@@ -178,7 +209,14 @@ describe('line characteristics with compensation', () => {
   test('agrees with a line built with uniformly distributed shunt compensation', () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: 0.9, noNaN: true }), fc.double({ min: 50, max: 800, noNaN: true }), (degree, lengthKm) => {
-        const lossless = { frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 3.8, lengthKm, nominalVoltageKv: 400 };
+        const lossless = {
+          frequencyHz: 50,
+          seriesResistanceOhmPerKm: 0,
+          seriesReactanceOhmPerKm: 0.3,
+          shuntSusceptanceUsPerKm: 3.8,
+          lengthKm,
+          nominalVoltageKv: 400,
+        };
         const formula = compensatedLineCharacteristics({ ...lossless, seriesCompensationDegree: 0, shuntCompensationDegree: degree });
         const distributed = lineCharacteristics({ ...lossless, distributedShuntCompensationDegree: degree });
         expect(distributed.losslessSurgeImpedanceOhm).toBeCloseTo(formula.surgeImpedanceOhm, 9);
@@ -190,7 +228,14 @@ describe('line characteristics with compensation', () => {
 
   // Physical identity: the open-end rise of a lossless line with distributed shunt compensation k is 1 / cos(beta l sqrt(1 - k)).
   test('raises the open end of a distributed-compensated line by 1/cos(beta l sqrt(1 - k))', () => {
-    const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 3.8, lengthKm: 500, distributedShuntCompensationDegree: 0.6 });
+    const line = lineModel({
+      frequencyHz: 50,
+      seriesResistanceOhmPerKm: 0,
+      seriesReactanceOhmPerKm: 0.3,
+      shuntSusceptanceUsPerKm: 3.8,
+      lengthKm: 500,
+      distributedShuntCompensationDegree: 0.6,
+    });
     const theta = Math.sqrt(0.3 * 3.8e-6) * 500 * Math.sqrt(0.4);
     expect(solveNoLoad({ network: line, sendingVoltageKv: 400 }).receivingEnd.voltageKv).toBeCloseTo(400 / Math.cos(theta), 9);
     expect(line.distributedShuntCompensationDegree).toBe(0.6);

@@ -3,7 +3,14 @@ import fc from 'fast-check';
 import { lineLoadability } from '../../src/solver/index.ts';
 
 // 765 kV line constants of Glover, Sarma & Overbye, Example 5.2 (from memory).
-const line765 = { frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, nominalVoltageKv: 765, thermalLimitA: 4000 };
+const line765 = {
+  frequencyHz: 60,
+  seriesResistanceOhmPerKm: 0.0165,
+  seriesReactanceOhmPerKm: 0.3306,
+  shuntSusceptanceUsPerKm: 4.674,
+  nominalVoltageKv: 765,
+  thermalLimitA: 4000,
+};
 
 describe('lineLoadability', () => {
   // Dunlop, Gutman & Marchenko (IEEE Trans. PAS-98, 1979): a 30 % stability margin corresponds to an angle of about 44 deg across
@@ -101,8 +108,22 @@ describe('lineLoadability between two terminal systems', () => {
   // Tolerance 0.1 SIL: the reading of the printed curve (about 0.05 SIL) plus "nearly identical".
   test('reproduces the St. Clair curve for a UHV line between 50 kA systems', () => {
     const betaPerKm = (2 * Math.PI * 60) / (299_792.458 * 0.98);
-    const uhv = { frequencyHz: 60, seriesReactanceOhmPerKm: betaPerKm * 230, seriesResistanceOhmPerKm: 0.03 * betaPerKm * 230, shuntSusceptanceUsPerKm: (betaPerKm / 230) * 1e6, nominalVoltageKv: 1100, thermalLimitA: 8000 };
-    const stClair: Array<[number, number]> = [[100, 2.0], [150, 1.6], [200, 1.35], [300, 1.05], [400, 0.85], [500, 0.72]];
+    const uhv = {
+      frequencyHz: 60,
+      seriesReactanceOhmPerKm: betaPerKm * 230,
+      seriesResistanceOhmPerKm: 0.03 * betaPerKm * 230,
+      shuntSusceptanceUsPerKm: (betaPerKm / 230) * 1e6,
+      nominalVoltageKv: 1100,
+      thermalLimitA: 8000,
+    };
+    const stClair: Array<[number, number]> = [
+      [100, 2.0],
+      [150, 1.6],
+      [200, 1.35],
+      [300, 1.05],
+      [400, 0.85],
+      [500, 0.72],
+    ];
     const curve = lineLoadability({ ...uhv, lengthsKm: stClair.map(([miles]) => miles * 1.609344) });
     curve.points.forEach((point, index) => expect(Math.abs(point.loadabilitySil - stClair[index]![1])).toBeLessThanOrEqual(0.1));
   });

@@ -35,6 +35,8 @@ describe('elementLosses', () => {
   });
 
   test('refuses an operating point of another network', () => {
-    expect(() => elementLosses({ network: route, operatingPoint: solveNoLoad({ network: whole, sendingVoltageKv: 400 }) })).toThrow(/does not belong to this network/);
+    expect(() => elementLosses({ network: route, operatingPoint: solveNoLoad({ network: whole, sendingVoltageKv: 400 }) })).toThrow(
+      /does not belong to this network/,
+    );
   });
 });

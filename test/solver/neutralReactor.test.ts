@@ -3,9 +3,16 @@ import fc from 'fast-check';
 import { SolverDomainError, neutralReactorDesign } from '../../src/solver/index.ts';
 
 // An invented 500 kV, 60 Hz, 400 km line (C1 12.5, C0 8.0 nF/km), 70 % shunt compensation: data for the identities below.
-const line = { frequencyHz: 60, voltageKv: 525, lengthKm: 400, positiveSequenceCapacitanceNfPerKm: 12.5, zeroSequenceCapacitanceNfPerKm: 8, shuntCompensationDegree: 0.7 };
+const line = {
+  frequencyHz: 60,
+  voltageKv: 525,
+  lengthKm: 400,
+  positiveSequenceCapacitanceNfPerKm: 12.5,
+  zeroSequenceCapacitanceNfPerKm: 8,
+  shuntCompensationDegree: 0.7,
+};
 const omega = 2 * Math.PI * 60;
-const phaseVoltageV = (525e3) / Math.sqrt(3);
+const phaseVoltageV = 525e3 / Math.sqrt(3);
 const interphaseF = ((12.5 - 8) / 3) * 1e-9 * 400;
 const groundF = 8e-9 * 400;
 
@@ -45,7 +52,14 @@ describe('neutralReactorDesign', () => {
         fc.double({ min: 50, max: 800, noNaN: true }),
         (c1, c0Share, headroom, lengthKm) => {
           const degree = 1 - c0Share + headroom * c0Share;
-          const design = neutralReactorDesign({ frequencyHz: 50, voltageKv: 420, lengthKm, positiveSequenceCapacitanceNfPerKm: c1, zeroSequenceCapacitanceNfPerKm: c0Share * c1, shuntCompensationDegree: degree });
+          const design = neutralReactorDesign({
+            frequencyHz: 50,
+            voltageKv: 420,
+            lengthKm,
+            positiveSequenceCapacitanceNfPerKm: c1,
+            zeroSequenceCapacitanceNfPerKm: c0Share * c1,
+            shuntCompensationDegree: degree,
+          });
           const reference = design.secondaryArc.withoutReactors.capacitiveCurrentA;
           expect(design.secondaryArc.withNeutralReactor.capacitiveCurrentA).toBeLessThan(1e-9 * reference);
           expect(design.secondaryArc.withNeutralReactor.recoveryVoltagePu).toBeLessThan(1e-9);

@@ -1,6 +1,16 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { SolverDomainError, cascade, lineModel, seriesCapacitor, shuntReactor, solveNoLoad, solveReceivingLoad, sourceEquivalent, voltageProfile } from '../../src/solver/index.ts';
+import {
+  SolverDomainError,
+  cascade,
+  lineModel,
+  seriesCapacitor,
+  shuntReactor,
+  solveNoLoad,
+  solveReceivingLoad,
+  sourceEquivalent,
+  voltageProfile,
+} from '../../src/solver/index.ts';
 
 const perKm = { frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.32, shuntSusceptanceUsPerKm: 3.6 };
 
@@ -51,7 +61,12 @@ describe('voltageProfile', () => {
 
   test('gives per-unit voltages when a nominal voltage is given', () => {
     const line = lineModel({ ...perKm, lengthKm: 100 });
-    const profile = voltageProfile({ network: line, operatingPoint: solveNoLoad({ network: line, sendingVoltageKv: 400 }), pointCount: 5, nominalVoltageKv: 400 });
+    const profile = voltageProfile({
+      network: line,
+      operatingPoint: solveNoLoad({ network: line, sendingVoltageKv: 400 }),
+      pointCount: 5,
+      nominalVoltageKv: 400,
+    });
     expect(profile.voltagePu?.[0]).toBeCloseTo(1, 12);
   });
 

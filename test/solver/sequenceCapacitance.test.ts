@@ -11,7 +11,11 @@ const flatLine = {
   frequencyHz: 60,
   conductor: pheasant,
   bundle: { subConductorCount: 2, spacingM: 0.45 },
-  phasePositionsM: [{ xM: 0, yM: 20 }, { xM: 8, yM: 20 }, { xM: 16, yM: 20 }],
+  phasePositionsM: [
+    { xM: 0, yM: 20 },
+    { xM: 8, yM: 20 },
+    { xM: 16, yM: 20 },
+  ],
 };
 
 /** Inverse of a small dense matrix by Gauss-Jordan elimination (test-side, independent of the Kron reduction in the solver). */
@@ -57,8 +61,14 @@ describe('sequenceCapacitanceFromGeometry', () => {
       ...flatLine.phasePositionsM.map((p) => ({ x: p.xM, y: p.yM, r: result.bundleCapacitanceRadiusM })),
       { x: earthWire.xM, y: earthWire.yM, r: earthWire.diameterMm / 2e3 },
     ];
-    const full = wires.map((a, i) => wires.map((b, j) => (i === j ? k * Math.log((2 * a.y) / a.r) : k * Math.log(Math.hypot(a.x - b.x, a.y + b.y) / Math.hypot(a.x - b.x, a.y - b.y)))));
-    const phaseBlock = inverse(full).slice(0, 3).map((row) => row.slice(0, 3));
+    const full = wires.map((a, i) =>
+      wires.map((b, j) =>
+        i === j ? k * Math.log((2 * a.y) / a.r) : k * Math.log(Math.hypot(a.x - b.x, a.y + b.y) / Math.hypot(a.x - b.x, a.y - b.y)),
+      ),
+    );
+    const phaseBlock = inverse(full)
+      .slice(0, 3)
+      .map((row) => row.slice(0, 3));
     const reduced = inverse(phaseBlock);
     expect(result.selfPotentialCoefficientMPerF / ((reduced[0]![0]! + reduced[1]![1]! + reduced[2]![2]!) / 3)).toBeCloseTo(1, 10);
     expect(result.mutualPotentialCoefficientMPerF / ((reduced[0]![1]! + reduced[1]![2]! + reduced[2]![0]!) / 3)).toBeCloseTo(1, 10);
@@ -66,8 +76,16 @@ describe('sequenceCapacitanceFromGeometry', () => {
 
   test('raises the zero-sequence capacitance with an earth wire far more than the positive-sequence one', () => {
     const bare = sequenceCapacitanceFromGeometry(flatLine);
-    const shielded = sequenceCapacitanceFromGeometry({ ...flatLine, earthWires: [{ xM: 4, yM: 30, diameterMm: 11 }, { xM: 12, yM: 30, diameterMm: 11 }] });
-    expect(shielded.zeroSequenceNfPerKm / bare.zeroSequenceNfPerKm - 1).toBeGreaterThan(5 * (shielded.positiveSequenceNfPerKm / bare.positiveSequenceNfPerKm - 1));
+    const shielded = sequenceCapacitanceFromGeometry({
+      ...flatLine,
+      earthWires: [
+        { xM: 4, yM: 30, diameterMm: 11 },
+        { xM: 12, yM: 30, diameterMm: 11 },
+      ],
+    });
+    expect(shielded.zeroSequenceNfPerKm / bare.zeroSequenceNfPerKm - 1).toBeGreaterThan(
+      5 * (shielded.positiveSequenceNfPerKm / bare.positiveSequenceNfPerKm - 1),
+    );
     expect(shielded.earthWireCount).toBe(2);
   });
 

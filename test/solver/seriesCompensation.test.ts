@@ -2,7 +2,15 @@ import { describe, expect, test } from 'vitest';
 import { SolverDomainError, lineModel, seriesCompensationDesign } from '../../src/solver/index.ts';
 
 // A short lossless 400 km line model isolates the textbook relation P = V^2 sin(delta) / (X (1 - k)).
-const line = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 0, lengthKm: 400, model: 'short', label: 'Marrow Fen line' });
+const line = lineModel({
+  frequencyHz: 50,
+  seriesResistanceOhmPerKm: 0,
+  seriesReactanceOhmPerKm: 0.3,
+  shuntSusceptanceUsPerKm: 0,
+  lengthKm: 400,
+  model: 'short',
+  label: 'Marrow Fen line',
+});
 const base = {
   line,
   sendingVoltageKv: 400,
@@ -94,7 +102,15 @@ describe('seriesCompensationDesign', () => {
 // A short line with much resistance (R = 40 ohm, X = 120 ohm): at a fixed angle the transfer peaks near k = 0.5 and falls toward
 // k = 0.8 as the net reactance goes to zero and arg Z falls toward the resistance angle.
 describe('seriesCompensationDesign on a lossy line', () => {
-  const lossy = lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.1, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 0, lengthKm: 400, model: 'short', label: 'Sallow Moss line' });
+  const lossy = lineModel({
+    frequencyHz: 50,
+    seriesResistanceOhmPerKm: 0.1,
+    seriesReactanceOhmPerKm: 0.3,
+    shuntSusceptanceUsPerKm: 0,
+    lengthKm: 400,
+    model: 'short',
+    label: 'Sallow Moss line',
+  });
   const lossyBase = { ...base, line: lossy };
   // P_r = V^2 (cos(beta - delta) - cos beta) / |Z| with Z = R + jX(1 - k), beta = arg Z.
   const transferMw = (degree: number) => {

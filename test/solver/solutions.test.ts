@@ -1,9 +1,23 @@
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
-import { SolverDomainError, lineModel, solveFixedSendingVoltage, solveNoLoad, solveReceivingLoad, solveTwoEndVoltages } from '../../src/solver/index.ts';
+import {
+  SolverDomainError,
+  lineModel,
+  solveFixedSendingVoltage,
+  solveNoLoad,
+  solveReceivingLoad,
+  solveTwoEndVoltages,
+} from '../../src/solver/index.ts';
 
-const lossless = (lengthKm: number) => lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesInductanceMhPerKm: 0.97, shuntCapacitanceNfPerKm: 11.5, lengthKm });
-const lossy = lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0.0165, seriesReactanceOhmPerKm: 0.3306, shuntSusceptanceUsPerKm: 4.674, lengthKm: 300 });
+const lossless = (lengthKm: number) =>
+  lineModel({ frequencyHz: 60, seriesResistanceOhmPerKm: 0, seriesInductanceMhPerKm: 0.97, shuntCapacitanceNfPerKm: 11.5, lengthKm });
+const lossy = lineModel({
+  frequencyHz: 60,
+  seriesResistanceOhmPerKm: 0.0165,
+  seriesReactanceOhmPerKm: 0.3306,
+  shuntSusceptanceUsPerKm: 4.674,
+  lengthKm: 300,
+});
 
 describe('solveNoLoad', () => {
   // Saadat, "Power System Analysis" (2nd ed.), Example 5.7 data (500 kV, 300 km, lossless): Vr = Vs / cos(beta l), beta l = 21.64 deg.
@@ -31,7 +45,11 @@ describe('solveReceivingLoad', () => {
 
   // Energy balance: the losses equal the sending minus receiving power, and are positive on a resistive line.
   test('reports positive losses equal to the difference of end powers on a resistive line', () => {
-    const result = solveReceivingLoad({ network: lossy, receivingVoltageKv: 735, load: { pMw: 2000, powerFactor: 0.99, powerFactorSense: 'lagging' } });
+    const result = solveReceivingLoad({
+      network: lossy,
+      receivingVoltageKv: 735,
+      load: { pMw: 2000, powerFactor: 0.99, powerFactorSense: 'lagging' },
+    });
     expect(result.lossesMw).toBeGreaterThan(0);
     expect(result.lossesMw).toBeCloseTo(result.sendingEnd.pMw - result.receivingEnd.pMw, 9);
     expect(result.receivingEnd.qMvar).toBeCloseTo(2000 * Math.tan(Math.acos(0.99)), 6);
@@ -77,7 +95,8 @@ describe('solveFixedSendingVoltage', () => {
   });
 
   test('throws NO_OPERATING_POINT with the nose loading when the load is beyond the nose', () => {
-    const attempt = () => solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load: { pMw: 20000, powerFactor: 0.95, powerFactorSense: 'lagging' } });
+    const attempt = () =>
+      solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load: { pMw: 20000, powerFactor: 0.95, powerFactorSense: 'lagging' } });
     expect(attempt).toThrow(SolverDomainError);
     expect(attempt).toThrow(/load = P = 20000 MW, Q = .* Mvar is outside the allowed range up to P = \d+/);
   });

@@ -14,18 +14,32 @@ describe('ssrScreening', () => {
   test('warns, with the numbers, when a torsional mode lies within the margin of the complement', () => {
     // Xc / X = ((60 - 32.28) / 60)^2 puts the complement exactly on the 32.28 Hz mode.
     const ratio = ((60 - 32.28) / 60) ** 2;
-    const result = ssrScreening({ frequencyHz: 60, capacitorReactanceOhm: 100 * ratio, totalReactanceOhm: 100, torsionalModesHz: firstBenchmarkModesHz, marginHz: 1.5 });
+    const result = ssrScreening({
+      frequencyHz: 60,
+      capacitorReactanceOhm: 100 * ratio,
+      totalReactanceOhm: 100,
+      torsionalModesHz: firstBenchmarkModesHz,
+      marginHz: 1.5,
+    });
     expect(result.warnings).toHaveLength(1);
     expect(result.warnings[0]).toMatch(/32\.28 Hz/);
     expect(result.modes.find((mode) => mode.modeHz === 32.28)?.withinMargin).toBe(true);
   });
 
   test('gives no warning when every mode is outside the margin', () => {
-    const result = ssrScreening({ frequencyHz: 60, capacitorReactanceOhm: 100 * ((60 - 29) / 60) ** 2, totalReactanceOhm: 100, torsionalModesHz: firstBenchmarkModesHz, marginHz: 1 });
+    const result = ssrScreening({
+      frequencyHz: 60,
+      capacitorReactanceOhm: 100 * ((60 - 29) / 60) ** 2,
+      totalReactanceOhm: 100,
+      torsionalModesHz: firstBenchmarkModesHz,
+      marginHz: 1,
+    });
     expect(result.warnings).toEqual([]);
   });
 
   test('rejects a capacitor that cancels all of the series reactance', () => {
-    expect(() => ssrScreening({ frequencyHz: 60, capacitorReactanceOhm: 100, totalReactanceOhm: 100, torsionalModesHz: [], marginHz: 1 })).toThrow(SolverDomainError);
+    expect(() => ssrScreening({ frequencyHz: 60, capacitorReactanceOhm: 100, totalReactanceOhm: 100, torsionalModesHz: [], marginHz: 1 })).toThrow(
+      SolverDomainError,
+    );
   });
 });

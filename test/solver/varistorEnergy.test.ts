@@ -4,7 +4,14 @@ import { SolverDomainError, varistorEnergy } from '../../src/solver/index.ts';
 import { goldsworthyEquivalent } from '../../src/solver/varistorEnergy.ts';
 
 // An invented bank: 30 ohm per phase, rated 2000 A, protective level 2.3 pu of the rated peak capacitor voltage.
-const bank = { capacitorReactanceOhm: 30, ratedCurrentA: 2000, protectiveLevelPu: 2.3, faultDurationMs: 100, capabilityMjPerPhase: 40, faultLocation: 'external' as const };
+const bank = {
+  capacitorReactanceOhm: 30,
+  ratedCurrentA: 2000,
+  protectiveLevelPu: 2.3,
+  faultDurationMs: 100,
+  capabilityMjPerPhase: 40,
+  faultLocation: 'external' as const,
+};
 const protectiveCurrentA = 2.3 * 2000; // Vpl / (sqrt 2 Xc) with Vpl = 2.3 sqrt 2 I_rated Xc
 
 describe('varistorEnergy', () => {
@@ -18,7 +25,13 @@ describe('varistorEnergy', () => {
 
   test('finds the protective-level current Vpl / (sqrt 2 Xc) from either form of the protective level', () => {
     const fromPu = varistorEnergy({ ...bank, faultCurrentA: 8000 });
-    const fromKv = varistorEnergy({ ...bank, ratedCurrentA: undefined, protectiveLevelPu: undefined, protectiveLevelKvPeak: (2.3 * Math.SQRT2 * 2000 * 30) / 1e3, faultCurrentA: 8000 });
+    const fromKv = varistorEnergy({
+      ...bank,
+      ratedCurrentA: undefined,
+      protectiveLevelPu: undefined,
+      protectiveLevelKvPeak: (2.3 * Math.SQRT2 * 2000 * 30) / 1e3,
+      faultCurrentA: 8000,
+    });
     expect(fromPu.protectiveLevelCurrentA).toBeCloseTo(protectiveCurrentA, 9);
     expect(fromKv.energyMjPerPhase).toBeCloseTo(fromPu.energyMjPerPhase, 12);
   });

@@ -5,7 +5,14 @@ import { diagnosticsOf, lineOf, studyText } from '../support/studies.ts';
 describe('parsing a study', () => {
   it('reads the metadata from the front matter', () => {
     const study = parseStudy('s.study.md', studyText({ frontMatter: 'checker: { name: Second Person }', body: '# Body' }));
-    expect(study.meta).toMatchObject({ title: 'Test study', id: 'TEST-1', revision: 1, date: '2026-11-20', engineer: { name: 'Test Engineer', licence: 'T-0' }, checker: { name: 'Second Person' } });
+    expect(study.meta).toMatchObject({
+      title: 'Test study',
+      id: 'TEST-1',
+      revision: 1,
+      date: '2026-11-20',
+      engineer: { name: 'Test Engineer', licence: 'T-0' },
+      checker: { name: 'Second Person' },
+    });
   });
 
   it('refuses a file without front matter, at line 1', async () => {
@@ -34,7 +41,24 @@ describe('parsing a study', () => {
   });
 
   it('collects ts blocks in order with their options and first code line', () => {
-    const source = studyText({ body: ['```ts', 'const a = 1;', '```', '', '```python', 'x = 1', '```', '', '```ts hide-code', 'const b = 2;', '```', '```ts no-run', 'never();', '```'].join('\n') });
+    const source = studyText({
+      body: [
+        '```ts',
+        'const a = 1;',
+        '```',
+        '',
+        '```python',
+        'x = 1',
+        '```',
+        '',
+        '```ts hide-code',
+        'const b = 2;',
+        '```',
+        '```ts no-run',
+        'never();',
+        '```',
+      ].join('\n'),
+    });
     const study = parseStudy('s.study.md', source);
     expect(study.blocks.map((block) => [block.firstCodeLine, block.options])).toEqual([
       [lineOf(source, 'const a'), { hideCode: false, noRun: false }],

@@ -60,7 +60,11 @@ export class InputValue {
       return convertQuantity(this.value, this.unit, unit);
     } catch (error) {
       const problem = error as UnitProblem;
-      throw new BlockApiError('input-conversion', `inputs.${this.name} (${this.toString()}): ${problem.message}`, problem.hint ?? 'ask for a unit of the same kind');
+      throw new BlockApiError(
+        'input-conversion',
+        `inputs.${this.name} (${this.toString()}): ${problem.message}`,
+        problem.hint ?? 'ask for a unit of the same kind',
+      );
     }
   }
   toString(): string {
@@ -108,11 +112,14 @@ export interface Recorder {
 
 function requireName(kind: string, name: unknown): string {
   if (typeof name !== 'string' || name.trim() === '') {
-    throw new BlockApiError(`${kind}-name`, `${kind}() needs a name as its first argument, got ${describe(name)}`, `write e.g. ${kind}('receivingEndVoltage', ...)`);
+    throw new BlockApiError(
+      `${kind}-name`,
+      `${kind}() needs a name as its first argument, got ${describe(name)}`,
+      `write e.g. ${kind}('receivingEndVoltage', ...)`,
+    );
   }
   return checkedText(kind, 'the name', name, 'name');
 }
-
 
 /** A text a report shows, refused when it is too long, hides characters or says NaN. */
 export function checkedText(kind: string, what: string, text: string, role: TextRole): string {
@@ -123,17 +130,27 @@ export function checkedText(kind: string, what: string, text: string, role: Text
 
 function requireUnit(kind: string, name: string, unit: unknown): string {
   if (unit === undefined) return '';
-  if (typeof unit !== 'string') throw new BlockApiError('unit', `${kind} "${name}": unit must be text, got ${describe(unit)}`, 'write e.g. { unit: "Mvar" }');
+  if (typeof unit !== 'string')
+    throw new BlockApiError('unit', `${kind} "${name}": unit must be text, got ${describe(unit)}`, 'write e.g. { unit: "Mvar" }');
   checkedText(kind, 'the unit', unit, 'name');
   const problem = unitProblem(unit);
-  if (problem) throw new BlockApiError('unit', `${kind} "${name}": unknown unit "${unit}" (${problem})`, 'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %');
+  if (problem)
+    throw new BlockApiError(
+      'unit',
+      `${kind} "${name}": unknown unit "${unit}" (${problem})`,
+      'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %',
+    );
   return unit;
 }
 
 function requireDigits(kind: string, name: string, digits: unknown): number {
   if (digits === undefined) return DEFAULT_DIGITS;
   if (typeof digits !== 'number' || !Number.isInteger(digits) || digits < 1 || digits > 15) {
-    throw new BlockApiError('digits', `${kind} "${name}": digits = ${describe(digits)} is outside the allowed range 1 to 15`, 'digits is the number of significant figures shown');
+    throw new BlockApiError(
+      'digits',
+      `${kind} "${name}": digits = ${describe(digits)} is outside the allowed range 1 to 15`,
+      'digits is the number of significant figures shown',
+    );
   }
   return digits;
 }
@@ -165,7 +182,12 @@ function scalarOf(kind: string, where: string, value: unknown): ScalarValue {
 }
 
 /** Build the globals one study run shares across its blocks. */
-export function createBlockApi(inputData: readonly InputData[], recorder: Recorder, solverModule: Record<string, unknown>, chartModule: Record<string, unknown>) {
+export function createBlockApi(
+  inputData: readonly InputData[],
+  recorder: Recorder,
+  solverModule: Record<string, unknown>,
+  chartModule: Record<string, unknown>,
+) {
   // Keyed by look-alike form: "Vr" and a full-width "Ｖr" are one name to a reader.
   const resultNames = new Map<string, string>();
   const criterionNames = new Map<string, string>();
@@ -202,7 +224,11 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     const unit = requireUnit('result', name, options.unit ?? (value instanceof Figure ? value.unit : undefined));
     const digits = requireDigits('result', name, options.digits ?? (value instanceof Figure ? value.digits : undefined));
     if (options.tolerance !== undefined && !(typeof options.tolerance === 'number' && options.tolerance > 0 && options.tolerance < 1)) {
-      throw new BlockApiError('tolerance', `result "${name}": tolerance = ${describe(options.tolerance)} is outside the allowed range (0, 1)`, 'tolerance is the relative difference a checker accepts, e.g. 1e-6');
+      throw new BlockApiError(
+        'tolerance',
+        `result "${name}": tolerance = ${describe(options.tolerance)} is outside the allowed range (0, 1)`,
+        'tolerance is the relative difference a checker accepts, e.g. 1e-6',
+      );
     }
     resultNames.set(nameKey(name), name);
     emit({
@@ -221,15 +247,24 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
     requireName('criterion', name);
     const earlier = criterionNames.get(nameKey(name));
     if (earlier !== undefined) {
-      throw new BlockApiError('criterion-duplicate', earlier === name ? `criterion "${name}" is checked twice` : `criterion "${name}" looks like the criterion "${earlier}" checked before`, 'give each criterion its own name');
+      throw new BlockApiError(
+        'criterion-duplicate',
+        earlier === name ? `criterion "${name}" is checked twice` : `criterion "${name}" looks like the criterion "${earlier}" checked before`,
+        'give each criterion its own name',
+      );
     }
     const number = requireFinite('criterion', name, 'the value', value);
     if (!limits || (limits.min === undefined && limits.max === undefined)) {
-      throw new BlockApiError('criterion-limits', `criterion "${name}" has neither min nor max`, 'write e.g. criterion("Receiving-end voltage", v, { min: 0.95, max: 1.05, unit: "pu" })');
+      throw new BlockApiError(
+        'criterion-limits',
+        `criterion "${name}" has neither min nor max`,
+        'write e.g. criterion("Receiving-end voltage", v, { min: 0.95, max: 1.05, unit: "pu" })',
+      );
     }
     const min = limits.min === undefined ? undefined : requireFinite('criterion', name, 'min', limits.min);
     const max = limits.max === undefined ? undefined : requireFinite('criterion', name, 'max', limits.max);
-    if (min !== undefined && max !== undefined && min > max) throw new BlockApiError('criterion-limits', `criterion "${name}": min ${min} is above max ${max}`, 'swap min and max');
+    if (min !== undefined && max !== undefined && min > max)
+      throw new BlockApiError('criterion-limits', `criterion "${name}": min ${min} is above max ${max}`, 'swap min and max');
     const unit = requireUnit('criterion', name, limits.unit ?? (value instanceof Figure ? value.unit : undefined));
     const digits = requireDigits('criterion', name, limits.digits ?? (value instanceof Figure ? value.digits : undefined));
     const passed = (min === undefined || number >= min) && (max === undefined || number <= max);
@@ -249,12 +284,18 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
   }
 
   function caution(text: string): void {
-    if (typeof text !== 'string' || text.trim() === '') throw new BlockApiError('caution-text', 'caution() needs the text of the caution', 'write e.g. caution("Energise the reactor before the line ...")');
+    if (typeof text !== 'string' || text.trim() === '')
+      throw new BlockApiError(
+        'caution-text',
+        'caution() needs the text of the caution',
+        'write e.g. caution("Energise the reactor before the line ...")',
+      );
     emit({ kind: 'caution', text: checkedText('caution', 'the text', text.trim(), 'text') });
   }
 
   function table(rows: readonly (Record<string, unknown> | readonly unknown[])[], options: TableOptions = {}): void {
-    if (!Array.isArray(rows)) throw new BlockApiError('table-rows', 'table() needs an array of rows', 'pass e.g. [{ caseName: "light load", vrPu: 1.02 }]');
+    if (!Array.isArray(rows))
+      throw new BlockApiError('table-rows', 'table() needs an array of rows', 'pass e.g. [{ caseName: "light load", vrPu: 1.02 }]');
     const columnOptions: TableColumnOption[] =
       options.columns ?? (rows.length > 0 && !Array.isArray(rows[0]) ? Object.keys(rows[0] as object).map((key) => ({ key })) : []);
     const caption = options.caption === undefined ? undefined : checkedText('table', 'the caption', String(options.caption), 'caption');
@@ -285,7 +326,11 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
 
   function chart(spec: object, options: ChartOptions): void {
     if (!options || typeof options.caption !== 'string' || options.caption.trim() === '') {
-      throw new BlockApiError('chart-caption', 'chart() needs { caption: "..." }: every figure in a report has a caption', 'write e.g. chart(spec, { caption: "Receiving-end voltage along the line" })');
+      throw new BlockApiError(
+        'chart-caption',
+        'chart() needs { caption: "..." }: every figure in a report has a caption',
+        'write e.g. chart(spec, { caption: "Receiving-end voltage along the line" })',
+      );
     }
     const caption = checkedText('chart', 'the caption', options.caption.trim(), 'caption');
     let plain: unknown;
@@ -301,9 +346,14 @@ export function createBlockApi(inputData: readonly InputData[], recorder: Record
       plain = JSON.parse(json);
     } catch (error) {
       if (error instanceof BlockApiError) throw error;
-      throw new BlockApiError('chart-spec', `chart "${caption}": the specification is not plain data (${(error as Error).message})`, 'a Vega-Lite specification is JSON: numbers, text, arrays and objects');
+      throw new BlockApiError(
+        'chart-spec',
+        `chart "${caption}": the specification is not plain data (${(error as Error).message})`,
+        'a Vega-Lite specification is JSON: numbers, text, arrays and objects',
+      );
     }
-    if (typeof plain !== 'object' || plain === null) throw new BlockApiError('chart-spec', `chart "${caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
+    if (typeof plain !== 'object' || plain === null)
+      throw new BlockApiError('chart-spec', `chart "${caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
     emit({ kind: 'chart', caption, spec: plain });
   }
 

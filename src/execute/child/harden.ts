@@ -64,7 +64,12 @@ export function hardenContext(context: vm.Context): void {
     const descriptor = Object.getOwnPropertyDescriptor(sandboxGlobal, name)!;
     if ('value' in descriptor && (descriptor.writable || descriptor.configurable)) {
       // A full descriptor: a partial one on a contextified global would drop the value.
-      Object.defineProperty(sandboxGlobal, name, { value: descriptor.value, writable: false, enumerable: descriptor.enumerable ?? false, configurable: false });
+      Object.defineProperty(sandboxGlobal, name, {
+        value: descriptor.value,
+        writable: false,
+        enumerable: descriptor.enumerable ?? false,
+        configurable: false,
+      });
     }
     if ('value' in descriptor) freezeDeep(descriptor.value);
   }

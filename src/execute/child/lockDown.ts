@@ -3,8 +3,24 @@ import Module from 'node:module';
 
 /** Process methods that reach beyond the child: signals to other processes (including the debugger signal), identity, native code. */
 export const DENIED_PROCESS_METHODS = [
-  'dlopen', 'binding', '_linkedBinding', 'kill', '_kill', 'chdir', 'setuid', 'setgid', 'seteuid', 'setegid', 'setgroups',
-  'initgroups', 'abort', '_debugProcess', '_debugEnd', '_startProfilerIdleNotifier', '_stopProfilerIdleNotifier', 'loadEnvFile',
+  'dlopen',
+  'binding',
+  '_linkedBinding',
+  'kill',
+  '_kill',
+  'chdir',
+  'setuid',
+  'setgid',
+  'seteuid',
+  'setegid',
+  'setgroups',
+  'initgroups',
+  'abort',
+  '_debugProcess',
+  '_debugEnd',
+  '_startProfilerIdleNotifier',
+  '_stopProfilerIdleNotifier',
+  'loadEnvFile',
   'setSourceMapsEnabled',
 ] as const;
 
@@ -23,7 +39,13 @@ function denial(what: string): Error {
 
 function replaceWithDenial(target: object, name: string, what: (argument: unknown) => string): void {
   if (!(name in target)) return;
-  Object.defineProperty(target, name, { value: (argument: unknown) => { throw denial(what(argument)); }, configurable: false, writable: false });
+  Object.defineProperty(target, name, {
+    value: (argument: unknown) => {
+      throw denial(what(argument));
+    },
+    configurable: false,
+    writable: false,
+  });
 }
 
 const named = (kind: string) => (request: unknown) => (typeof request === 'string' ? `the "${request}" module` : kind);
@@ -48,11 +70,23 @@ export function lockDown(): void {
   for (const name of DENIED_PROCESS_METHODS) replaceWithDenial(target, name, () => `process.${name}`);
   // The report carries the environment and host details, and mainModule leads back to the loader.
   for (const name of ['report', 'mainModule']) {
-    if (name in target) Object.defineProperty(target, name, { get: () => { throw denial(`process.${name}`); }, configurable: false });
+    if (name in target)
+      Object.defineProperty(target, name, {
+        get: () => {
+          throw denial(`process.${name}`);
+        },
+        configurable: false,
+      });
   }
 
   const globals = globalThis as Record<string, unknown>;
   for (const name of DENIED_GLOBALS) {
-    if (name in globals) Object.defineProperty(globals, name, { get: () => { throw denial(name); }, configurable: false });
+    if (name in globals)
+      Object.defineProperty(globals, name, {
+        get: () => {
+          throw denial(name);
+        },
+        configurable: false,
+      });
   }
 }

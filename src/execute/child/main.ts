@@ -77,7 +77,11 @@ function declare(target: vm.Context, blockIndex: number, declarations: Declarati
       get: () => stored,
       set: (value: unknown) => {
         if (entry.locked) {
-          throw new BlockApiError('constant-reassigned', `"${name}" is a constant declared in an earlier block and cannot be reassigned`, 'declare a new name, or use let in the block that declares it');
+          throw new BlockApiError(
+            'constant-reassigned',
+            `"${name}" is a constant declared in an earlier block and cannot be reassigned`,
+            'declare a new name, or use let in the block that declares it',
+          );
         }
         stored = value;
       },
@@ -111,12 +115,21 @@ async function runBlock(blockIndex: number, code: string, declarations: Declarat
 function inlineText(value: unknown): string {
   if (value instanceof Figure || value instanceof InputValue) return value.toString();
   if (typeof value === 'number') {
-    if (!Number.isFinite(value)) throw new BlockApiError('non-finite', `the inline value is ${value}, not a finite number`, 'a report never shows NaN or Infinity: check the calculation above it');
+    if (!Number.isFinite(value))
+      throw new BlockApiError(
+        'non-finite',
+        `the inline value is ${value}, not a finite number`,
+        'a report never shows NaN or Infinity: check the calculation above it',
+      );
     return formatQuantity(value, '', DEFAULT_DIGITS);
   }
   if (typeof value === 'string') return value;
   if (typeof value === 'boolean') return value ? 'yes' : 'no';
-  throw new BlockApiError('inline-type', `the inline value is ${value === null ? 'null' : typeof value}, which has no written form`, 'show a number, text, a result, or figure(value, unit)');
+  throw new BlockApiError(
+    'inline-type',
+    `the inline value is ${value === null ? 'null' : typeof value}, which has no written form`,
+    'show a number, text, a result, or figure(value, unit)',
+  );
 }
 
 /** Evaluates the values in order and answers once: all their texts, or the first that failed. */

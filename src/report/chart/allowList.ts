@@ -45,7 +45,20 @@ const font: Rule = { kind: 'string', maxLength: 200, pattern: /^[A-Za-z0-9 ,"'-]
 const pixels = num(-10_000, 10_000);
 const fontSize = num(1, 200);
 const dash = list(num(0, 1_000), 16);
-const SYMBOLS = ['circle', 'square', 'cross', 'diamond', 'triangle-up', 'triangle-down', 'triangle-right', 'triangle-left', 'triangle', 'stroke', 'wedge', 'arrow'];
+const SYMBOLS = [
+  'circle',
+  'square',
+  'cross',
+  'diamond',
+  'triangle-up',
+  'triangle-down',
+  'triangle-right',
+  'triangle-left',
+  'triangle',
+  'stroke',
+  'wedge',
+  'arrow',
+];
 const symbol = choice(...SYMBOLS);
 const fontWeight = either(choice('normal', 'bold', 'lighter', 'bolder'), num(100, 900));
 const title = either(text(), list(text(), 10), nothing);
@@ -152,7 +165,13 @@ const axisStyle = (): Record<string, Rule> => ({
 
 const axisRule: Rule = either(
   nothing,
-  object('an axis', () => ({ ...axisStyle(), title, format: text(64), orient: choice('top', 'bottom', 'left', 'right'), values: list(scalar, 1_000) })),
+  object('an axis', () => ({
+    ...axisStyle(),
+    title,
+    format: text(64),
+    orient: choice('top', 'bottom', 'left', 'right'),
+    values: list(scalar, 1_000),
+  })),
 );
 
 const legendStyle = (): Record<string, Rule> => ({
@@ -169,7 +188,10 @@ const legendStyle = (): Record<string, Rule> => ({
   padding: pixels,
 });
 
-const legendRule: Rule = either(nothing, object('a legend', () => ({ ...legendStyle(), title, format: text(64), values: list(scalar, 1_000) })));
+const legendRule: Rule = either(
+  nothing,
+  object('a legend', () => ({ ...legendStyle(), title, format: text(64), values: list(scalar, 1_000) })),
+);
 
 const channelRule: Rule = object('an encoding channel', () => ({
   field: text(200),
@@ -181,14 +203,42 @@ const channelRule: Rule = object('an encoding channel', () => ({
   value: either(scalar, dash),
   datum: scalar,
   aggregate: choice(...AGGREGATES),
-  bin: either(bool, object('a bin', () => ({ maxbins: num(2, 200, true), step: num(Number.MIN_VALUE, Number.MAX_VALUE), extent: list(num(-Number.MAX_VALUE, Number.MAX_VALUE), 2), nice: bool }))),
+  bin: either(
+    bool,
+    object('a bin', () => ({
+      maxbins: num(2, 200, true),
+      step: num(Number.MIN_VALUE, Number.MAX_VALUE),
+      extent: list(num(-Number.MAX_VALUE, Number.MAX_VALUE), 2),
+      nice: bool,
+    })),
+  ),
   sort: either(choice('ascending', 'descending', null), list(scalar, 1_000)),
   stack: either(bool, choice('zero', 'normalize', 'center', null)),
   format: text(64),
 }));
 
-const CHANNELS = ['x', 'y', 'x2', 'y2', 'color', 'fill', 'stroke', 'opacity', 'fillOpacity', 'strokeOpacity', 'strokeWidth', 'strokeDash', 'size', 'shape', 'order', 'detail', 'text'];
-const encodingRule: Rule = object('an encoding', () => Object.fromEntries(CHANNELS.map((channel) => [channel, either(channelRule, list(channelRule, 16))])));
+const CHANNELS = [
+  'x',
+  'y',
+  'x2',
+  'y2',
+  'color',
+  'fill',
+  'stroke',
+  'opacity',
+  'fillOpacity',
+  'strokeOpacity',
+  'strokeWidth',
+  'strokeDash',
+  'size',
+  'shape',
+  'order',
+  'detail',
+  'text',
+];
+const encodingRule: Rule = object('an encoding', () =>
+  Object.fromEntries(CHANNELS.map((channel) => [channel, either(channelRule, list(channelRule, 16))])),
+);
 
 const predicateRule: Rule = object('a field predicate', () => ({
   field: text(200),
@@ -205,18 +255,37 @@ const predicateRule: Rule = object('a field predicate', () => ({
   not: predicateRule,
 }));
 
-const transformRule: Rule = list(object('a transform', () => ({ filter: predicateRule })), 32);
+const transformRule: Rule = list(
+  object('a transform', () => ({ filter: predicateRule })),
+  32,
+);
 
 const dataRule: Rule = object('inline data', () => ({ values: { kind: 'rows', maxItems: MAX_CHART_ROWS }, name: text(200) }));
 
 const titleRule: Rule = either(
   text(),
-  object('a title', () => ({ text: either(text(), list(text(), 10)), subtitle: either(text(), list(text(), 10)), anchor, fontSize, subtitleFontSize: fontSize, fontWeight, color: colour, subtitleColor: colour, offset: pixels, font })),
+  object('a title', () => ({
+    text: either(text(), list(text(), 10)),
+    subtitle: either(text(), list(text(), 10)),
+    anchor,
+    fontSize,
+    subtitleFontSize: fontSize,
+    fontWeight,
+    color: colour,
+    subtitleColor: colour,
+    offset: pixels,
+    font,
+  })),
 );
 
 const resolution = choice('shared', 'independent');
 const resolveRule: Rule = object('a resolve', () =>
-  Object.fromEntries(['scale', 'axis', 'legend'].map((part) => [part, object(`a ${part} resolve`, () => Object.fromEntries(CHANNELS.map((channel) => [channel, resolution])))])),
+  Object.fromEntries(
+    ['scale', 'axis', 'legend'].map((part) => [
+      part,
+      object(`a ${part} resolve`, () => Object.fromEntries(CHANNELS.map((channel) => [channel, resolution]))),
+    ]),
+  ),
 );
 
 /** Fields every view may have; the top level adds config, datasets and the page properties. */
@@ -241,8 +310,23 @@ const configRule: Rule = object('a config', () => ({
   font,
   background: colour,
   padding: num(0, 1_000),
-  view: object('a view config', () => ({ stroke: either(colour, nothing), strokeWidth: num(0, 100), fill: either(colour, nothing), continuousWidth: num(1, 4_000), continuousHeight: num(1, 4_000) })),
-  title: object('a title config', () => ({ anchor, fontSize, subtitleFontSize: fontSize, fontWeight, color: colour, subtitleColor: colour, offset: pixels, font })),
+  view: object('a view config', () => ({
+    stroke: either(colour, nothing),
+    strokeWidth: num(0, 100),
+    fill: either(colour, nothing),
+    continuousWidth: num(1, 4_000),
+    continuousHeight: num(1, 4_000),
+  })),
+  title: object('a title config', () => ({
+    anchor,
+    fontSize,
+    subtitleFontSize: fontSize,
+    fontWeight,
+    color: colour,
+    subtitleColor: colour,
+    offset: pixels,
+    font,
+  })),
   axis: object('an axis config', axisStyle),
   axisX: object('an axis config', axisStyle),
   axisY: object('an axis config', axisStyle),
@@ -326,10 +410,12 @@ interface Budget {
 function check(rule: Rule, value: unknown, path: string, budget: Budget): void {
   switch (rule.kind) {
     case 'number':
-      if (typeof value !== 'number' || !Number.isFinite(value) || value < rule.min || value > rule.max || (rule.integer && !Number.isInteger(value))) refuse(path, value, describeRule(rule));
+      if (typeof value !== 'number' || !Number.isFinite(value) || value < rule.min || value > rule.max || (rule.integer && !Number.isInteger(value)))
+        refuse(path, value, describeRule(rule));
       return;
     case 'string':
-      if (typeof value !== 'string' || value.length > rule.maxLength || (rule.pattern && !rule.pattern.test(value))) refuse(path, value, describeRule(rule));
+      if (typeof value !== 'string' || value.length > rule.maxLength || (rule.pattern && !rule.pattern.test(value)))
+        refuse(path, value, describeRule(rule));
       return;
     case 'choice':
       if (!rule.values.includes(value as string)) refuse(path, value, describeRule(rule));
@@ -341,14 +427,20 @@ function check(rule: Rule, value: unknown, path: string, budget: Budget): void {
       if (value !== null) refuse(path, value, 'null');
       return;
     case 'array':
-      if (!Array.isArray(value) || value.length > rule.maxItems) refuse(path, Array.isArray(value) ? `${value.length} items` : value, describeRule(rule));
+      if (!Array.isArray(value) || value.length > rule.maxItems)
+        refuse(path, Array.isArray(value) ? `${value.length} items` : value, describeRule(rule));
       value.forEach((item, index) => check(rule.of, item, join(path, String(index)), budget));
       return;
     case 'rows':
       if (!Array.isArray(value)) refuse(path, value, describeRule(rule));
       budget.rows += value.length;
       if (value.length > rule.maxItems || budget.rows > MAX_CHART_ROWS) {
-        refuse(path, `${budget.rows} rows`, `at most ${MAX_CHART_ROWS} data rows in one chart`, 'The chart carries more data than a report chart draws');
+        refuse(
+          path,
+          `${budget.rows} rows`,
+          `at most ${MAX_CHART_ROWS} data rows in one chart`,
+          'The chart carries more data than a report chart draws',
+        );
       }
       value.forEach((row, index) => checkRow(row, join(path, String(index))));
       return;

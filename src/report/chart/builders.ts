@@ -206,8 +206,7 @@ export function svcCharacteristicChart(input: SvcCharacteristicInput): ChartSpec
     currentPu: finite(point.currentPu, `operatingPoints[${index}].currentPu`),
     voltagePu: finite(point.voltagePu, `operatingPoints[${index}].voltagePu`),
   }));
-  const topVoltagePu =
-    1.1 * Math.max(inductiveCorner.voltagePu, input.referenceVoltagePu, ...operatingPoints.map((point) => point.voltagePu));
+  const topVoltagePu = 1.1 * Math.max(inductiveCorner.voltagePu, input.referenceVoltagePu, ...operatingPoints.map((point) => point.voltagePu));
   const capacitiveLimitTop = { currentPu: -input.bMaxCapacitivePu * topVoltagePu, voltagePu: topVoltagePu };
   const inductiveLimitTop = { currentPu: input.bMaxInductivePu * topVoltagePu, voltagePu: topVoltagePu };
   const origin = { currentPu: 0, voltagePu: 0 };

@@ -48,10 +48,7 @@ export class ChartInputError extends Error {
   readonly allowed: string;
   readonly hint: string;
 
-  constructor(
-    code: ChartInputErrorCode,
-    details: { quantity: string; value: number | string; allowed: string; hint: string },
-  ) {
+  constructor(code: ChartInputErrorCode, details: { quantity: string; value: number | string; allowed: string; hint: string }) {
     super(`${details.quantity} = ${String(details.value)} is not usable for the chart (allowed: ${details.allowed}). ${details.hint}`);
     this.code = code;
     this.quantity = details.quantity;

@@ -1,17 +1,7 @@
 // Reads a PDF kvarbook did not necessarily write: its attachments (pdf-lib can write them but not list
 // them), its producer and its pages, with every decompression bounded.
 import { createHash } from 'node:crypto';
-import {
-  PDFArray,
-  PDFDict,
-  PDFDocument,
-  PDFHexString,
-  PDFName,
-  PDFRawStream,
-  PDFString,
-  decodePDFRawStream,
-  type PDFObject,
-} from 'pdf-lib';
+import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, PDFString, decodePDFRawStream, type PDFObject } from 'pdf-lib';
 import { DecodeBudgetExceeded, MAX_DECODED_BYTES, withDecodeBudget, type DecodeBudget } from './decodeBudget.ts';
 import { PdfError, messageOf } from './errors.ts';
 
@@ -64,7 +54,12 @@ async function readWithin(pdf: Uint8Array, budget: DecodeBudget): Promise<ReadPd
   const embeddedFiles = names?.lookupMaybe(PDFName.of('EmbeddedFiles'), PDFDict);
   const attachments: ReadAttachment[] = [];
   if (embeddedFiles !== undefined) collectNameTree(embeddedFiles, attachments, new Set(), budget);
-  return { attachments, producer: document.getProducer(), title: document.getTitle(), pageDigests: document.getPages().map((page) => pageDigest(page.node)) };
+  return {
+    attachments,
+    producer: document.getProducer(),
+    title: document.getTitle(),
+    pageDigests: document.getPages().map((page) => pageDigest(page.node)),
+  };
 }
 
 function pageDigest(page: PDFDict): string {
@@ -97,8 +92,7 @@ function collectNameTree(node: PDFDict, into: ReadAttachment[], visited: Set<PDF
 
 function readFileSpecification(fileSpecification: PDFDict, key: string | undefined, budget: DecodeBudget): ReadAttachment {
   // /UF is the Unicode file name (PDF 1.7 §7.11.3); /F the older byte-string one; the tree key last.
-  const fileName =
-    textOf(fileSpecification.lookup(PDFName.of('UF'))) ?? textOf(fileSpecification.lookup(PDFName.of('F'))) ?? key;
+  const fileName = textOf(fileSpecification.lookup(PDFName.of('UF'))) ?? textOf(fileSpecification.lookup(PDFName.of('F'))) ?? key;
   if (fileName === undefined) throw readError('EmbeddedFiles', 'an attachment has no file name');
   const embedded = fileSpecification.lookupMaybe(PDFName.of('EF'), PDFDict);
   const stream = embedded?.lookup(PDFName.of('F'));

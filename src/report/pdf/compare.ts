@@ -13,24 +13,33 @@ export async function comparePrints(inHand: { bytes: Uint8Array; read: ReadPdf }
   const held = inHand.read;
   const differences: string[] = [];
   if (held.producer !== fresh.producer) {
-    differences.push(`it names its producer "${held.producer ?? ''}", while this machine prints as "${fresh.producer ?? ''}": only the same Chromium build prints the same pages`);
+    differences.push(
+      `it names its producer "${held.producer ?? ''}", while this machine prints as "${fresh.producer ?? ''}": only the same Chromium build prints the same pages`,
+    );
   }
   if (held.pageDigests.length !== fresh.pageDigests.length) {
     differences.push(`it has ${held.pageDigests.length} pages, a fresh print ${fresh.pageDigests.length}`);
   } else {
     const changed = held.pageDigests.flatMap((digest, index) => (digest === fresh.pageDigests[index] ? [] : [index + 1]));
-    if (changed.length > 0) differences.push(`the content of page${changed.length > 1 ? 's' : ''} ${listed(changed.map(String))} differs from a fresh print`);
+    if (changed.length > 0)
+      differences.push(`the content of page${changed.length > 1 ? 's' : ''} ${listed(changed.map(String))} differs from a fresh print`);
   }
   const heldNames = held.attachments.map((attachment) => attachment.fileName);
   const freshNames = fresh.attachments.map((attachment) => attachment.fileName);
   if (heldNames.join('\n') !== freshNames.join('\n')) {
     differences.push(`it carries the attachments ${listed(heldNames)}, a fresh print ${listed(freshNames)}`);
   } else {
-    const changed = held.attachments.filter((attachment, index) => !Buffer.from(attachment.content).equals(Buffer.from(fresh.attachments[index]!.content)));
-    if (changed.length > 0) differences.push(`the attached ${listed(changed.map((attachment) => attachment.fileName))} differ${changed.length === 1 ? 's' : ''} from a fresh print's`);
+    const changed = held.attachments.filter(
+      (attachment, index) => !Buffer.from(attachment.content).equals(Buffer.from(fresh.attachments[index]!.content)),
+    );
+    if (changed.length > 0)
+      differences.push(
+        `the attached ${listed(changed.map((attachment) => attachment.fileName))} differ${changed.length === 1 ? 's' : ''} from a fresh print's`,
+      );
   }
   if (held.title !== fresh.title) differences.push(`its title is "${held.title ?? ''}", a fresh print's "${fresh.title ?? ''}"`);
-  if (differences.length === 0) differences.push('its pages and attachments are those of a fresh print, but other bytes (document information or structure) differ');
+  if (differences.length === 0)
+    differences.push('its pages and attachments are those of a fresh print, but other bytes (document information or structure) differ');
   return { identical: false, differences };
 }
 

@@ -27,7 +27,8 @@ interface DecodeStreamLike {
   minBufferLength: number;
   ensureBuffer(requested: number): Uint8Array;
 }
-const DecodeStream = (createRequire(import.meta.url)('pdf-lib/cjs/core/streams/DecodeStream.js') as { default: { prototype: DecodeStreamLike } }).default;
+const DecodeStream = (createRequire(import.meta.url)('pdf-lib/cjs/core/streams/DecodeStream.js') as { default: { prototype: DecodeStreamLike } })
+  .default;
 const budgets = new AsyncLocalStorage<DecodeBudget>();
 const unbounded = DecodeStream.prototype.ensureBuffer;
 

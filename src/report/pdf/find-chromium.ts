@@ -7,10 +7,7 @@ export const chromiumCandidatePaths = ['/usr/bin/chromium', '/usr/bin/chromium-b
 const installHint = 'install it with `apt-get install -y chromium` or set KVARBOOK_CHROMIUM to the Chromium executable';
 
 /** `candidates` exists for tests of the not-installed case; callers use the default. */
-export function findChromium(
-  env: NodeJS.ProcessEnv,
-  candidates: readonly string[] = chromiumCandidatePaths,
-): { path: string } | { error: string } {
+export function findChromium(env: NodeJS.ProcessEnv, candidates: readonly string[] = chromiumCandidatePaths): { path: string } | { error: string } {
   const configured = env.KVARBOOK_CHROMIUM;
   if (configured !== undefined && configured !== '') {
     // An explicit setting that is wrong must not silently fall back to another browser.

@@ -101,11 +101,7 @@ describe('voltageProfileChart', () => {
   });
 
   it('refuses a band whose minimum is not below its maximum', () => {
-    expectInputError(
-      () => voltageProfileChart({ cases, bandPu: { min: 1.05, max: 0.95 } }),
-      'CHART_INPUT_OUT_OF_RANGE',
-      'bandPu.min',
-    );
+    expectInputError(() => voltageProfileChart({ cases, bandPu: { min: 1.05, max: 0.95 } }), 'CHART_INPUT_OUT_OF_RANGE', 'bandPu.min');
   });
 });
 
@@ -142,8 +138,7 @@ describe('pvCurveChart', () => {
 describe('powerAngleChart', () => {
   // P = Pmax·sin δ for a lossless link (Kundur, Power System Stability and Control, 1994, §2.x —
   // section from memory); at δ0 = 30° the load is Pmax/2, so the margin is exactly 50 %.
-  const sine = (pMaxMw: number) =>
-    Array.from({ length: 19 }, (_, index) => ({ angleDeg: index * 10, pMw: pMaxMw * Math.sin(index * 10 * degree) }));
+  const sine = (pMaxMw: number) => Array.from({ length: 19 }, (_, index) => ({ angleDeg: index * 10, pMw: pMaxMw * Math.sin(index * 10 * degree) }));
   const input = {
     curves: [
       { label: 'both circuits', points: sine(1200) },
@@ -170,8 +165,8 @@ describe('powerAngleChart', () => {
     const svg = await renderChartSvg(powerAngleChart(input));
     expect(texts(svg)).toEqual(expect.arrayContaining(['Pmax = 1200 MW', 'P0 = 600 MW']));
     const yTicks = axisTicks(svg, 'Y');
-    const ruleRows = [...svg.matchAll(/aria-roledescription="rule mark" transform="translate\([-\d.]+,([-\d.]+)\)"/g)].map(
-      (match) => Number(match[1]),
+    const ruleRows = [...svg.matchAll(/aria-roledescription="rule mark" transform="translate\([-\d.]+,([-\d.]+)\)"/g)].map((match) =>
+      Number(match[1]),
     );
     expect(ruleRows.some((row) => Math.abs(row - pixelOf(yTicks, 1200)) <= tickSnapPx)).toBe(true);
     expect(ruleRows.some((row) => Math.abs(row - pixelOf(yTicks, 600)) <= tickSnapPx)).toBe(true);
@@ -241,9 +236,7 @@ describe('svcCharacteristicChart', () => {
 
   it('labels both axes with their units', async () => {
     const svg = await renderChartSvg(svcCharacteristicChart(input));
-    expect(texts(svg)).toEqual(
-      expect.arrayContaining(['SVC current (pu; − capacitive, + inductive)', 'Bus voltage (pu)']),
-    );
+    expect(texts(svg)).toEqual(expect.arrayContaining(['SVC current (pu; − capacitive, + inductive)', 'Bus voltage (pu)']));
   });
 
   it('refuses a slope that never meets the inductive limit', () => {

@@ -111,7 +111,11 @@ describe('renderChartSvg', () => {
   it.each([
     ['a calculate transform', { transform: [{ calculate: 'datum.distanceKm / 100', as: 'section' }] }, 'transform.0.calculate'],
     ['a filter written as an expression', { transform: [{ filter: 'datum.voltagePu > 1.01' }] }, 'transform.0.filter'],
-    ['an axis label expression', { encoding: { ...simpleLine.encoding, x: { ...simpleLine.encoding.x, axis: { labelExpr: 'datum.label' } } } }, 'encoding.x.axis.labelExpr'],
+    [
+      'an axis label expression',
+      { encoding: { ...simpleLine.encoding, x: { ...simpleLine.encoding.x, axis: { labelExpr: 'datum.label' } } } },
+      'encoding.x.axis.labelExpr',
+    ],
     ['a parameter', { params: [{ name: 'p', expr: '1 + 1' }] }, 'params'],
   ])('refuses %s: reports draw no Vega expressions of a study', async (_what, change, path) => {
     const error = await specError({ ...simpleLine, ...change });
@@ -120,7 +124,11 @@ describe('renderChartSvg', () => {
   });
 
   it('treats a Vega-Lite warning about a dropped property as an error', async () => {
-    const error = await specError({ ...simpleLine, mark: 'rule', encoding: { ...simpleLine.encoding, text: { field: 'distanceKm', type: 'nominal' } } });
+    const error = await specError({
+      ...simpleLine,
+      mark: 'rule',
+      encoding: { ...simpleLine.encoding, text: { field: 'distanceKm', type: 'nominal' } },
+    });
     expect(error.code).toBe('CHART_SPEC_INVALID');
     expect(error.message).toContain('text dropped');
   });

@@ -48,9 +48,7 @@ export function linePaths(svg: string): LinePath[] {
   return [...svg.matchAll(/<path [^>]*aria-roledescription="line mark"[^>]*>/g)].map((match) => {
     const element = match[0];
     const path = /\sd="([^"]*)"/.exec(element)?.[1] ?? '';
-    const vertices = [...path.matchAll(/[ML]([-\d.e]+),([-\d.e]+)/g)].map(
-      (vertex): [number, number] => [Number(vertex[1]), Number(vertex[2])],
-    );
+    const vertices = [...path.matchAll(/[ML]([-\d.e]+),([-\d.e]+)/g)].map((vertex): [number, number] => [Number(vertex[1]), Number(vertex[2])]);
     return {
       vertices,
       stroke: /\sstroke="([^"]*)"/.exec(element)?.[1],

@@ -14,15 +14,26 @@ async function pdfWithRawAttachment(fileName: string, compressed: Uint8Array): P
   const loaded = await PDFDocument.load(await document.save());
   const { context } = loaded;
   const stream = PDFRawStream.of(context.obj({ Type: 'EmbeddedFile', Filter: 'FlateDecode', Length: compressed.length }), compressed);
-  const specification = context.obj({ Type: 'Filespec', F: PDFHexString.fromText(fileName), UF: PDFHexString.fromText(fileName), EF: { F: context.register(stream) } });
-  const names = loaded.catalog.lookup(PDFName.of('Names'), PDFDict).lookup(PDFName.of('EmbeddedFiles'), PDFDict).lookup(PDFName.of('Names'), PDFArray);
+  const specification = context.obj({
+    Type: 'Filespec',
+    F: PDFHexString.fromText(fileName),
+    UF: PDFHexString.fromText(fileName),
+    EF: { F: context.register(stream) },
+  });
+  const names = loaded.catalog
+    .lookup(PDFName.of('Names'), PDFDict)
+    .lookup(PDFName.of('EmbeddedFiles'), PDFDict)
+    .lookup(PDFName.of('Names'), PDFArray);
   names.push(PDFHexString.fromText(fileName));
   names.push(context.register(specification));
   return loaded.save();
 }
 
 async function readError(read: Promise<unknown>): Promise<PdfError> {
-  const error = await read.then(() => undefined, (thrown: unknown) => thrown);
+  const error = await read.then(
+    () => undefined,
+    (thrown: unknown) => thrown,
+  );
   if (!(error instanceof PdfError)) throw new Error(`expected a PdfError, got ${String(error)}`);
   return error;
 }

@@ -10,7 +10,10 @@ async function taggedPdf(first: number): Promise<Uint8Array> {
   const id = (offset: number) => PDFString.of(`node${String(first + offset).padStart(8, '0')}`);
   const cells = [0, 1].map((offset) => context.register(context.obj({ Type: 'StructElem', S: 'TH', ID: id(offset) })));
   const leaf = context.obj({ Names: [id(0), cells[0]!, id(1), cells[1]!], Limits: [id(0), id(1)] });
-  document.catalog.set(PDFName.of('StructTreeRoot'), context.register(context.obj({ Type: 'StructTreeRoot', K: cells, IDTree: { Kids: [context.register(leaf)] } })));
+  document.catalog.set(
+    PDFName.of('StructTreeRoot'),
+    context.register(context.obj({ Type: 'StructTreeRoot', K: cells, IDTree: { Kids: [context.register(leaf)] } })),
+  );
   return document.save();
 }
 
