@@ -21,5 +21,3 @@ declare global {
   const charts: typeof ChartModule;
   const console: { log(...parts: unknown[]): void };
 }
-
-export {};

@@ -46,7 +46,7 @@ export function outputTextProblem(role: TextRole, text: string): TextProblem | u
       message: `contains the invisible or control character ${codePointName(control[0])}, which could make it look like another text`,
     };
   }
-  if (role !== 'text' && /^ | $|  /.test(text))
+  if (role !== 'text' && /^ | $| {2}/.test(text))
     return { code: 'text-characters', message: 'has spaces at its ends or two spaces in a row, which a report would not show' };
   const nonFinite = NON_FINITE_WORD.exec(text);
   if (nonFinite) return { code: 'non-finite', message: `says "${nonFinite[1]}": a report never shows a non-finite number, not even as text` };

@@ -233,7 +233,10 @@ function ownLinkTarget(folder: ReportFolder, name: string): string {
 function ensureOwnLink(folder: ReportFolder, name: string): void {
   const path = join(folder.out, name);
   const kind = entryKind(path);
-  if (kind === 'link') return ownLink(folder, name);
+  if (kind === 'link') {
+    ownLink(folder, name);
+    return;
+  }
   if (kind !== 'none') throw notAFile(path);
   replaceWithLink(path, ownLinkTarget(folder, name));
 }
@@ -302,7 +305,8 @@ function realFolder(path: string): void {
 function realFolderPath(out: string): void {
   if (isAbsolute(out)) {
     mkdirSync(dirname(out), { recursive: true });
-    return realFolder(out);
+    realFolder(out);
+    return;
   }
   let path = '';
   for (const part of normalize(out).split(sep)) {

@@ -13,7 +13,7 @@ import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
 import { describeLimits } from './provenance.ts';
 
 const md = createMarkdown();
-const escape = md.utils.escapeHtml;
+const escapeHtml = md.utils.escapeHtml;
 
 /** A chart already rendered to SVG by the render stage, keyed by the record it came from. */
 export type RenderedCharts = Map<LocatedRecord, string>;
@@ -91,8 +91,8 @@ function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], 
   const rows = criteria
     .map(
       (record) =>
-        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escape(record.name)}</td><td class="num">${escape(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escape(limitsText(record))}</td><td>${verdict(record.passed)}</td>${
-          withNotes ? `<td>${record.note ? escape(record.note) : ''} ${where(record.at)}</td>` : ''
+        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escapeHtml(record.name)}</td><td class="num">${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escapeHtml(limitsText(record))}</td><td>${verdict(record.passed)}</td>${
+          withNotes ? `<td>${record.note ? escapeHtml(record.note) : ''} ${where(record.at)}</td>` : ''
         }</tr>`,
     )
     .join('\n');
@@ -101,7 +101,7 @@ function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], 
 
 function tableHtml(record: TableRecord, number: number): string {
   const head = record.columns
-    .map((column) => `<th>${escape(column.label)}${column.unit ? `<span class="unit">${escape(column.unit)}</span>` : ''}</th>`)
+    .map((column) => `<th>${escapeHtml(column.label)}${column.unit ? `<span class="unit">${escapeHtml(column.unit)}</span>` : ''}</th>`)
     .join('');
   const rows = record.rows
     .map(
@@ -110,13 +110,13 @@ function tableHtml(record: TableRecord, number: number): string {
           .map((cell, index) => {
             const column = record.columns[index]!;
             return typeof cell === 'number'
-              ? `<td class="num">${escape(formatNumber(cell, column.digits))}</td>`
-              : `<td>${escape(formatQuantity(cell))}</td>`;
+              ? `<td class="num">${escapeHtml(formatNumber(cell, column.digits))}</td>`
+              : `<td>${escapeHtml(formatQuantity(cell))}</td>`;
           })
           .join('')}</tr>`,
     )
     .join('\n');
-  const caption = `<caption><span class="label">Table ${number}</span>${record.caption ? ` ${escape(record.caption)}` : ''}</caption>`;
+  const caption = `<caption><span class="label">Table ${number}</span>${record.caption ? ` ${escapeHtml(record.caption)}` : ''}</caption>`;
   return `<table class="data">${caption}<thead><tr>${head}</tr></thead><tbody>\n${rows}\n</tbody></table>`;
 }
 
@@ -133,7 +133,7 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
       `<dl class="results">${results
         .map((record) =>
           record.kind === 'result'
-            ? `<div><dt>${escape(record.name)}</dt><dd>${escape(formatQuantity(record.value, record.unit, record.digits))}</dd>${record.note ? `<p class="note">${escape(record.note)}</p>` : ''}</div>`
+            ? `<div><dt>${escapeHtml(record.name)}</dt><dd>${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</dd>${record.note ? `<p class="note">${escapeHtml(record.note)}</p>` : ''}</div>`
             : '',
         )
         .join('')}</dl>`,
@@ -160,15 +160,15 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
         counters.figure += 1;
         const svg = charts.get(record) ?? '';
         parts.push(
-          `<figure class="chart">${svg}<figcaption><span class="label">Figure ${counters.figure}</span> ${escape(record.caption)}</figcaption></figure>`,
+          `<figure class="chart">${svg}<figcaption><span class="label">Figure ${counters.figure}</span> ${escapeHtml(record.caption)}</figcaption></figure>`,
         );
         break;
       }
       case 'text':
-        parts.push(`<pre class="printed">${escape(record.text)}</pre>`);
+        parts.push(`<pre class="printed">${escapeHtml(record.text)}</pre>`);
         break;
       case 'caution':
-        parts.push(`<p class="caution-inline"><span class="label">Caution</span> ${escape(record.text)}</p>`);
+        parts.push(`<p class="caution-inline"><span class="label">Caution</span> ${escapeHtml(record.text)}</p>`);
         break;
       default:
         break;
@@ -190,7 +190,7 @@ function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, hea
   renderer.rules[INLINE_VALUE_TOKEN] = (tokens: Token[], index: number) => {
     const id = (tokens[index]!.meta as { id?: number } | null)?.id;
     const text = id === undefined ? undefined : run.outcome.inlineTexts.get(id);
-    return `<span class="value">${escape(text ?? '')}</span>`;
+    return `<span class="value">${escapeHtml(text ?? '')}</span>`;
   };
   renderer.rules.heading_open = (tokens: Token[], index: number) => {
     const token = tokens[index]!;
@@ -208,14 +208,14 @@ function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, hea
     const fenceLine = (token.map?.[0] ?? 0) + run.study.bodyFirstLine;
     const block = blocksByFence.get(fenceLine);
     const language = token.info.trim().split(/\s+/)[0] ?? '';
-    if (!block) return `<pre class="listing"><code>${escape(token.content)}</code></pre>\n`;
+    if (!block) return `<pre class="listing"><code>${escapeHtml(token.content)}</code></pre>\n`;
     const outcome = outcomes.get(block.index);
-    const code = block.options.hideCode ? '' : `<pre class="calc"><code>${escape(token.content)}</code></pre>`;
+    const code = block.options.hideCode ? '' : `<pre class="calc"><code>${escapeHtml(token.content)}</code></pre>`;
     const badge = block.options.noRun
       ? '<span class="badge">shown, not run</span>'
       : `<span class="badge">calculation, line ${block.fenceLine}${block.options.hideCode ? ' (code in the study source)' : ''}</span>`;
     const outputs = outcome ? outputsHtml(outcome.records, charts, counters) : '';
-    return `<section class="block${block.options.hideCode ? ' code-hidden' : ''}" data-language="${escape(language)}">${badge}${code}${outputs}</section>\n`;
+    return `<section class="block${block.options.hideCode ? ' code-hidden' : ''}" data-language="${escapeHtml(language)}">${badge}${code}${outputs}</section>\n`;
   };
   try {
     return renderer.render(run.study.bodyTokens, md.options, {});
@@ -233,8 +233,8 @@ function inputsTable(run: StudyRun): string {
           ? `${input.min ? formatQuantity(formatStated(input.min.value, 15), input.min.unit) : '−∞'} to ${input.max ? formatQuantity(formatStated(input.max.value, 15), input.max.unit) : '+∞'}`
           : '';
       const source =
-        input.source === 'overridden' ? `<span class="overridden">overridden (study gives ${escape(input.givenText)})</span>` : 'as given';
-      return `<tr><td><code>${escape(input.name)}</code></td><td class="num">${escape(formatQuantity(formatStated(input.value, 15), input.unit))}</td><td>${escape(range)}</td><td>${source}</td><td>${escape(input.description ?? '')}</td></tr>`;
+        input.source === 'overridden' ? `<span class="overridden">overridden (study gives ${escapeHtml(input.givenText)})</span>` : 'as given';
+      return `<tr><td><code>${escapeHtml(input.name)}</code></td><td class="num">${escapeHtml(formatQuantity(formatStated(input.value, 15), input.unit))}</td><td>${escapeHtml(range)}</td><td>${source}</td><td>${escapeHtml(input.description ?? '')}</td></tr>`;
     })
     .join('\n');
   return `<table class="data inputs"><thead><tr><th>Input</th><th>Value</th><th>Allowed range</th><th>Source</th><th>Description</th></tr></thead><tbody>\n${rows}\n</tbody></table>`;
@@ -277,17 +277,17 @@ function calculationLog(run: StudyRun): string {
       let what: string;
       let detail: string;
       if (record.kind === 'result') {
-        what = `result <strong>${escape(record.name)}</strong>`;
-        detail = escape(formatQuantity(record.value, record.unit, record.digits));
+        what = `result <strong>${escapeHtml(record.name)}</strong>`;
+        detail = escapeHtml(formatQuantity(record.value, record.unit, record.digits));
       } else if (record.kind === 'criterion') {
-        what = `criterion <strong>${escape(record.name)}</strong>`;
-        detail = `${escape(formatQuantity(record.value, record.unit, record.digits))}; required ${escape(limitsText(record))}; ${record.passed ? 'meets' : 'fails'}`;
+        what = `criterion <strong>${escapeHtml(record.name)}</strong>`;
+        detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(limitsText(record))}; ${record.passed ? 'meets' : 'fails'}`;
       } else if (record.kind === 'solver-call') {
-        what = `solver <code>${escape(record.functionName)}</code>`;
+        what = `solver <code>${escapeHtml(record.functionName)}</code>`;
         // Solver functions take one options object; show it, not a one-element argument list.
         const args =
           Array.isArray(record.argumentsSummary) && record.argumentsSummary.length === 1 ? record.argumentsSummary[0] : record.argumentsSummary;
-        detail = `<div class="io"><span class="label">in</span> ${escape(compactLogText(args))}</div><div class="io"><span class="label">out</span> ${escape(compactLogText(record.returnedSummary))}</div>`;
+        detail = `<div class="io"><span class="label">in</span> ${escapeHtml(compactLogText(args))}</div><div class="io"><span class="label">out</span> ${escapeHtml(compactLogText(record.returnedSummary))}</div>`;
       } else continue;
       step += 1;
       rows.push(`<tr><td class="num">${step}</td><td>${record.at ? record.at.line : ''}</td><td>${what}</td><td>${detail}</td></tr>`);
@@ -299,16 +299,16 @@ function calculationLog(run: StudyRun): string {
 
 function provenanceList(run: StudyRun): string {
   const p = run.provenance;
-  const item = (label: string, value: string) => `<div><dt>${escape(label)}</dt><dd>${value}</dd></div>`;
+  const item = (label: string, value: string) => `<div><dt>${escapeHtml(label)}</dt><dd>${value}</dd></div>`;
   return `<dl class="provenance">${[
-    item('kvarbook', escape(p.kvarbookVersion)),
-    item('Node.js', escape(p.nodeVersion)),
-    item('Study file', `<code>${escape(p.studyFile)}</code>`),
-    item('SHA-256 of the study source', `<code class="hash">${escape(p.studySourceSha256)}</code>`),
-    item('SHA-256 of package-lock.json', `<code class="hash">${escape(p.lockfileSha256)}</code>`),
+    item('kvarbook', escapeHtml(p.kvarbookVersion)),
+    item('Node.js', escapeHtml(p.nodeVersion)),
+    item('Study file', `<code>${escapeHtml(p.studyFile)}</code>`),
+    item('SHA-256 of the study source', `<code class="hash">${escapeHtml(p.studySourceSha256)}</code>`),
+    item('SHA-256 of package-lock.json', `<code class="hash">${escapeHtml(p.lockfileSha256)}</code>`),
     item('Type check of the blocks', p.typeChecked ? 'done' : 'skipped at the author’s request'),
-    item('Isolation of the blocks', escape(p.isolation)),
-    item('Limits', escape(describeLimits(p))),
+    item('Isolation of the blocks', escapeHtml(p.isolation)),
+    item('Limits', escapeHtml(describeLimits(p))),
   ].join('')}</dl>`;
 }
 
@@ -329,21 +329,21 @@ function titleBlock(run: StudyRun, failed: number, total: number): string {
   const { meta } = run.study;
   const person = (p: { name: string; licence?: string; jurisdiction?: string } | undefined) =>
     p
-      ? `${escape(p.name)}${p.licence ? `, licence ${escape(p.licence)}` : ''}${p.jurisdiction ? ` (${escape(p.jurisdiction)})` : ''}`
+      ? `${escapeHtml(p.name)}${p.licence ? `, licence ${escapeHtml(p.licence)}` : ''}${p.jurisdiction ? ` (${escapeHtml(p.jurisdiction)})` : ''}`
       : 'not yet named';
   const overridden = run.inputs.filter((input) => input.source === 'overridden');
   const status = criteriaStatus(failed, total);
   return `<header class="title-block">
-<p class="kicker">${escape(meta.project)}</p>
-<h1>${escape(meta.title)}</h1>
+<p class="kicker">${escapeHtml(meta.project)}</p>
+<h1>${escapeHtml(meta.title)}</h1>
 <dl class="meta">
-<div><dt>Study</dt><dd>${escape(meta.id)}, revision ${meta.revision}</dd></div>
-<div><dt>Date</dt><dd>${escape(meta.date)}</dd></div>
+<div><dt>Study</dt><dd>${escapeHtml(meta.id)}, revision ${meta.revision}</dd></div>
+<div><dt>Date</dt><dd>${escapeHtml(meta.date)}</dd></div>
 <div><dt>Engineer</dt><dd>${person(meta.engineer)}</dd></div>
 <div><dt>Checker</dt><dd>${person(meta.checker)}</dd></div>
-<div><dt>Status</dt><dd class="${failed > 0 ? 'fail' : 'pass'}">${escape(status)}</dd></div>
-<div><dt>Hidden code</dt><dd>${escape(hiddenCodeText(run))}</dd></div>
-${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escape(input.name)} = ${escape(formatQuantity(formatStated(input.value, 15), input.unit))}`).join(', ')}</dd></div>` : ''}
+<div><dt>Status</dt><dd class="${failed > 0 ? 'fail' : 'pass'}">${escapeHtml(status)}</dd></div>
+<div><dt>Hidden code</dt><dd>${escapeHtml(hiddenCodeText(run))}</dd></div>
+${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overridden: ${overridden.map((input) => `${escapeHtml(input.name)} = ${escapeHtml(formatQuantity(formatStated(input.value, 15), input.unit))}`).join(', ')}</dd></div>` : ''}
 </dl>
 </header>`;
 }
@@ -358,7 +358,7 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
   const contents = [
     ...headings
       .filter((heading) => heading.level <= 2)
-      .map((heading) => `<li class="level-${heading.level}"><a href="#${heading.id}">${escape(heading.text)}</a></li>`),
+      .map((heading) => `<li class="level-${heading.level}"><a href="#${heading.id}">${escapeHtml(heading.text)}</a></li>`),
     '<li class="level-1"><a href="#criteria">Design criteria</a></li>',
     '<li class="level-1"><a href="#cautions">Cautions</a></li>',
     '<li class="level-1"><a href="#inputs">Appendix A. Inputs</a></li>',
@@ -367,7 +367,8 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
   ].join('\n');
   const cautions = cautionsOf(run)
     .map(
-      (caution) => `<li class="${caution.standing ? 'standing' : 'study'}">${escape(caution.text)}${caution.at ? ` ${where(caution.at)}` : ''}</li>`,
+      (caution) =>
+        `<li class="${caution.standing ? 'standing' : 'study'}">${escapeHtml(caution.text)}${caution.at ? ` ${where(caution.at)}` : ''}</li>`,
     )
     .join('\n');
   const { meta } = run.study;
@@ -377,10 +378,10 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
 <meta charset="utf-8">
 <meta http-equiv="Content-Security-Policy" content="${CONTENT_SECURITY_POLICY}">
 <meta name="viewport" content="width=device-width, initial-scale=1">
-<meta name="generator" content="kvarbook ${escape(run.provenance.kvarbookVersion)}">
-<meta name="kvarbook-study" content="${escape(meta.id)}">
+<meta name="generator" content="kvarbook ${escapeHtml(run.provenance.kvarbookVersion)}">
+<meta name="kvarbook-study" content="${escapeHtml(meta.id)}">
 <meta name="kvarbook-revision" content="${meta.revision}">
-<title>${escape(meta.title)} (${escape(meta.id)} rev ${meta.revision})</title>
+<title>${escapeHtml(meta.title)} (${escapeHtml(meta.id)} rev ${meta.revision})</title>
 <style>
 ${stylesheet()}</style>
 </head>
@@ -425,7 +426,7 @@ ${calculationLog(run)}
 ${provenanceList(run)}
 </section>
 ${jsonScript(STUDY_SOURCE_SCRIPT, JSON.stringify(run.study.source))}
-<footer class="colophon">Produced by kvarbook from ${escape(run.provenance.studyFile)}. Every figure above was computed by the study's own calculation blocks.</footer>
+<footer class="colophon">Produced by kvarbook from ${escapeHtml(run.provenance.studyFile)}. Every figure above was computed by the study's own calculation blocks.</footer>
 </body>
 </html>
 `;

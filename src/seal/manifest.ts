@@ -49,7 +49,7 @@ const subjectFields = {
     .string()
     .min(1, 'must not be empty')
     .max(255, 'must be at most 255 characters')
-    .regex(/^[^/\\\u0000]+$/, 'must be a file name without a folder')
+    .regex(/^[^/\\\0]+$/, 'must be a file name without a folder')
     .refine((name) => name !== '.' && name !== '..', 'must be a file name without a folder'),
   studySourceSha256: sha256Hex,
   effectiveInputs: z.record(label, effectiveInputSchema),

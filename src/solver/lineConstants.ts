@@ -115,8 +115,7 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
   ];
   const gmdM = Math.cbrt(distances[0]! * distances[1]! * distances[2]!);
   const circumradiusM = count === 1 ? 0 : spacingM / (2 * Math.sin(Math.PI / count));
-  const bundleRadius = (subRadiusM: number) =>
-    count === 1 ? subRadiusM : Math.pow(count * subRadiusM * Math.pow(circumradiusM, count - 1), 1 / count);
+  const bundleRadius = (subRadiusM: number) => (count === 1 ? subRadiusM : (count * subRadiusM * circumradiusM ** (count - 1)) ** (1 / count));
   const bundleGmrM = bundleRadius(gmrMm / 1e3);
   const bundleCapacitanceRadiusM = bundleRadius(outsideDiameterMm / 2e3);
   if (!(gmdM > circumradiusM + outsideDiameterMm / 2e3) || !(gmdM > bundleCapacitanceRadiusM)) {

@@ -1,5 +1,5 @@
 // Voltage and current profile along a compensated route, sampled inside line sections and across lumped elements.
-import { Complex, requireComplex } from './complex.ts';
+import { type Complex, requireComplex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV, lineAbcd, perKmToSi } from './lineModels.ts';
 import { lineModelsOf, readNetwork } from './solutions.ts';

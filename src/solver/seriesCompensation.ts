@@ -1,5 +1,5 @@
 // Series capacitor bank design: degree of compensation for a target transfer within an angle limit, bank ratings and duty, MOV level.
-import { Complex, fromPlain } from './complex.ts';
+import { type Complex, fromPlain } from './complex.ts';
 import {
   assertFiniteResult,
   forMessage,

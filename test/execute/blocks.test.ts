@@ -192,7 +192,7 @@ describe('type checking', () => {
   });
 });
 
-describe('inline values', () => {
+describe('inline values under the type check', () => {
   it('strips the types of every inline value and shows each one', async () => {
     const source = studyText({
       body: `${fence("const lengthKm = 380;\nconst names = ['a', 'b'];")}\n\nLength {{ lengthKm as number }} km, {{ names.length }} names, {{ \`\${lengthKm}\` }}.`,

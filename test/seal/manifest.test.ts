@@ -59,8 +59,8 @@ describe('signManifest and verifyEnvelope', () => {
     ['a removed caution', (envelope) => envelope.manifest.cautions.pop()],
     ['the report body hash', (envelope) => (envelope.manifest.reportBodySha256 = sha256Hex('another report'))],
     ['the study source hash', (envelope) => (envelope.manifest.studySourceSha256 = sha256Hex('another study'))],
-    ['an effective input', (envelope) => (envelope.manifest.effectiveInputs['lineLengthKm']!.value = 311)],
-    ['an input source', (envelope) => (envelope.manifest.effectiveInputs['lineLengthKm']!.source = 'default')],
+    ['an effective input', (envelope) => (envelope.manifest.effectiveInputs.lineLengthKm!.value = 311)],
+    ['an input source', (envelope) => (envelope.manifest.effectiveInputs.lineLengthKm!.source = 'default')],
     ['the study date', (envelope) => (envelope.manifest.studyDate = '2025-03-15')],
     [
       'the signer name in both places',

@@ -11,7 +11,7 @@ const STUDY = 'bad.study.md';
 interface MalformedCase {
   what: string;
   /** Writes the bad study (or whatever stands in for it) into the folder. */
-  make: (folder: string) => string | void;
+  make: (folder: string) => string | undefined;
   /** The kvarbook arguments; a run of the bad study unless given. */
   args?: string[];
   code: string;

@@ -58,7 +58,13 @@ describe('nothing a study writes reaches the terminal as a control sequence', ()
 function capturedTerminal() {
   const written = { out: '', err: '' };
   const stream = (key: 'out' | 'err') =>
-    ({ write: (text: string) => ((written[key] += text), true), isTTY: false }) as unknown as NodeJS.WritableStream;
+    ({
+      write: (text: string) => {
+        written[key] += text;
+        return true;
+      },
+      isTTY: false,
+    }) as unknown as NodeJS.WritableStream;
   return { terminal: processTerminal({ out: stream('out'), err: stream('err') }), written };
 }
 

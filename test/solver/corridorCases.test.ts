@@ -146,7 +146,7 @@ describe('solveCorridorCase against the same network built by hand from two-port
         const hand = cascadeOf(random);
         const network = cascade({ elements: hand.elements });
         const load = { pMw: random.loadMw, qMvar: random.loadMvar };
-        let reference;
+        let reference: ReturnType<typeof solveFixedSendingVoltage>;
         try {
           reference = solveFixedSendingVoltage({ network, sendingVoltageKv: random.emfKv, load });
         } catch {

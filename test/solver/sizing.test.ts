@@ -161,7 +161,7 @@ describe('shuntCapacitorForLoadVoltage', () => {
           shuntSusceptanceUsPerKm: 4.674,
           lengthKm: 300,
         });
-        let sizing;
+        let sizing: ReturnType<typeof shuntCapacitorForLoadVoltage>;
         try {
           sizing = shuntCapacitorForLoadVoltage({
             network: line,
@@ -247,7 +247,7 @@ describe('shuntCapacitorForLoadVoltage near the nose', () => {
         fc.double({ min: 0, max: 600, noNaN: true }),
         fc.double({ min: 300, max: 400, noNaN: true }),
         (pMw, qMvar, targetKv) => {
-          let sizing;
+          let sizing: ReturnType<typeof shuntCapacitorForLoadVoltage>;
           try {
             sizing = shuntCapacitorForLoadVoltage({
               network: reactance,

@@ -75,7 +75,7 @@ describe('solveFixedSendingVoltage', () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: 2500, noNaN: true }), fc.double({ min: 0.85, max: 1, noNaN: true }), (pMw, powerFactor) => {
         const load = { pMw, powerFactor, powerFactorSense: 'lagging' as const };
-        let result;
+        let result: ReturnType<typeof solveFixedSendingVoltage>;
         try {
           result = solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load });
         } catch (error) {

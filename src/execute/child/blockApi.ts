@@ -2,7 +2,7 @@
 import type { InputData } from '../protocol.ts';
 import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../records.ts';
 import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from '../../report/format.ts';
-import { UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
+import { type UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
 import { summarise } from './summarise.ts';
 import { freezeDeep } from './harden.ts';
 import { OUTPUT_LIMITS } from '../limits.ts';
