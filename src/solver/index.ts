@@ -92,4 +92,6 @@ export type {
   VoltageControlResult,
 } from './cases.ts';
 export { switchingSteps } from './switchingSteps.ts';
+export { sizeReactorsAcrossCases } from './caseSizing.ts';
+export type { BusAllotment, CaseVoltageSpan, ReactorSizingAcrossCases, SizedUnit, SizedUnitsState, SizingCaseInput, SizingFailure, SizingOption } from './caseSizing.ts';
 export type { BusVoltageChange, SwitchingStep, SwitchingSteps } from './switchingSteps.ts';
