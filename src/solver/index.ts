@@ -93,5 +93,16 @@ export type {
 } from './cases.ts';
 export { switchingSteps } from './switchingSteps.ts';
 export { sizeReactorsAcrossCases } from './caseSizing.ts';
-export type { BusAllotment, CaseVoltageSpan, ReactorSizingAcrossCases, SizedUnit, SizedUnitsState, SizingCaseInput, SizingFailure, SizingOption } from './caseSizing.ts';
+export { corridorBusFault } from './shortCircuit.ts';
+export type { CorridorBusFault, SegmentFaultDuty } from './shortCircuit.ts';
+export type {
+  BusAllotment,
+  CaseVoltageSpan,
+  ReactorSizingAcrossCases,
+  SizedUnit,
+  SizedUnitsState,
+  SizingCaseInput,
+  SizingFailure,
+  SizingOption,
+} from './caseSizing.ts';
 export type { BusVoltageChange, SwitchingStep, SwitchingSteps } from './switchingSteps.ts';

@@ -1,10 +1,8 @@
 // Switching steps of a corridor case: the voltage change at every bus when each shunt unit is switched, solved both ways, beside the Q / S_sc estimate.
-import { Complex } from './complex.ts';
 import { readCorridor, type Corridor, type CorridorInput, type ShuntUnit } from './corridor.ts';
-import { BASE_MVA, buildCase, readCase, solveCaseState, type CaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
-import { admittanceMatrix, solveLinear } from './corridorNetwork.ts';
+import { readCase, solveCaseState, type CaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
+import { shortCircuitMvaAtBuses } from './shortCircuit.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireNumber, requireObject } from './errors.ts';
-import { kvToV } from './units.ts';
 
 export interface BusVoltageChange {
   bus: string;
@@ -47,51 +45,6 @@ export interface SwitchingSteps {
 }
 
 const HINT = 'Pass { corridor, case, stepLimitPercent, units? } with units the names of shunt reactors or capacitor steps (all of them by default).';
-
-/**
- * Short-circuit power (MVA) at every corridor bus: V_nom^2 / |Z_kk| with Z = Y^-1 of the case's passive network, every source EMF
- * short-circuited; a system given by a held bus voltage enters as its Thevenin impedance to ground. Constant-power loads, SVCs on their
- * slope and ideal voltage controls are left out (they do not set the short-circuit level).
- */
-export function shortCircuitMvaAtBuses(corridor: Corridor, state: CaseState): number[] | null {
-  const built = buildCase(corridor, state, new Map());
-  if ('reason' in built) return null;
-  const baseV = kvToV(corridor.nominalVoltageKv);
-  const baseImpedanceOhm = (baseV * baseV) / (BASE_MVA * 1e6);
-  const grounded = new Set<number>();
-  (['sending', 'receiving'] as const).forEach((end) => {
-    const node = built.systemNodes[end];
-    if (node === null || !state.systems[end].connected) return;
-    const bus = end === 'sending' ? 0 : corridor.buses.length - 1;
-    if (node === bus) built.network.shuntS[bus] = built.network.shuntS[bus]!.add(new Complex(1, 0).div(state.systems[end].system.impedanceOhm));
-    else grounded.add(node);
-  });
-  const full = admittanceMatrix(built.network, baseImpedanceOhm);
-  const kept = full.map((_, node) => node).filter((node) => !grounded.has(node));
-  const size = kept.length;
-  // The complex system Y x = e_k as a real one of twice the size.
-  const real = Array.from({ length: 2 * size }, () => new Array<number>(2 * size).fill(0));
-  kept.forEach((rowNode, row) =>
-    kept.forEach((columnNode, column) => {
-      const y = full[rowNode]![columnNode]!;
-      real[row]![column] = y.re;
-      real[row]![size + column] = -y.im;
-      real[size + row]![column] = y.im;
-      real[size + row]![size + column] = y.re;
-    }),
-  );
-  const result: number[] = [];
-  for (const bus of corridor.buses) {
-    const rhs = new Array<number>(2 * size).fill(0);
-    rhs[kept.indexOf(bus.index)] = 1;
-    const solution = solveLinear(real, rhs);
-    if (solution === null) return null;
-    const position = kept.indexOf(bus.index);
-    const impedancePu = Math.hypot(solution[position]!, solution[size + position]!);
-    result.push(BASE_MVA / impedancePu);
-  }
-  return result;
-}
 
 /** The voltage change at every bus for each shunt unit switched, by solving the case before and after, against a step limit. */
 export function switchingSteps(options: {
