@@ -94,6 +94,8 @@ export type {
 export { switchingSteps } from './switchingSteps.ts';
 export { sizeReactorsAcrossCases } from './caseSizing.ts';
 export { corridorBusFault } from './shortCircuit.ts';
+export { corridorCaseCriteria } from './caseCriteria.ts';
+export type { CaseCriteria, CaseCriterionKind, CaseCriterionRow, CaseCriterionSettings, CaseCriterionSummary } from './caseCriteria.ts';
 export type { CorridorBusFault, SegmentFaultDuty } from './shortCircuit.ts';
 export type {
   BusAllotment,
