@@ -24,6 +24,8 @@ export type ScanElement =
     }
   | { kind: 'series-capacitor'; reactanceOhm: number }
   | { kind: 'shunt-reactor'; reactanceOhm?: number; qMvar?: number; ratedVoltageKv?: number }
+  /** A shunt capacitor bank to ground: its admittance rises with frequency. */
+  | { kind: 'shunt-capacitor'; reactanceOhm?: number; qMvar?: number; ratedVoltageKv?: number }
   | { kind: 'system'; reactanceOhm: number; resistanceOhm?: number };
 
 export interface FrequencyScanOptions {
@@ -72,8 +74,17 @@ export interface FrequencyScan {
 }
 
 const HINT =
-  "Pass { frequencyHz, elements: [{ kind: 'generator', subtransientReactanceOhm }, { kind: 'transformer' | 'series-impedance', reactanceOhm, resistanceOhm? }, { kind: 'line-section', lengthKm, per-km constants at f0 }, { kind: 'series-capacitor', reactanceOhm }, { kind: 'shunt-reactor', reactanceOhm | qMvar + ratedVoltageKv }, { kind: 'system', reactanceOhm, resistanceOhm? }], torsionalModesHz?, marginHz? }, every impedance referred to one voltage level.";
-const KINDS = ['generator', 'transformer', 'series-impedance', 'line-section', 'series-capacitor', 'shunt-reactor', 'system'] as const;
+  "Pass { frequencyHz, elements: [{ kind: 'generator', subtransientReactanceOhm }, { kind: 'transformer' | 'series-impedance', reactanceOhm, resistanceOhm? }, { kind: 'line-section', lengthKm, per-km constants at f0 }, { kind: 'series-capacitor', reactanceOhm }, { kind: 'shunt-reactor' | 'shunt-capacitor', reactanceOhm | qMvar + ratedVoltageKv }, { kind: 'system', reactanceOhm, resistanceOhm? }], torsionalModesHz?, marginHz? }, every impedance referred to one voltage level.";
+const KINDS = [
+  'generator',
+  'transformer',
+  'series-impedance',
+  'line-section',
+  'series-capacitor',
+  'shunt-reactor',
+  'shunt-capacitor',
+  'system',
+] as const;
 const OHM_RANGE = { min: 0, max: 1e6, minInclusive: false, unit: 'ohm' } as const;
 const RESISTANCE_RANGE = { min: 0, max: 1e6, unit: 'ohm' } as const;
 
@@ -120,18 +131,16 @@ function readElement(value: unknown, index: number, frequencyHz: number): ScanBr
         seriesCapacitiveOhmAtF0: reactanceOhm,
       };
     }
-    case 'shunt-reactor': {
+    case 'shunt-reactor':
+    case 'shunt-capacitor': {
       const reactanceOhm =
         record.reactanceOhm !== undefined
           ? requireNumber(`${where}.reactanceOhm`, record.reactanceOhm, OHM_RANGE, HINT)
           : kvToV(requireNumber(`${where}.ratedVoltageKv`, record.ratedVoltageKv, VOLTAGE_RANGE_KV, HINT)) ** 2 /
             (requireNumber(`${where}.qMvar`, record.qMvar, { min: 0, max: 1e5, minInclusive: false, unit: 'Mvar' }, HINT) * 1e6);
-      return {
-        kind,
-        abcdAt: (f) => shuntAdmittanceAbcd(new Complex(0, -1 / (reactanceOhm * ratio(f)))),
-        seriesInductiveOhmAtF0: 0,
-        seriesCapacitiveOhmAtF0: 0,
-      };
+      const admittanceAt = (f: number) =>
+        kind === 'shunt-reactor' ? new Complex(0, -1 / (reactanceOhm * ratio(f))) : new Complex(0, ratio(f) / reactanceOhm);
+      return { kind, abcdAt: (f) => shuntAdmittanceAbcd(admittanceAt(f)), seriesInductiveOhmAtF0: 0, seriesCapacitiveOhmAtF0: 0 };
     }
     case 'system': {
       // A system is a branch to ground: its Thevenin impedance with the EMF short-circuited (the EMF has no subsynchronous component).

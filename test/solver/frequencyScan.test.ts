@@ -163,4 +163,17 @@ describe('frequencyScan', () => {
     expect(call).toThrow(SolverDomainError);
     expect(call).toThrow(/end the chain with a system/);
   });
+
+  test('resonates a generator against a shunt capacitor at f0 sqrt(Xc / Xg), the capacitor admittance rising with frequency (series LC identity)', () => {
+    const scan = frequencyScan({
+      frequencyHz: 50,
+      elements: [
+        { kind: 'generator', subtransientReactanceOhm: 40 },
+        { kind: 'shunt-capacitor', reactanceOhm: 10 },
+      ],
+      stepHz: 0.01,
+    });
+    expect(scan.seriesResonances).toHaveLength(1);
+    expect(scan.seriesResonances[0]!.frequencyHz).toBeCloseTo(50 * Math.sqrt(10 / 40), 6);
+  });
 });
