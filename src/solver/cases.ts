@@ -119,6 +119,8 @@ export interface SectionResult {
   /** Along the section: position from its from-bus and from the corridor's sending bus. */
   maximum: { positionKm: number; corridorKm: number; voltageKv: number; voltagePu: number };
   minimum: { positionKm: number; corridorKm: number; voltageKv: number; voltagePu: number };
+  /** The sampled voltage along the section (profilePointCount points; a series segment gives two points at one place), for charts. */
+  profile: { corridorKm: number[]; voltagePu: number[] };
   seriesCapacitors: SegmentResult[];
 }
 
@@ -773,6 +775,8 @@ function assembleSolution(
         reactiveBalanceMvar: 0,
         maximum: fromPoint,
         minimum: fromPoint,
+        // An open section carries no voltage along it: nothing to draw.
+        profile: { corridorKm: [], voltagePu: [] },
         seriesCapacitors: section.seriesCapacitors.map((segment) => segmentResult(segment, 0, state.bypassed(segment))),
       };
     }
@@ -816,6 +820,10 @@ function assembleSolution(
       reactiveBalanceMvar: sendingPower.im - receivingPower.im,
       maximum: extreme(profile.maximum),
       minimum: extreme(profile.minimum),
+      profile: {
+        corridorKm: profile.positionKm.map((positionKm) => corridorStartKm + positionKm),
+        voltagePu: profile.voltageKv.map((voltageKv) => voltageKv / nominalKv),
+      },
       seriesCapacitors: section.seriesCapacitors.map((segment) =>
         segmentResult(segment, segmentCurrents.get(segment.name) ?? 0, state.bypassed(segment)),
       ),

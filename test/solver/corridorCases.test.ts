@@ -368,3 +368,28 @@ describe('solveCorridorCase: transfer, controls and contingencies', () => {
     expect(limited.voltageKv / 400).toBeLessThan(1 - 0.03 * (limited.outputMvar / 200 / (limited.voltageKv / 400)));
   });
 });
+
+describe('the voltage profile in a case solution', () => {
+  test('runs along the corridor from the section start, holds the section extremes and ends at the bus voltages', () => {
+    const corridor: CorridorInput = {
+      frequencyHz: 50,
+      nominalVoltageKv: 400,
+      sendingSystem: { shortCircuitMva: 10000, xOverR: 12, emfKv: 400 },
+      receivingSystem: { shortCircuitMva: 8000, xOverR: 12, emfKv: 400 },
+      buses: [{ name: 'A' }, { name: 'B' }, { name: 'C' }],
+      sections: [
+        { from: 'A', to: 'B', lengthKm: 150, ...perKm },
+        { from: 'B', to: 'C', lengthKm: 200, ...perKm },
+      ],
+    };
+    const result = solved(
+      solveCorridorCase({ corridor, case: { label: 'open end', loading: { kind: 'energisation', closedEnd: 'sending' } }, profilePointCount: 21 }),
+    );
+    const second = result.sections[1]!;
+    expect(second.profile.corridorKm[0]).toBeCloseTo(150, 9);
+    expect(second.profile.corridorKm.at(-1)).toBeCloseTo(350, 9);
+    expect(second.profile.voltagePu[0]).toBeCloseTo(result.buses[1]!.voltagePu, 9);
+    expect(second.profile.voltagePu.at(-1)).toBeCloseTo(result.buses[2]!.voltagePu, 9);
+    expect(Math.max(...second.profile.voltagePu)).toBeCloseTo(second.maximum.voltagePu, 12);
+  });
+});
