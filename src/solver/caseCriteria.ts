@@ -38,10 +38,12 @@ export interface CaseCriterionSettings {
   bankRating?: 'continuous' | 'emergency';
   /** The voltage band for this case when it differs from the study's. */
   bandPu?: { min: number; max: number };
+  /** The angle limit for this case when it differs from the study's (a post-contingency limit, for instance). */
+  maxAngleDeg?: number;
 }
 
 const HINT =
-  "Pass { table (from solveCorridorCases), bandPu: { min, max }, maxAngleDeg?, cases?: { <case label>: { bankRating?: 'continuous' | 'emergency', bandPu? } } }.";
+  "Pass { table (from solveCorridorCases), bandPu: { min, max }, maxAngleDeg?, cases?: { <case label>: { bankRating?: 'continuous' | 'emergency', bandPu?, maxAngleDeg? } } }.";
 const BAND_RANGE = { min: 0.5, max: 1.5, unit: 'pu' };
 
 /**
@@ -60,17 +62,9 @@ export function corridorCaseCriteria(options: {
   const table = requireObject('table', record.table, HINT) as unknown as CorridorCaseTable;
   const solutions = requireArray('table.cases', table.cases, 1, HINT) as CorridorCaseTable['cases'];
   const bandPu = readBand('bandPu', record.bandPu);
-  const maxAngleDeg =
-    record.maxAngleDeg === undefined
-      ? null
-      : requireNumber(
-          'maxAngleDeg',
-          record.maxAngleDeg,
-          { min: 0, max: 90, minInclusive: false, unit: 'deg' },
-          'The largest angle allowed across the corridor; about 30 to 35 degrees is common practice for steady-state margin.',
-        );
+  const maxAngleDeg = record.maxAngleDeg === undefined ? null : readAngle('maxAngleDeg', record.maxAngleDeg);
   const labels = new Set(solutions.map((solution) => solution.label));
-  const settings = new Map<string, { bankRating: 'continuous' | 'emergency'; bandPu: { min: number; max: number } }>();
+  const settings = new Map<string, { bankRating: 'continuous' | 'emergency'; bandPu: { min: number; max: number }; maxAngleDeg: number | null }>();
   if (record.cases !== undefined) {
     for (const [label, value] of Object.entries(requireObject('cases', record.cases, HINT))) {
       if (!labels.has(label)) {
@@ -89,6 +83,7 @@ export function corridorCaseCriteria(options: {
             ? 'continuous'
             : requireChoice(`cases.${label}.bankRating`, entry.bankRating, ['continuous', 'emergency'] as const, HINT),
         bandPu: entry.bandPu === undefined ? bandPu : readBand(`cases.${label}.bandPu`, entry.bandPu),
+        maxAngleDeg: entry.maxAngleDeg === undefined ? maxAngleDeg : readAngle(`cases.${label}.maxAngleDeg`, entry.maxAngleDeg),
       });
     }
   }
@@ -108,7 +103,7 @@ export function corridorCaseCriteria(options: {
         },
       ];
     }
-    const caseSettings = settings.get(solution.label) ?? { bankRating: 'continuous' as const, bandPu };
+    const caseSettings = settings.get(solution.label) ?? { bankRating: 'continuous' as const, bandPu, maxAngleDeg };
     return [
       {
         case: solution.label,
@@ -122,7 +117,7 @@ export function corridorCaseCriteria(options: {
         note: 'solved',
       },
       ...bandRows(solution, caseSettings.bandPu),
-      ...angleRows(solution, maxAngleDeg),
+      ...angleRows(solution, caseSettings.maxAngleDeg),
       ...bankRows(solution, caseSettings.bankRating),
       ...svcRows(solution),
     ];
@@ -143,6 +138,15 @@ function tighter(row: CaseCriterionRow, than: CaseCriterionRow): boolean {
   if (row.margin === null) return than.margin !== null;
   if (than.margin === null) return false;
   return row.margin < than.margin;
+}
+
+function readAngle(path: string, value: unknown): number {
+  return requireNumber(
+    path,
+    value,
+    { min: 0, max: 90, minInclusive: false, unit: 'deg' },
+    'The largest angle allowed across the corridor; about 30 to 35 degrees is common practice for steady-state margin.',
+  );
 }
 
 function readBand(path: string, value: unknown): { min: number; max: number } {

@@ -85,6 +85,23 @@ describe('design criteria over a case table', () => {
     expect(row.value).toBeCloseTo(Math.abs(peak.buses[0]!.angleDeg - peak.buses[2]!.angleDeg), 12);
   });
 
+  test('holds a case with its own angle limit to that limit', () => {
+    const peakAngle = (() => {
+      const peak = table.cases.find((solution) => solution.label === 'peak');
+      if (!peak?.solved) throw new Error('peak unsolved');
+      return Math.abs(peak.buses[0]!.angleDeg - peak.buses[2]!.angleDeg);
+    })();
+    const criteria = corridorCaseCriteria({
+      table,
+      bandPu: { min: 0.8, max: 1.2 },
+      maxAngleDeg: peakAngle - 1,
+      cases: { peak: { maxAngleDeg: peakAngle + 1 } },
+    });
+    const rows = criteria.rows.filter((row) => row.criterion === 'corridor-angle');
+    expect(rows.find((row) => row.case === 'peak')).toMatchObject({ passed: true, limit: peakAngle + 1 });
+    expect(rows.find((row) => row.case === 'night, reactor in')).toMatchObject({ limit: peakAngle - 1 });
+  });
+
   test('gives the study band to every case unless a case has its own', () => {
     const criteria = corridorCaseCriteria({
       table,
