@@ -322,7 +322,7 @@ function faultNodeOf(corridor: Corridor, state: CaseState, passive: PassiveNetwo
       place.distanceKm <= branch.tag.offsetKm + branch.tag.lengthKm + 1e-9,
   );
   const piece = network.branches[pieceIndex];
-  if (!piece || piece.tag.kind !== 'line') return null;
+  if (piece?.tag.kind !== 'line') return null;
   const intoPieceKm = place.distanceKm - piece.tag.offsetKm;
   if (intoPieceKm <= 1e-9) return piece.from;
   if (piece.tag.lengthKm - intoPieceKm <= 1e-9) return piece.to;
