@@ -7,14 +7,14 @@ import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
 import type { CriterionRecord, TableRecord } from '../execute/records.ts';
 import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
-import { formatNumber, formatQuantity, formatStated } from '../blocks/format.ts';
+import { formatLimits, formatNumber, formatQuantity, formatStated } from '../blocks/format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
+import { escapeHtml } from './escape.ts';
 import { describeLimits } from './provenance.ts';
 
 // The study body's markdown-it, with the report's rules (below) registered once.
 const bodyMarkdown = createMarkdown();
-const escapeHtml = bodyMarkdown.utils.escapeHtml;
 
 /** A chart already rendered to SVG by the render stage, keyed by the record it came from. */
 export type RenderedCharts = Map<LocatedRecord, string>;
@@ -30,8 +30,7 @@ export interface ReportParts {
  * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
  * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
  */
-export const CONTENT_SECURITY_POLICY =
-  "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
 
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
@@ -73,16 +72,6 @@ export function criteriaStatus(failed: number, total: number): string {
   return `${failed} of ${total} ${total === 1 ? 'criterion' : 'criteria'} not met`;
 }
 
-function limitsText(record: Pick<CriterionRecord, 'min' | 'max' | 'unit' | 'digits'>): string {
-  // Limits are stated numbers, not computed ones: no padding zeros ("1 km", not "1.000 km").
-  const fmt = (value: number) => formatQuantity(formatStated(value, record.digits), record.unit);
-  if (record.min !== undefined && record.max !== undefined) return `${fmt(record.min)} to ${fmt(record.max)}`;
-  if (record.min !== undefined) return `at least ${fmt(record.min)}`;
-  return `at most ${fmt(record.max as number)}`;
-}
-
-export { limitsText };
-
 function verdict(passed: boolean): string {
   return passed ? '<span class="verdict pass">meets</span>' : '<span class="verdict fail">fails</span>';
 }
@@ -92,7 +81,7 @@ function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], 
   const rows = criteria
     .map(
       (record) =>
-        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escapeHtml(record.name)}</td><td class="num">${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escapeHtml(limitsText(record))}</td><td>${verdict(record.passed)}</td>${
+        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escapeHtml(record.name)}</td><td class="num">${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escapeHtml(formatLimits(record))}</td><td>${verdict(record.passed)}</td>${
           withNotes ? `<td>${record.note ? escapeHtml(record.note) : ''} ${where(record.at)}</td>` : ''
         }</tr>`,
     )
@@ -297,7 +286,7 @@ function calculationLog(run: StudyRun): string {
         detail = escapeHtml(formatQuantity(record.value, record.unit, record.digits));
       } else if (record.kind === 'criterion') {
         what = `criterion <strong>${escapeHtml(record.name)}</strong>`;
-        detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(limitsText(record))}; ${record.passed ? 'meets' : 'fails'}`;
+        detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(formatLimits(record))}; ${record.passed ? 'meets' : 'fails'}`;
       } else if (record.kind === 'solver-call') {
         what = `solver <code>${escapeHtml(record.functionName)}</code>`;
         // Solver functions take one options object; show it, not a one-element argument list.
@@ -334,7 +323,7 @@ function listed(items: readonly (string | number)[]): string {
 }
 
 /** Where the code of hide-code blocks is, so that a reader knows there is code the report does not show. */
-export function hiddenCodeText(run: StudyRun): string {
+function hiddenCodeText(run: StudyRun): string {
   const lines = run.study.blocks.filter((block) => block.options.hideCode).map((block) => block.fenceLine);
   if (lines.length === 0) return 'none: every calculation block shows its code';
   const count = lines.length === 1 ? '1 calculation block hides its code' : `${lines.length} calculation blocks hide their code`;

@@ -4,7 +4,7 @@ import { readCorridor, type Corridor, type CorridorInput, type ShuntUnit } from 
 import { BASE_MVA, buildCase, readCase, solveCaseState, type CaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
 import { admittanceMatrix, solveLinear } from './corridorNetwork.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireNumber, requireObject } from './errors.ts';
-import { kvToV } from './units.ts';
+import { kvToV, varToMvar } from './units.ts';
 
 export interface BusVoltageChange {
   bus: string;
@@ -53,7 +53,7 @@ const HINT = 'Pass { corridor, case, stepLimitPercent, units? } with units the n
  * short-circuited; a system given by a held bus voltage enters as its Thevenin impedance to ground. Constant-power loads, SVCs on their
  * slope and ideal voltage controls are left out (they do not set the short-circuit level).
  */
-export function shortCircuitMvaAtBuses(corridor: Corridor, state: CaseState): number[] | null {
+function shortCircuitMvaAtBuses(corridor: Corridor, state: CaseState): number[] | null {
   const built = buildCase(corridor, state, new Map());
   if ('reason' in built) return null;
   const baseV = kvToV(corridor.nominalVoltageKv);
@@ -179,7 +179,7 @@ function stepFor(
   const after = solveCaseState(corridor, toggled, settings);
   const bus = corridor.buses[unit.busIndex]!;
   const beforeKv = before.buses[unit.busIndex]!.voltageKv;
-  const unitMvar = (unit.susceptanceS * (beforeKv * 1e3) ** 2) / 1e6;
+  const unitMvar = varToMvar(unit.susceptanceS * (beforeKv * 1e3) ** 2);
   // Switching a unit in adds its output to the bus; switching it out removes it.
   const estimatedChangePercent = shortCircuitMva > 0 ? ((wasInService ? -unitMvar : unitMvar) / shortCircuitMva) * 100 : 0;
   const common = {

@@ -1,5 +1,4 @@
 // Parse stage: study source text -> Study (front matter, inputs, calculation blocks, inline values), or located diagnostics.
-import { createHash } from 'node:crypto';
 import type { Token } from 'markdown-it';
 import { LineCounter, parseDocument, isMap, type Document } from 'yaml';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
@@ -8,6 +7,7 @@ import { readInputs } from './inputs.ts';
 import { readMeta } from './meta.ts';
 import type { CalcBlock, InlineExpression, Study } from './model.ts';
 import type { YamlPlace } from './yamlFields.ts';
+import { sha256Hex } from '../seal/digest.ts';
 
 const FENCE_LINE = /^---\s*$/;
 const CALC_LANGUAGE = 'ts';
@@ -85,7 +85,7 @@ export function parseStudy(file: string, source: string): Study {
   return {
     file,
     source,
-    sourceSha256: createHash('sha256').update(source, 'utf8').digest('hex'),
+    sourceSha256: sha256Hex(source),
     meta,
     inputs,
     blocks,

@@ -6,7 +6,7 @@ import { seriesColours } from '../../blocks/chartStyle.ts';
  * Fonts named in every SVG. Liberation Sans comes first because its widths match the character-width
  * estimate Vega uses for label layout when no canvas is available, so labels neither overlap nor drift.
  */
-export const chartFontStack = '"Liberation Sans", "Helvetica Neue", Arial, sans-serif';
+const chartFontStack = '"Liberation Sans", "Helvetica Neue", Arial, sans-serif';
 
 /** Defaults applied under every spec; a spec's own config still wins. */
 export const chartBaseConfig: Config = {
