@@ -31,7 +31,7 @@ export interface RunProduct {
   results: ResultsDocument;
 }
 
-export const ISOLATION_DESCRIPTION =
+const ISOLATION_DESCRIPTION =
   'separate Node.js process under the permission model: reads only the study folder, no writes, no child processes, workers or network modules';
 
 export async function runStudy(request: RunRequest): Promise<RunProduct> {

@@ -34,7 +34,7 @@ export interface CheckOptions {
 }
 
 /** Far above any report kvarbook writes; a larger file is not a report, and is not read into memory. */
-export const MAX_CHECKED_FILE_BYTES = 256 * 1024 * 1024;
+const MAX_CHECKED_FILE_BYTES = 256 * 1024 * 1024;
 
 async function readReport(reportPath: string): Promise<{ html: string; pdf?: PdfInHand }> {
   let size: number;

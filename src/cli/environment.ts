@@ -1,8 +1,8 @@
 // Facts about this installation that a report records: versions and the lock-file hash (read once, at the edge).
-import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
+import { sha256Hex } from '../seal/digest.ts';
 
 export interface InstallationFacts {
   kvarbookVersion: string;
@@ -16,6 +16,6 @@ export function installationFacts(): InstallationFacts {
   return {
     kvarbookVersion: manifest.version,
     nodeVersion: process.version,
-    lockfileSha256: createHash('sha256').update(lockfile).digest('hex'),
+    lockfileSha256: sha256Hex(lockfile),
   };
 }

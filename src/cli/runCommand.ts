@@ -29,11 +29,7 @@ export interface RunOptions {
   ceilings?: RunLimits;
 }
 
-export async function produceStudy(
-  studyPath: string,
-  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>,
-  terminal: Terminal,
-): Promise<RunProduct> {
+async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
   return runStudy({
     file: studyPath,

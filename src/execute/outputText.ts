@@ -1,6 +1,6 @@
 // What a text a study writes must be to reach a report: bounded in length, free of control and invisible characters, never NaN.
 import { OUTPUT_LIMITS } from './limits.ts';
-import { formatCount } from '../report/format.ts';
+import { formatCount } from '../blocks/format.ts';
 
 /**
  * - `name`: result and criterion names, column labels, units. Two names must not look alike, so no invisible or
@@ -20,7 +20,7 @@ const INVISIBLE_IN_NAME = /[\p{Cc}\p{Cf}\p{Zl}\p{Zp}\p{Cs}\p{Co}\p{Cn}]|[^\S ]/u
 const NON_FINITE_WORD = /(?<![\p{L}\p{N}_])(NaN|Infinity)(?![\p{L}\p{N}_])/u;
 
 /** "U+202E" for a character, so a message can name what it refuses without showing it. */
-export function codePointName(character: string): string {
+function codePointName(character: string): string {
   return `U+${character.codePointAt(0)!.toString(16).toUpperCase().padStart(4, '0')}`;
 }
 

@@ -394,7 +394,7 @@ export class ChildExit extends Error {
  * Typed-array buffers live outside the V8 heap that --max-old-space-size caps, so the child's resident
  * memory is watched as well: the heap limit twice over (young generation, code, buffers) plus a margin.
  */
-export function residentLimitBytes(heapMb: number): number {
+function residentLimitBytes(heapMb: number): number {
   return (2 * heapMb + RESIDENT_MARGIN_MB) * 1024 * 1024;
 }
 

@@ -1,5 +1,5 @@
 // The files of one run as one set: written into a fresh folder and switched in with one rename, never through a link; earlier sets kept whole.
-import { randomBytes, createHash } from 'node:crypto';
+import { randomBytes } from 'node:crypto';
 import {
   closeSync,
   fsyncSync,
@@ -19,6 +19,7 @@ import {
 import { basename, dirname, isAbsolute, join, normalize, sep } from 'node:path';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { processIsRunning } from './liveProcess.ts';
+import { sha256Hex } from '../seal/digest.ts';
 
 /*
  * <out>/TEST-1-r1.html          -> .kvarbook/TEST-1-r1/TEST-1-r1.html   (one link per file name; never changes)
@@ -205,7 +206,7 @@ function supersede(folder: ReportFolder, set: ReportSet): string {
   const parent = join(folder.out, SUPERSEDED);
   realFolder(parent);
   const sealFile = set.files.get(`${folder.base}.seal.json`) ?? set.files.get(`${folder.base}.html`) ?? [...set.files.values()][0];
-  const tag = sealFile ? createHash('sha256').update(readFileSync(sealFile)).digest('hex').slice(0, 12) : 'empty';
+  const tag = sealFile ? sha256Hex(readFileSync(sealFile)).slice(0, 12) : 'empty';
   for (let attempt = 1; ; attempt += 1) {
     const destination = join(parent, `${folder.base}-${tag}${attempt > 1 ? `-${attempt}` : ''}`);
     try {

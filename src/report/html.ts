@@ -7,13 +7,14 @@ import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
 import type { CriterionRecord, TableRecord } from '../execute/records.ts';
 import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
-import { formatNumber, formatQuantity, formatStated } from './format.ts';
+import { formatLimits, formatNumber, formatQuantity, formatStated } from '../blocks/format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
+import { escapeHtml } from './escape.ts';
 import { describeLimits } from './provenance.ts';
 
-const md = createMarkdown();
-const escapeHtml = md.utils.escapeHtml;
+// The study body's markdown-it, with the report's rules (below) registered once.
+const bodyMarkdown = createMarkdown();
 
 /** A chart already rendered to SVG by the render stage, keyed by the record it came from. */
 export type RenderedCharts = Map<LocatedRecord, string>;
@@ -29,8 +30,7 @@ export interface ReportParts {
  * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
  * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
  */
-export const CONTENT_SECURITY_POLICY =
-  "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
 
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
@@ -72,16 +72,6 @@ export function criteriaStatus(failed: number, total: number): string {
   return `${failed} of ${total} ${total === 1 ? 'criterion' : 'criteria'} not met`;
 }
 
-function limitsText(record: Pick<CriterionRecord, 'min' | 'max' | 'unit' | 'digits'>): string {
-  // Limits are stated numbers, not computed ones: no padding zeros ("1 km", not "1.000 km").
-  const fmt = (value: number) => formatQuantity(formatStated(value, record.digits), record.unit);
-  if (record.min !== undefined && record.max !== undefined) return `${fmt(record.min)} to ${fmt(record.max)}`;
-  if (record.min !== undefined) return `at least ${fmt(record.min)}`;
-  return `at most ${fmt(record.max as number)}`;
-}
-
-export { limitsText };
-
 function verdict(passed: boolean): string {
   return passed ? '<span class="verdict pass">meets</span>' : '<span class="verdict fail">fails</span>';
 }
@@ -91,7 +81,7 @@ function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], 
   const rows = criteria
     .map(
       (record) =>
-        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escapeHtml(record.name)}</td><td class="num">${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escapeHtml(limitsText(record))}</td><td>${verdict(record.passed)}</td>${
+        `<tr class="${record.passed ? 'pass' : 'fail'}"><td>${escapeHtml(record.name)}</td><td class="num">${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</td><td>${escapeHtml(formatLimits(record))}</td><td>${verdict(record.passed)}</td>${
           withNotes ? `<td>${record.note ? escapeHtml(record.note) : ''} ${where(record.at)}</td>` : ''
         }</tr>`,
     )
@@ -178,50 +168,65 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
   return parts.length ? `<div class="outputs">${parts.join('\n')}</div>` : '';
 }
 
-function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
-  const blocksByFence = new Map(run.study.blocks.map((block) => [block.fenceLine, block]));
-  const outcomes = new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome]));
-  const slugs: Slugs = {
-    taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']),
-    next: new Map(),
-  };
-  const renderer = md.renderer;
-  const rules = { ...renderer.rules };
-  renderer.rules[INLINE_VALUE_TOKEN] = (tokens: Token[], index: number) => {
+/** What one render of the study body needs: markdown-it hands it to every rule as `env`. */
+type BodyEnv = {
+  run: StudyRun;
+  charts: RenderedCharts;
+  counters: Counters;
+  headings: { level: number; id: string; text: string }[];
+  slugs: Slugs;
+  blocksByFence: Map<number, StudyRun['study']['blocks'][number]>;
+  outcomes: Map<number, StudyRun['outcome']['blocks'][number]>;
+};
+
+type BodyRule = (tokens: Token[], index: number, options: unknown, env: BodyEnv) => string;
+
+/** The report's rules for the study body, registered once; each render passes its run in `env`. */
+const bodyRules: Record<string, BodyRule> = {
+  [INLINE_VALUE_TOKEN]: (tokens, index, _options, env) => {
     const id = (tokens[index]!.meta as { id?: number } | null)?.id;
-    const text = id === undefined ? undefined : run.outcome.inlineTexts.get(id);
+    const text = id === undefined ? undefined : env.run.outcome.inlineTexts.get(id);
     return `<span class="value">${escapeHtml(text ?? '')}</span>`;
-  };
-  renderer.rules.heading_open = (tokens: Token[], index: number) => {
+  },
+  heading_open: (tokens, index, _options, env) => {
     const token = tokens[index]!;
     const text = tokens[index + 1]?.children?.map((child) => (child.type === INLINE_VALUE_TOKEN ? '' : child.content)).join('') ?? '';
-    const id = slug(text, slugs);
+    const id = slug(text, env.slugs);
     const level = Number(token.tag.slice(1));
     // The report's own h1 is the title; body headings move one level down.
     const shifted = Math.min(6, level + 1);
-    headings.push({ level, id, text });
+    env.headings.push({ level, id, text });
     return `<h${shifted} id="${id}">`;
-  };
-  renderer.rules.heading_close = (tokens: Token[], index: number) => `</h${Math.min(6, Number(tokens[index]!.tag.slice(1)) + 1)}>\n`;
-  renderer.rules.fence = (tokens: Token[], index: number) => {
+  },
+  heading_close: (tokens, index) => `</h${Math.min(6, Number(tokens[index]!.tag.slice(1)) + 1)}>\n`,
+  fence: (tokens, index, _options, env) => {
     const token = tokens[index]!;
-    const fenceLine = (token.map?.[0] ?? 0) + run.study.bodyFirstLine;
-    const block = blocksByFence.get(fenceLine);
+    const fenceLine = (token.map?.[0] ?? 0) + env.run.study.bodyFirstLine;
+    const block = env.blocksByFence.get(fenceLine);
     const language = token.info.trim().split(/\s+/)[0] ?? '';
     if (!block) return `<pre class="listing"><code>${escapeHtml(token.content)}</code></pre>\n`;
-    const outcome = outcomes.get(block.index);
+    const outcome = env.outcomes.get(block.index);
     const code = block.options.hideCode ? '' : `<pre class="calc"><code>${escapeHtml(token.content)}</code></pre>`;
     const badge = block.options.noRun
       ? '<span class="badge">shown, not run</span>'
       : `<span class="badge">calculation, line ${block.fenceLine}${block.options.hideCode ? ' (code in the study source)' : ''}</span>`;
-    const outputs = outcome ? outputsHtml(outcome.records, charts, counters) : '';
+    const outputs = outcome ? outputsHtml(outcome.records, env.charts, env.counters) : '';
     return `<section class="block${block.options.hideCode ? ' code-hidden' : ''}" data-language="${escapeHtml(language)}">${badge}${code}${outputs}</section>\n`;
+  },
+};
+Object.assign(bodyMarkdown.renderer.rules, bodyRules);
+
+function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
+  const env: BodyEnv = {
+    run,
+    charts,
+    counters,
+    headings,
+    slugs: { taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']), next: new Map() },
+    blocksByFence: new Map(run.study.blocks.map((block) => [block.fenceLine, block])),
+    outcomes: new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome])),
   };
-  try {
-    return renderer.render(run.study.bodyTokens, md.options, {});
-  } finally {
-    renderer.rules = rules;
-  }
+  return bodyMarkdown.renderer.render(run.study.bodyTokens, bodyMarkdown.options, env);
 }
 
 function inputsTable(run: StudyRun): string {
@@ -281,7 +286,7 @@ function calculationLog(run: StudyRun): string {
         detail = escapeHtml(formatQuantity(record.value, record.unit, record.digits));
       } else if (record.kind === 'criterion') {
         what = `criterion <strong>${escapeHtml(record.name)}</strong>`;
-        detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(limitsText(record))}; ${record.passed ? 'meets' : 'fails'}`;
+        detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(formatLimits(record))}; ${record.passed ? 'meets' : 'fails'}`;
       } else if (record.kind === 'solver-call') {
         what = `solver <code>${escapeHtml(record.functionName)}</code>`;
         // Solver functions take one options object; show it, not a one-element argument list.
@@ -318,7 +323,7 @@ function listed(items: readonly (string | number)[]): string {
 }
 
 /** Where the code of hide-code blocks is, so that a reader knows there is code the report does not show. */
-export function hiddenCodeText(run: StudyRun): string {
+function hiddenCodeText(run: StudyRun): string {
   const lines = run.study.blocks.filter((block) => block.options.hideCode).map((block) => block.fenceLine);
   if (lines.length === 0) return 'none: every calculation block shows its code';
   const count = lines.length === 1 ? '1 calculation block hides its code' : `${lines.length} calculation blocks hide their code`;

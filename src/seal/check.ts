@@ -243,7 +243,7 @@ function engineerStep(signer: PublicIdentity | null, engineer: Person | undefine
 }
 
 /** Study lines of every block whose code the report leaves out, opening to closing fence. */
-export function hiddenBlocks(blocks: readonly CalcBlock[]): HiddenBlock[] {
+function hiddenBlocks(blocks: readonly CalcBlock[]): HiddenBlock[] {
   return blocks
     .filter((block) => block.options.hideCode)
     .map((block) => {

@@ -7,10 +7,10 @@ import { SealError } from './errors.ts';
 import { publicIdentitySchema, type PublicIdentity } from './keys.ts';
 import { envelopeSha256, type SealEnvelope } from './manifest.ts';
 import { describeIssues, formatPath } from './shapes.ts';
-import { checkSignedParts, signatureBase64Schema, signCanonical, type SignatureCheck } from './signature.ts';
+import { checkSignedParts, signCanonical, signedDocumentSchema, type SignatureCheck } from './signature.ts';
 
-export const CHECK_STATEMENT_FORMAT = 'kvarbook-check-statement/1';
-export const CHECK_RECORD_FORMAT = 'kvarbook-check-record/1';
+const CHECK_STATEMENT_FORMAT = 'kvarbook-check-statement/1';
+const CHECK_RECORD_FORMAT = 'kvarbook-check-record/1';
 
 const checkStepSchema = z.strictObject({
   name: z.string().min(1, 'must not be empty'),
@@ -44,12 +44,7 @@ const checkStatementSchema = z
   .strictObject({ format: z.literal(CHECK_STATEMENT_FORMAT), ...checkContentFields, checker: publicIdentitySchema })
   .superRefine(verdictMatchesSteps);
 
-export const checkRecordSchema = z.strictObject({
-  format: z.literal(CHECK_RECORD_FORMAT),
-  statement: checkStatementSchema,
-  checker: publicIdentitySchema,
-  signatureBase64: signatureBase64Schema,
-});
+export const checkRecordSchema = signedDocumentSchema(CHECK_RECORD_FORMAT, 'statement', checkStatementSchema, 'checker');
 
 export type CheckContent = z.infer<typeof checkContentSchema>;
 export type CheckStep = z.infer<typeof checkStepSchema>;

@@ -50,7 +50,7 @@ export interface ResultComparison {
 }
 
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-9;
-export const DEFAULT_ABSOLUTE_TOLERANCE_NEAR_ZERO = 1e-12;
+const DEFAULT_ABSOLUTE_TOLERANCE_NEAR_ZERO = 1e-12;
 
 export function compareResults(sealed: readonly SealedResult[], rerun: readonly RerunResult[], options: CompareOptions = {}): ResultComparison {
   const defaultTolerance = checkedTolerance(options.defaultRelativeTolerance ?? DEFAULT_RELATIVE_TOLERANCE, 'defaultRelativeTolerance');

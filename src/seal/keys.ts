@@ -6,7 +6,7 @@ import { sha256Hex } from './digest.ts';
 import { describeIssues } from './shapes.ts';
 import { KeyFileCostRefused, KeyFileDecryptFailed, decryptScryptKeyFile, encryptPrivateKey, type ScryptCost } from './keyFile.ts';
 
-export const IDENTITY_FORMAT = 'kvarbook-identity/1';
+const IDENTITY_FORMAT = 'kvarbook-identity/1';
 
 /**
  * Twelve characters: NIST SP 800-63B §5.1.1.2 asks at least 8 for a memorised secret; a key that

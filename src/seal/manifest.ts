@@ -6,10 +6,10 @@ import { canonicalSha256, SHA256_HEX_PATTERN } from './digest.ts';
 import { SealError } from './errors.ts';
 import { publicIdentitySchema, type PublicIdentity } from './keys.ts';
 import { describeIssues, formatPath } from './shapes.ts';
-import { checkSignedParts, signatureBase64Schema, signCanonical, type SignatureCheck } from './signature.ts';
+import { checkSignedParts, signCanonical, signedDocumentSchema, type SignatureCheck } from './signature.ts';
 
-export const MANIFEST_FORMAT = 'kvarbook-seal-manifest/2';
-export const ENVELOPE_FORMAT = 'kvarbook-seal/1';
+const MANIFEST_FORMAT = 'kvarbook-seal-manifest/2';
+const ENVELOPE_FORMAT = 'kvarbook-seal/1';
 
 const sha256Hex = z.string().regex(SHA256_HEX_PATTERN, 'must be a SHA-256 digest in 64 lowercase hex digits');
 // z.number() already refuses NaN and ±Infinity.
@@ -22,7 +22,7 @@ const effectiveInputSchema = z.strictObject({
   source: z.enum(['given', 'overridden', 'default']),
 });
 
-export const sealedResultSchema = z.strictObject({
+const sealedResultSchema = z.strictObject({
   name: label,
   value: z.union([finiteNumber, z.string(), z.boolean()]),
   unit: z.string().optional(),
@@ -62,19 +62,14 @@ const subjectFields = {
   reportBodySha256: sha256Hex,
 };
 
-export const sealSubjectSchema = z.strictObject(subjectFields);
+const sealSubjectSchema = z.strictObject(subjectFields);
 const unsignedManifestSchema = z.strictObject({ format: z.literal(MANIFEST_FORMAT), ...subjectFields });
-export const sealManifestSchema = z.strictObject({
+const sealManifestSchema = z.strictObject({
   format: z.literal(MANIFEST_FORMAT),
   ...subjectFields,
   signer: publicIdentitySchema,
 });
-export const sealEnvelopeSchema = z.strictObject({
-  format: z.literal(ENVELOPE_FORMAT),
-  manifest: sealManifestSchema,
-  signer: publicIdentitySchema,
-  signatureBase64: signatureBase64Schema,
-});
+const sealEnvelopeSchema = signedDocumentSchema(ENVELOPE_FORMAT, 'manifest', sealManifestSchema, 'signer');
 
 export type SealSubject = z.infer<typeof sealSubjectSchema>;
 export type SealedResult = z.infer<typeof sealedResultSchema>;

@@ -1,11 +1,12 @@
 // A sealed HTML report: the seal and check records in the seal slot, and reading them back byte for byte.
-import { createHash } from 'node:crypto';
 import { SEAL_SLOT_END, SEAL_SLOT_START, assembleReport, type ReportParts } from '../report/html.ts';
 import type { ResultsDocument } from '../report/studyRun.ts';
-import { formatQuantity } from '../report/format.ts';
+import { formatLimits } from '../blocks/format.ts';
 import { jsonScript, jsonScriptTexts } from '../report/embed.ts';
+import { escapeHtml } from '../report/escape.ts';
 import { serializeCheckRecord, type CheckRecord } from './checkRecord.ts';
 import { serializeEnvelope, type SealEnvelope, type SealSubject } from './manifest.ts';
+import { sha256Hex } from './digest.ts';
 
 const SEAL_SCRIPT_OPEN = '<script type="application/json" id="kvarbook-seal">';
 const CHECK_SCRIPT_OPEN = '<script type="application/json" class="kvarbook-check">';
@@ -16,7 +17,7 @@ export function reportBody(parts: ReportParts): string {
 }
 
 export function reportBodySha256(parts: ReportParts): string {
-  return createHash('sha256').update(reportBody(parts), 'utf8').digest('hex');
+  return sha256Hex(reportBody(parts));
 }
 
 /** What the engineer signs, gathered from the run's results document. */
@@ -42,7 +43,7 @@ export function sealSubject(results: ResultsDocument, bodySha256: string): SealS
       value: criterion.value,
       ...(criterion.unit ? { unit: criterion.unit } : {}),
       passed: criterion.passed,
-      limits: limitsInWords(criterion.min, criterion.max, criterion.unit),
+      limits: formatLimits(criterion),
     })),
     cautions: results.cautions.map((caution) => caution.text),
     kvarbookVersion: results.provenance.kvarbookVersion,
@@ -52,33 +53,23 @@ export function sealSubject(results: ResultsDocument, bodySha256: string): SealS
   };
 }
 
-function limitsInWords(min: number | undefined, max: number | undefined, unit: string): string {
-  const show = (value: number) => formatQuantity(String(value), unit);
-  if (min !== undefined && max !== undefined) return `${show(min)} to ${show(max)}`;
-  return min !== undefined ? `at least ${show(min)}` : `at most ${show(max as number)}`;
-}
-
-function escapeText(text: string): string {
-  return text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
-}
-
 function sealSection(envelope: SealEnvelope, checks: readonly CheckRecord[]): string {
   const signer = envelope.manifest.signer;
   const checkLines = checks
     .map((check) => {
       const who = check.statement.checker;
-      return `<p class="countersign"><strong>Checked</strong> by ${escapeText(who.name)}, licence ${escapeText(who.licence)} (${escapeText(who.jurisdiction)}), on ${escapeText(check.statement.checkedOn)}: <strong>${check.statement.verdict === 'verified' ? 'every figure re-computed and verified' : 'check FAILED'}</strong>. Key <span class="fingerprint">${escapeText(who.fingerprint)}</span>.</p>`;
+      return `<p class="countersign"><strong>Checked</strong> by ${escapeHtml(who.name)}, licence ${escapeHtml(who.licence)} (${escapeHtml(who.jurisdiction)}), on ${escapeHtml(check.statement.checkedOn)}: <strong>${check.statement.verdict === 'verified' ? 'every figure re-computed and verified' : 'check FAILED'}</strong>. Key <span class="fingerprint">${escapeHtml(who.fingerprint)}</span>.</p>`;
     })
     .join('\n');
   return `<section class="seal sealed" id="seal">
-<p><strong>Sealed</strong> by ${escapeText(signer.name)}, licence ${escapeText(signer.licence)} (${escapeText(signer.jurisdiction)}), for the study dated ${escapeText(envelope.manifest.studyDate)}.</p>
-<p>Signing key <span class="fingerprint">${escapeText(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
+<p><strong>Sealed</strong> by ${escapeHtml(signer.name)}, licence ${escapeHtml(signer.licence)} (${escapeHtml(signer.jurisdiction)}), for the study dated ${escapeHtml(envelope.manifest.studyDate)}.</p>
+<p>Signing key <span class="fingerprint">${escapeHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
 ${checkLines}
 </section>`;
 }
 
 /** The seal slot's whole content: what readers see and the signed data a checker reads back. */
-export function sealSlot(envelope: SealEnvelope, checks: readonly CheckRecord[] = []): string {
+function sealSlot(envelope: SealEnvelope, checks: readonly CheckRecord[] = []): string {
   const scripts = [
     jsonScript(SEAL_SCRIPT_OPEN, serializeEnvelope(envelope)),
     ...checks.map((check) => jsonScript(CHECK_SCRIPT_OPEN, serializeCheckRecord(check))),

@@ -3,7 +3,7 @@ import { sign, verify, type KeyObject } from 'node:crypto';
 import { z } from 'zod';
 import { canonicalBytes, canonicalJson } from './canonical.ts';
 import { SealError } from './errors.ts';
-import { checkIdentity, keyBelongsTo, type PublicIdentity } from './keys.ts';
+import { checkIdentity, keyBelongsTo, publicIdentitySchema, type PublicIdentity } from './keys.ts';
 import { describeSigner, findTrusted, sameDetails } from './trust.ts';
 
 const ED25519_SIGNATURE_BYTES = 64;
@@ -12,10 +12,28 @@ const ED25519_SIGNATURE_BYTES = 64;
  * Only the one base64 spelling of 64 bytes is accepted: a decoder ignores the unused low bits of
  * the last character, so without this a changed character could leave the signature "valid".
  */
-export const signatureBase64Schema = z.string().refine((text) => {
+const signatureBase64Schema = z.string().refine((text) => {
   const bytes = Buffer.from(text, 'base64');
   return bytes.length === ED25519_SIGNATURE_BYTES && bytes.toString('base64') === text;
 }, `must be the standard base64 spelling of a ${ED25519_SIGNATURE_BYTES}-byte Ed25519 signature`);
+
+/**
+ * The one shape of a signed kvarbook document (a seal envelope, a check record): its format, the signed part, the signer's
+ * identity once more outside the signed part, and the signature over the signed part's canonical JSON.
+ */
+export function signedDocumentSchema<Format extends string, PartName extends string, Part extends z.ZodType, SignerName extends string>(
+  format: Format,
+  partName: PartName,
+  part: Part,
+  signerName: SignerName,
+) {
+  return z.strictObject({
+    format: z.literal(format),
+    ...({ [partName]: part } as { [name in PartName]: Part }),
+    ...({ [signerName]: publicIdentitySchema } as { [name in SignerName]: typeof publicIdentitySchema }),
+    signatureBase64: signatureBase64Schema,
+  });
+}
 
 /** Signs the canonical JSON of `payload`, after making sure the key really is the identity's. */
 export function signCanonical(payload: unknown, privateKey: KeyObject, identity: PublicIdentity): string {

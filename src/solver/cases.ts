@@ -26,7 +26,7 @@ import { VOLTAGE_RANGE_KV, lineModel } from './lineModels.ts';
 import { voltageProfile } from './profile.ts';
 import { noseLoadMultiple, readLoad, type LoadInput } from './solutions.ts';
 import { IDENTITY_ABCD, cascade, multiplyAbcd, seriesImpedanceAbcd, shuntAdmittanceAbcd, type TwoPort } from './twoPort.ts';
-import { SQRT3, kvToV, lineKvFromPhaseVolts } from './units.ts';
+import { kvToV, lineKvFromPhaseVolts, SQRT3, varToMvar, wToMw } from './units.ts';
 
 /** Per-unit power base of the Newton iteration (results are in MW, Mvar, kV, A). */
 export const BASE_MVA = 100;
@@ -564,8 +564,8 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
   }
   if (state.receivingLoad) {
     const spec = specs[endBusIndex(corridor, 'receiving')] as NodeSpec;
-    spec.pPu -= state.receivingLoad.re / 1e6 / BASE_MVA;
-    spec.qPu -= state.receivingLoad.im / 1e6 / BASE_MVA;
+    spec.pPu -= wToMw(state.receivingLoad.re) / BASE_MVA;
+    spec.qPu -= varToMvar(state.receivingLoad.im) / BASE_MVA;
   }
   state.voltageControl.forEach((control, index) => {
     const spec = specs[control.busIndex] as NodeSpec;
@@ -650,7 +650,7 @@ function chainNoseNote(corridor: Corridor, state: CaseState, built: BuiltCase): 
   const slack = built.specs[built.systemNodes.sending!]!;
   const multiple = noseLoadMultiple(chain, slack.voltagePu * kvToV(corridor.nominalVoltageKv), load);
   if (!Number.isFinite(multiple)) return '';
-  return `; the largest load at this power factor is P = ${formatMvar((multiple * load.re) / 1e6)} MW, Q = ${formatMvar((multiple * load.im) / 1e6)} Mvar (nose of the chain's P-V curve)`;
+  return `; the largest load at this power factor is P = ${formatMvar(wToMw(multiple * load.re))} MW, Q = ${formatMvar(varToMvar(multiple * load.im))} Mvar (nose of the chain's P-V curve)`;
 }
 
 /** Solves one resolved case: Newton-Raphson, then SVCs past a limit become fixed susceptances and the case is solved again. */
@@ -839,7 +839,7 @@ function assembleSolution(
         kind: unit.kind,
         inService,
         ratingMvar: unit.qMvar,
-        outputMvar: inService ? (3 * unit.susceptanceS * voltage * voltage) / 1e6 : 0,
+        outputMvar: inService ? varToMvar(3 * unit.susceptanceS * voltage * voltage) : 0,
         currentA: inService ? Math.abs(unit.susceptanceS) * voltage : 0,
       };
     }),

@@ -26,7 +26,7 @@ export function angleDegOf(value: Complex | ComplexValue): number {
   return (Math.atan2(value.im, value.re) * 180) / Math.PI;
 }
 
-export function magnitudeOf(value: Complex | ComplexValue): number {
+function magnitudeOf(value: Complex | ComplexValue): number {
   return Math.hypot(value.re, value.im);
 }
 

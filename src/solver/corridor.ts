@@ -1,7 +1,7 @@
 // The corridor as validated data: end systems, ordered buses, line sections with their circuits and series segments, compensation at buses.
 import { fromPlain, type Complex } from './complex.ts';
 import { SolverDomainError, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
-import { sourceEquivalent } from './elements.ts';
+import { MVAR_RANGE, sourceEquivalent } from './elements.ts';
 import { FREQUENCY_RANGE_HZ, LENGTH_RANGE_KM, VOLTAGE_RANGE_KV, resolveLineConstants, type LinePerKmInput } from './lineModels.ts';
 import type { PerKmConstants } from './twoPort.ts';
 import { kvToV } from './units.ts';
@@ -179,7 +179,6 @@ export interface Corridor {
 
 const CORRIDOR_HINT =
   'A corridor is { frequencyHz, nominalVoltageKv, sendingSystem, receivingSystem, buses: [{ name, reactors?, capacitors?, svc?, loads? }], sections: [{ from, to, lengthKm, per-km constants, circuits?, seriesCapacitors? }] }.';
-const MVAR_RANGE = { min: 0, max: 1e5, minInclusive: false, unit: 'Mvar' } as const;
 
 /** Runs a reader whose errors name bare fields (e.g. resolveLineConstants) and puts the field's path in front of the quantity. */
 function atPath<T>(path: string, read: () => T): T {

@@ -2,6 +2,7 @@
 import { Complex } from './complex.ts';
 import { lineAbcd, perKmToSi } from './lineModels.ts';
 import type { Corridor, CorridorSection, SeriesSegment } from './corridor.ts';
+import { kmToM } from './units.ts';
 
 /** A pi branch between two nodes; admittances in siemens, already multiplied by the circuits in service. */
 export interface NetworkBranch {
@@ -38,7 +39,7 @@ export function sectionPieces(section: CorridorSection, bypassed: (segment: Seri
 /** Exact pi equivalent of a length of distributed line: series 1/B, each shunt (A - 1)/B (A = D for a uniform line). */
 export function linePiS(section: CorridorSection, lengthKm: number): { seriesS: Complex; shuntS: Complex } {
   const { z, y } = perKmToSi(section.perKm);
-  const abcd = lineAbcd('distributed', z, y, lengthKm * 1e3);
+  const abcd = lineAbcd('distributed', z, y, kmToM(lengthKm));
   return { seriesS: new Complex(1, 0).div(abcd.B), shuntS: abcd.A.sub(1).div(abcd.B) };
 }
 

@@ -1,5 +1,6 @@
 // Losses and capitalised cost of compensation options: annual loss energy, present value over the life, and a ranked comparison.
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireNumber, requireObject } from './errors.ts';
+import { wToMw } from './units.ts';
 
 const HOURS_PER_YEAR = 8760;
 
@@ -92,7 +93,7 @@ function readLineLosses(where: string, value: unknown): { energyMwh: number; pea
         hint: 'The load-duration blocks of one year add up to at most 8760 h.',
       });
     }
-    const lossMw = (currentA: number) => (3 * currentA ** 2 * resistanceOhm) / 1e6;
+    const lossMw = (currentA: number) => wToMw(3 * currentA ** 2 * resistanceOhm);
     const energyMwh = blocks.reduce((sum, block) => sum + block.hours * lossMw(block.currentA), 0);
     const peakMw = Math.max(...blocks.map((block) => lossMw(block.currentA)));
     return { energyMwh, peakMw, lossFactor: peakMw > 0 ? energyMwh / (peakMw * HOURS_PER_YEAR) : 0 };

@@ -1,4 +1,4 @@
-// Transfer curves of a two-port: P-V and Q-V curves, P-delta curve, power circles, steady-state limit and the angle for a given transfer.
+// Transfer curves of a two-port: P-V and Q-V curves, P-delta curve, power circles, steady-state limit and margin, and the angle for a given transfer.
 import { Complex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
@@ -15,7 +15,7 @@ import {
   type LoadInput,
 } from './solutions.ts';
 import { labelOf, type AbcdMatrix, type TwoPort } from './twoPort.ts';
-import { degToRad, kvToV, radToDeg } from './units.ts';
+import { degToRad, kvToV, mwToW, radToDeg, varToMvar, vaToMva, vToKv, wToMw } from './units.ts';
 
 const POINT_COUNT_RANGE = { min: 2, max: 100_000 } as const;
 
@@ -87,12 +87,12 @@ export function pvCurve(options: {
     // The last sample stays a hair below the nose, where the two branches meet.
     const pMw = ((noseMultiple * index) / (pointCount - 1)) * (index === pointCount - 1 ? 1 - 1e-12 : 1);
     const roots = voltagesAt(pMw);
-    upperBranch.push({ pMw, qMvar: pMw * tangent, receivingVoltageKv: roots.upper / 1e3 });
-    lowerBranch.unshift({ pMw, qMvar: pMw * tangent, receivingVoltageKv: roots.lower / 1e3 });
+    upperBranch.push({ pMw, qMvar: pMw * tangent, receivingVoltageKv: vToKv(roots.upper) });
+    lowerBranch.unshift({ pMw, qMvar: pMw * tangent, receivingVoltageKv: vToKv(roots.lower) });
   }
   // At the nose the quadratic's two roots coincide: u = -b / (2 |A|^2).
   const noseB = 2 * noseMultiple * abcd.A.mul(abcd.B.conjugate()).mul(unitLoad).re - sendingLineV * sendingLineV;
-  const noseVoltageKv = Math.sqrt(-noseB / (2 * abcd.A.abs() ** 2)) / 1e3;
+  const noseVoltageKv = vToKv(Math.sqrt(-noseB / (2 * abcd.A.abs() ** 2)));
   const nose = { pMw: noseMultiple, qMvar: noseMultiple * tangent, receivingVoltageKv: noseVoltageKv };
   return assertFiniteResult('pvCurve', {
     networkLabel: labelOf(network),
@@ -110,7 +110,12 @@ function receivingPowerMw(abcd: AbcdMatrix, sendingVoltageKv: number, receivingV
   const phasors = twoEndPhasors(abcd, sendingVoltageKv, receivingVoltageKv, angleRad);
   const receiving = phasors.receivingVoltage.mul(phasors.receivingCurrent.conjugate()).mul(3);
   const sending = phasors.sendingVoltage.mul(phasors.sendingCurrent.conjugate()).mul(3);
-  return { receivingPMw: receiving.re / 1e6, receivingQMvar: receiving.im / 1e6, sendingPMw: sending.re / 1e6, sendingQMvar: sending.im / 1e6 };
+  return {
+    receivingPMw: wToMw(receiving.re),
+    receivingQMvar: varToMvar(receiving.im),
+    sendingPMw: wToMw(sending.re),
+    sendingQMvar: varToMvar(sending.im),
+  };
 }
 
 /** Angle (rad) of maximum receiving-end power: P_r = Vs Vr/|B| cos(beta - delta) - |A| Vr^2/|B| cos(beta - alpha) peaks at delta = beta = arg B. */
@@ -167,6 +172,24 @@ export function powerAngleCurve(options: {
   });
 }
 
+/** Steady-state stability margin in % of the transfer limit: (Pmax − P0) / Pmax × 100. */
+export function stabilityMarginPercent(maxPowerMw: number, operatingPowerMw: number): number {
+  requireNumber(
+    'operatingPowerMw',
+    operatingPowerMw,
+    { unit: 'MW' },
+    'NaN or Infinity usually means a division by zero upstream in the calculation.',
+  );
+  requireNumber('maxPowerMw', maxPowerMw, { min: 0, minInclusive: false, unit: 'MW' }, 'Pass the peak of the P-δ curve, e.g. V_S·V_R/X in MW.');
+  requireNumber(
+    'operatingPowerMw',
+    operatingPowerMw,
+    { max: maxPowerMw, unit: 'MW' },
+    'An operating point above Pmax has no steady state; check the curve or the operating point.',
+  );
+  return ((maxPowerMw - operatingPowerMw) / maxPowerMw) * 100;
+}
+
 /** Receiving-end power (MW) at a given angle; exported for the sizing and loadability modules. */
 export function receivingPowerAtAngleMw(abcd: AbcdMatrix, sendingVoltageKv: number, receivingVoltageKv: number, angleRad: number): number {
   return receivingPowerMw(abcd, sendingVoltageKv, receivingVoltageKv, angleRad).receivingPMw;
@@ -180,8 +203,8 @@ export function stableAngleForPowerRad(abcd: AbcdMatrix, sendingVoltageKv: numbe
   const limitAngle = steadyStateLimitAngleRad(abcd);
   const limitMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle);
   const voltageProduct = kvToV(sendingVoltageKv) * kvToV(receivingVoltageKv);
-  const offsetMw = limitMw - voltageProduct / abcd.B.abs() / 1e6;
-  const cosine = ((pMw - offsetMw) * 1e6 * abcd.B.abs()) / voltageProduct;
+  const offsetMw = limitMw - wToMw(voltageProduct / abcd.B.abs());
+  const cosine = (mwToW(pMw - offsetMw) * abcd.B.abs()) / voltageProduct;
   return limitAngle - Math.acos(Math.max(-1, Math.min(1, cosine)));
 }
 
@@ -259,7 +282,7 @@ export function powerCircles(options: { network: TwoPort; sendingVoltageKv: numb
   const sendingV = kvToV(sendingVoltageKv);
   const receivingV = kvToV(receivingVoltageKv);
   const bConjugate = abcd.B.conjugate();
-  const radiusMva = (sendingV * receivingV) / abcd.B.abs() / 1e6;
+  const radiusMva = vaToMva((sendingV * receivingV) / abcd.B.abs());
   const receivingCentre = abcd.A.conjugate()
     .mul(-receivingV * receivingV)
     .div(bConjugate)
@@ -322,7 +345,7 @@ export function qvCurve(options: {
   const sendingLineV = kvToV(sendingVoltageKv);
   const supportAt = (voltageKv: number): number | null => {
     const delivered = deliveredReactiveVa(abcd, sendingLineV, kvToV(voltageKv), load.re);
-    return delivered === null ? null : (load.im - delivered) / 1e6;
+    return delivered === null ? null : varToMvar(load.im - delivered);
   };
   const voltageKv: number[] = [];
   const supportMvar: number[] = [];
@@ -338,7 +361,7 @@ export function qvCurve(options: {
     throw new SolverDomainError({
       code: 'NO_OPERATING_POINT',
       quantity: 'load.pMw',
-      value: load.re / 1e6,
+      value: wToMw(load.re),
       allowedRange: `active powers the network can carry at some bus voltage in [${minimumVoltageKv}, ${maximumVoltageKv}] kV`,
       hint: 'No bus voltage in the range carries this active power; widen the voltage range or reduce the load.',
     });
@@ -359,8 +382,8 @@ export function qvCurve(options: {
     networkLabel: labelOf(network),
     lineModels: lineModelsOf(network),
     sendingVoltageKv,
-    pMw: load.re / 1e6,
-    qMvar: load.im / 1e6,
+    pMw: wToMw(load.re),
+    qMvar: varToMvar(load.im),
     voltageKv,
     supportMvar,
     minimum,

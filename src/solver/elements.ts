@@ -23,7 +23,7 @@ import {
 import { kvToV } from './units.ts';
 
 const REACTANCE_RANGE_OHM = { min: 0, max: 1e5, minInclusive: false, unit: 'ohm' } as const;
-const MVAR_RANGE = { min: 0, max: 1e5, minInclusive: false, unit: 'Mvar' } as const;
+export const MVAR_RANGE = { min: 0, max: 1e5, minInclusive: false, unit: 'Mvar' } as const;
 
 function labelFrom(record: Record<string, unknown>, fallback: string): string {
   return typeof record.label === 'string' && record.label !== '' ? record.label : fallback;
@@ -44,7 +44,7 @@ export function lineShuntSusceptanceS(network: TwoPort): number {
 }
 
 /** Series capacitors of a network against the inductive reactance of its path (line sections and series reactors). */
-export function seriesPathReactances(network: TwoPort): { inductiveOhm: number; capacitiveOhm: number } {
+function seriesPathReactances(network: TwoPort): { inductiveOhm: number; capacitiveOhm: number } {
   let inductiveOhm = lineSeriesReactanceOhm(network);
   let capacitiveOhm = 0;
   for (const element of elementsOf(network)) {
@@ -75,7 +75,7 @@ export function requireInductiveSeriesPath(network: TwoPort): void {
   }
 }
 
-export const DEGREE_OF_COMPENSATION_RANGE = { min: 0, max: 1, minInclusive: false, maxInclusive: false } as const;
+const DEGREE_OF_COMPENSATION_RANGE = { min: 0, max: 1, minInclusive: false, maxInclusive: false } as const;
 const DEGREE_HINT =
   "A degree of 1 or more would cancel or reverse the line's series reactance (series resonance at power frequency); practical banks are well below 1.";
 

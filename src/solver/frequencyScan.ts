@@ -4,7 +4,7 @@ import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, re
 import { FREQUENCY_RANGE_HZ, LENGTH_RANGE_KM, VOLTAGE_RANGE_KV, lineAbcd, resolveLineConstants } from './lineModels.ts';
 import { ssrScreening, type SsrScreening } from './ssr.ts';
 import { IDENTITY_ABCD, multiplyAbcd, seriesImpedanceAbcd, shuntAdmittanceAbcd, type AbcdMatrix } from './twoPort.ts';
-import { angularFrequency, kvToV } from './units.ts';
+import { angularFrequency, kmToM, kvToV } from './units.ts';
 
 /** One element of the chain, from the generator internal node outwards; all impedances referred to one voltage level, at power frequency. */
 export type ScanElement =
@@ -178,7 +178,7 @@ function readElement(value: unknown, index: number, frequencyHz: number): ScanBr
             'distributed',
             new Complex(resistanceOhmPerM, omega * inductanceHPerM),
             new Complex(conductanceSPerM, omega * capacitanceFPerM),
-            lengthKm * 1e3,
+            kmToM(lengthKm),
           );
         },
         seriesInductiveOhmAtF0: constants.perKm.seriesReactanceOhmPerKm * lengthKm,

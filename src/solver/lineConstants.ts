@@ -1,7 +1,7 @@
 // Per-km line constants from conductor data and tower geometry of a transposed line with regular-polygon bundles.
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireNumber, requireObject } from './errors.ts';
 import { FREQUENCY_RANGE_HZ, VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { VACUUM_PERMITTIVITY_F_PER_M, angularFrequency, kvToV, phaseVoltsFromLineKv } from './units.ts';
+import { angularFrequency, kvToV, phaseVoltsFromLineKv, VACUUM_PERMITTIVITY_F_PER_M, varToMvar } from './units.ts';
 
 export interface ConductorData {
   /** AC resistance of one sub-conductor at operating temperature, from the conductor table. */
@@ -144,6 +144,6 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
     shuntCapacitanceNfPerKm: capacitanceFPerM * 1e12,
     shuntSusceptanceUsPerKm: susceptanceSPerKm * 1e6,
     chargingCurrentAPerKm: voltageKv === null ? null : phaseVoltsFromLineKv(voltageKv) * susceptanceSPerKm,
-    chargingMvarPerKm: voltageKv === null ? null : (kvToV(voltageKv) ** 2 * susceptanceSPerKm) / 1e6,
+    chargingMvarPerKm: voltageKv === null ? null : varToMvar(kvToV(voltageKv) ** 2 * susceptanceSPerKm),
   });
 }

@@ -2,7 +2,7 @@
 import { Complex, toPlain, type ComplexValue } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { abcdToPlain, type AbcdMatrix, type LineModelName, type LineSectionTwoPort, type PerKmConstants } from './twoPort.ts';
-import { SPEED_OF_LIGHT_M_PER_S, angularFrequency, kvToV, phaseVoltsFromLineKv, radToDeg } from './units.ts';
+import { angularFrequency, kmToM, kvToV, phaseVoltsFromLineKv, radToDeg, SPEED_OF_LIGHT_M_PER_S, varToMvar, wToMw } from './units.ts';
 
 /** Per-km line constants as a study gives them; reactance or inductance, susceptance or capacitance. */
 export interface LinePerKmInput {
@@ -190,7 +190,7 @@ export function lineModel(options: LineModelOptions): LineSectionTwoPort {
   const lengthKm = requireNumber('lengthKm', record.lengthKm, LENGTH_RANGE_KM, 'Route length of this section.');
   const model = record.model === undefined ? 'distributed' : requireChoice('model', record.model, MODELS, 'Choose the line model.');
   requirePositiveSusceptance(model, constants.perKm);
-  const matrix = lineAbcd(model, constants.seriesImpedanceOhmPerM, constants.shuntAdmittanceSPerM, lengthKm * 1e3);
+  const matrix = lineAbcd(model, constants.seriesImpedanceOhmPerM, constants.shuntAdmittanceSPerM, kmToM(lengthKm));
   const label = typeof record.label === 'string' && record.label !== '' ? record.label : `line ${lengthKm} km`;
   return assertFiniteResult('lineModel', {
     kind: 'line-section' as const,
@@ -212,7 +212,7 @@ export function resizedSection(section: LineSectionTwoPort, lengthKm: number, la
     ...section,
     label,
     lengthKm,
-    ...abcdToPlain(lineAbcd(section.model, z, y, lengthKm * 1e3)),
+    ...abcdToPlain(lineAbcd(section.model, z, y, kmToM(lengthKm))),
   };
 }
 
@@ -258,7 +258,7 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
   requirePositiveSusceptance('distributed', constants.perKm);
   const z = constants.seriesImpedanceOhmPerM;
   const y = constants.shuntAdmittanceSPerM;
-  const lengthM = lengthKm * 1e3;
+  const lengthM = kmToM(lengthKm);
   const gammaPerM = z.mul(y).sqrt();
   const surgeImpedance = z.div(y).sqrt();
   const gammaLength = gammaPerM.mul(lengthM);
@@ -287,13 +287,13 @@ export function lineCharacteristics(options: LinePerKmInput & { lengthKm: number
     velocityToLightRatio: velocityRatio,
     electricalLengthDeg: radToDeg(gammaLength.im),
     nominalVoltageKv,
-    surgeImpedanceLoadingMw: (voltageV * voltageV) / losslessSurgeImpedanceOhm / 1e6,
-    surgeImpedanceLoadingLossyMw: (voltageV * voltageV) / surgeImpedance.abs() / 1e6,
+    surgeImpedanceLoadingMw: wToMw((voltageV * voltageV) / losslessSurgeImpedanceOhm),
+    surgeImpedanceLoadingLossyMw: wToMw((voltageV * voltageV) / surgeImpedance.abs()),
     seriesInductanceMhPerKm: (constants.perKm.seriesReactanceOhmPerKm / angularFrequency(constants.frequencyHz)) * 1e3,
     shuntCapacitanceNfPerKm: (constants.perKm.shuntSusceptanceUsPerKm / angularFrequency(constants.frequencyHz)) * 1e3,
     distributedShuntCompensationDegree: constants.distributedShuntCompensationDegree,
     chargingCurrentA: phaseVoltsFromLineKv(nominalVoltageKv) * susceptanceTotalS,
-    chargingMvar: (voltageV * voltageV * susceptanceTotalS) / 1e6,
+    chargingMvar: varToMvar(voltageV * voltageV * susceptanceTotalS),
     equivalentPi: { seriesImpedanceOhm: toPlain(equivalentSeries), shuntAdmittanceEachEndS: toPlain(equivalentShuntHalf) },
     nominalPi: { seriesImpedanceOhm: toPlain(seriesTotal), shuntAdmittanceEachEndS: toPlain(shuntTotal.div(2)) },
     warnings: lineDataWarnings(velocityRatio),
@@ -352,12 +352,12 @@ export function compensatedLineCharacteristics(
     seriesCompensationDegree,
     shuntCompensationDegree,
     surgeImpedanceOhm: zc * impedanceFactor,
-    surgeImpedanceLoadingMw: (voltageV * voltageV) / (zc * impedanceFactor) / 1e6,
+    surgeImpedanceLoadingMw: wToMw((voltageV * voltageV) / (zc * impedanceFactor)),
     electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm * lengthFactor),
     phaseConstantDegPerKm: radToDeg(betaRadPerKm * lengthFactor),
     uncompensated: {
       surgeImpedanceOhm: zc,
-      surgeImpedanceLoadingMw: (voltageV * voltageV) / zc / 1e6,
+      surgeImpedanceLoadingMw: wToMw((voltageV * voltageV) / zc),
       electricalLengthDeg: radToDeg(betaRadPerKm * lengthKm),
     },
   });

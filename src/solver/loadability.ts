@@ -4,7 +4,7 @@ import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, re
 import { receivingPowerAtAngleMw, stableAngleForPowerRad, steadyStateLimitAngleRad } from './curves.ts';
 import { LENGTH_RANGE_KM, VOLTAGE_RANGE_KV, lineAbcd, lineCharacteristics, resolveLineConstants, type LinePerKmInput } from './lineModels.ts';
 import { multiplyAbcd, seriesImpedanceAbcd, type AbcdMatrix } from './twoPort.ts';
-import { SQRT3, kvToV, radToDeg } from './units.ts';
+import { kmToM, kvToV, radToDeg, SQRT3, varToMvar, wToMw } from './units.ts';
 
 export type LoadabilityLimit = 'thermal' | 'voltage-drop' | 'voltage-rise' | 'stability';
 
@@ -99,8 +99,9 @@ export function lineLoadability(
   if (record.thermalLimitMw !== undefined) {
     thermalLimitMw = requireNumber('thermalLimitMw', record.thermalLimitMw, { min: 0, max: 1e5, minInclusive: false, unit: 'MW' }, HINT);
   } else if (record.thermalLimitA !== undefined) {
-    thermalLimitMw =
-      (SQRT3 * nominalV * requireNumber('thermalLimitA', record.thermalLimitA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, HINT)) / 1e6;
+    thermalLimitMw = wToMw(
+      SQRT3 * nominalV * requireNumber('thermalLimitA', record.thermalLimitA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, HINT),
+    );
   } else {
     throw new SolverDomainError({
       code: 'MISSING_QUANTITY',
@@ -141,12 +142,12 @@ export function lineLoadability(
   const sendingSystem = seriesImpedanceAbcd(new Complex(0, sendingReactanceOhm));
   const receivingSystem = seriesImpedanceAbcd(new Complex(0, receivingReactanceOhm));
   const losslessSurgeImpedanceOhm = Math.sqrt(constants.perKm.seriesReactanceOhmPerKm / (constants.perKm.shuntSusceptanceUsPerKm * 1e-6));
-  const silMw = (nominalV * nominalV) / losslessSurgeImpedanceOhm / 1e6;
+  const silMw = wToMw((nominalV * nominalV) / losslessSurgeImpedanceOhm);
   const emfKv = systemEmfPu * nominalVoltageKv;
   const lineWarnings = lineCharacteristics({ ...(record as unknown as LinePerKmInput), lengthKm: 1, nominalVoltageKv }).warnings;
 
   const points = lengthsKm.map((lengthKm): LoadabilityPoint => {
-    const lengthM = lengthKm * 1e3;
+    const lengthM = kmToM(lengthKm);
     const line = lineAbcd('distributed', constants.seriesImpedanceOhmPerM, constants.shuntAdmittanceSPerM, lengthM);
     const wholeSystem = multiplyAbcd(multiplyAbcd(sendingSystem, line), receivingSystem);
     const partials = Array.from({ length: PROFILE_INTERVALS + 1 }, (_, index) =>
@@ -250,8 +251,8 @@ function operatingState(
   });
   const delivered = receivingTerminal.mul(receivingCurrent.conjugate());
   return {
-    pMw: delivered.re / 1e6,
-    receivingQMvar: delivered.im / 1e6,
+    pMw: wToMw(delivered.re),
+    receivingQMvar: varToMvar(delivered.im),
     sendingPu: sendingTerminal.abs() / nominalV,
     receivingPu: receivingTerminal.abs() / nominalV,
     lineAngleDeg: radToDeg(sendingTerminal.arg() - receivingTerminal.arg()),

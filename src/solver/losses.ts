@@ -3,7 +3,7 @@ import { assertFiniteResult, requireObject } from './errors.ts';
 import { readOperatingPointEnds, requireSameNetwork } from './profile.ts';
 import { readNetwork, type OperatingPoint } from './solutions.ts';
 import { abcdOf, elementsOf, labelOf, throughTwoPort, type TwoPort } from './twoPort.ts';
-import { lineKvFromPhaseVolts } from './units.ts';
+import { lineKvFromPhaseVolts, varToMvar, wToMw } from './units.ts';
 
 export interface ElementLoss {
   label: string;
@@ -39,8 +39,8 @@ export function elementLosses(options: { network: TwoPort; operatingPoint: Opera
     const loss = {
       label: labelOf(element),
       kind: element.kind,
-      lossesMw: (powerIn.re - powerOut.re) / 1e6,
-      reactiveMvar: (powerIn.im - powerOut.im) / 1e6,
+      lossesMw: wToMw(powerIn.re - powerOut.re),
+      reactiveMvar: varToMvar(powerIn.im - powerOut.im),
       inputVoltageKv: lineKvFromPhaseVolts(voltage.abs()),
       outputVoltageKv: lineKvFromPhaseVolts(outVoltage.abs()),
       inputCurrentA: current.abs(),

@@ -2,7 +2,7 @@
 import { requireComplex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireNumber, requireObject } from './errors.ts';
 import { FREQUENCY_RANGE_HZ, LENGTH_RANGE_KM, VOLTAGE_RANGE_KV } from './lineModels.ts';
-import { angularFrequency, phaseVoltsFromLineKv } from './units.ts';
+import { angularFrequency, phaseVoltsFromLineKv, varToMvar, vToKv } from './units.ts';
 
 export interface NeutralReactorOptions {
   frequencyHz: number;
@@ -101,7 +101,7 @@ function deadTimeCase(phaseVoltageV: number, interphaseS: number, phaseToGroundS
     });
   }
   const recoveryVoltagePu = Math.abs(interphaseS / selfS);
-  return { capacitiveCurrentA, recoveryVoltageKv: (recoveryVoltagePu * phaseVoltageV) / 1e3, recoveryVoltagePu };
+  return { capacitiveCurrentA, recoveryVoltageKv: vToKv(recoveryVoltagePu * phaseVoltageV), recoveryVoltagePu };
 }
 
 /**
@@ -259,12 +259,12 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
     lengthKm,
     positiveSequenceSusceptanceS: b1,
     zeroSequenceSusceptanceS: b0,
-    chargingMvar: (3 * phaseVoltageV ** 2 * b1) / 1e6,
+    chargingMvar: varToMvar(3 * phaseVoltageV ** 2 * b1),
     phaseReactor: {
       reactanceOhmPerPhase: phaseReactanceOhm,
       inductanceHPerPhase: phaseReactanceOhm / omega,
-      qMvarThreePhase: (3 * phaseVoltageV ** 2 * reactor1) / 1e6,
-      perBank: { reactanceOhmPerPhase: phaseReactanceOhm * bankCount, qMvarThreePhase: (3 * phaseVoltageV ** 2 * reactor1) / 1e6 / bankCount },
+      qMvarThreePhase: varToMvar(3 * phaseVoltageV ** 2 * reactor1),
+      perBank: { reactanceOhmPerPhase: phaseReactanceOhm * bankCount, qMvarThreePhase: varToMvar(3 * phaseVoltageV ** 2 * reactor1) / bankCount },
     },
     neutralReactor: {
       reactanceOhm: neutralReactanceOhm,
@@ -272,12 +272,12 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
       ratioToPhaseReactor: neutralReactanceOhm / phaseReactanceOhm,
       perBank: { reactanceOhm: bankNeutralOhm, inductanceH: bankNeutralOhm / omega },
       rating: {
-        arcingVoltageKv: arcingVoltageV / 1e3,
-        openPhaseVoltageKv: openPhaseVoltageV / 1e3,
-        shortTimeVoltageKv: shortTimeVoltageV / 1e3,
+        arcingVoltageKv: vToKv(arcingVoltageV),
+        openPhaseVoltageKv: vToKv(openPhaseVoltageV),
+        shortTimeVoltageKv: vToKv(shortTimeVoltageV),
         shortTimeCurrentAPerBank,
-        shortTimeMvarPerBank: (shortTimeVoltageV * shortTimeCurrentAPerBank) / 1e6,
-        continuousVoltageKv: continuousVoltageV === null ? null : continuousVoltageV / 1e3,
+        shortTimeMvarPerBank: varToMvar(shortTimeVoltageV * shortTimeCurrentAPerBank),
+        continuousVoltageKv: continuousVoltageV === null ? null : vToKv(continuousVoltageV),
         continuousCurrentAPerBank,
       },
     },

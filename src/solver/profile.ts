@@ -4,7 +4,7 @@ import { SolverDomainError, assertFiniteResult, optionalNumber, requireNumber, r
 import { VOLTAGE_RANGE_KV, lineAbcd, perKmToSi } from './lineModels.ts';
 import { lineModelsOf, readNetwork } from './solutions.ts';
 import { abcdOf, elementsOf, labelOf, throughTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
-import { lineKvFromPhaseVolts } from './units.ts';
+import { kmToM, lineKvFromPhaseVolts } from './units.ts';
 
 /**
  * Profile as columns of equal length (one entry per point), which keeps 10,000-point profiles small in the calculation log
@@ -100,7 +100,7 @@ function sampleSection(section: LineSectionTwoPort, distancesKm: number[], volta
   }
   const { z, y } = perKmToSi(section.perKm);
   for (const distanceKm of distancesKm) {
-    const at = throughTwoPort(lineAbcd(section.model, z, y, distanceKm * 1e3), voltage, current);
+    const at = throughTwoPort(lineAbcd(section.model, z, y, kmToM(distanceKm)), voltage, current);
     emit(distanceKm, at.voltage.re, at.voltage.im, at.current.re, at.current.im);
   }
 }
@@ -200,7 +200,7 @@ export function voltageProfile(options: {
     if (element.kind === 'line-section') {
       sampleSection(element, interiorPositions(offsetKm, element.lengthKm, stepKm), voltage, current, emit);
       const { z, y } = perKmToSi(element.perKm);
-      ({ voltage, current } = throughTwoPort(lineAbcd(element.model, z, y, element.lengthKm * 1e3), voltage, current));
+      ({ voltage, current } = throughTwoPort(lineAbcd(element.model, z, y, kmToM(element.lengthKm)), voltage, current));
       emit(element.lengthKm, voltage.re, voltage.im, current.re, current.im);
       offsetKm += element.lengthKm;
     } else {

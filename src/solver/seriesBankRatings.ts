@@ -1,6 +1,7 @@
 // Series capacitor segment ratings from a case table: continuous and emergency current, capacitor voltage and Mvar, overload duties and protective level.
 import type { CorridorCaseTable, SegmentResult } from './cases.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireNumber, requireObject } from './errors.ts';
+import { kvToV, varToMvar, vToKv } from './units.ts';
 
 export interface OverloadDuty {
   label: string;
@@ -160,11 +161,11 @@ export function seriesBankRatings(options: {
   }
   const emergency = highest(true);
   // The reactance is the segment's per-phase power-frequency reactance: its voltage over its current in any solved case.
-  const reactanceOhm = (normal.segment.voltageKv * 1e3) / normal.segment.currentA;
+  const reactanceOhm = kvToV(normal.segment.voltageKv) / normal.segment.currentA;
   const forContinuousA = normal.segment.currentA * (1 + designMarginPercent / 100);
   const forEmergencyA = emergency ? emergency.segment.currentA / heldTo.currentPu : 0;
   const ratedCurrentArms = Math.ceil(Math.max(forContinuousA, forEmergencyA) / ratingStepA) * ratingStepA;
-  const ratedVoltageKvRms = (ratedCurrentArms * reactanceOhm) / 1e3;
+  const ratedVoltageKvRms = vToKv(ratedCurrentArms * reactanceOhm);
   return assertFiniteResult('seriesBankRatings', {
     segment: String(segmentName),
     reactanceOhm,
@@ -174,7 +175,7 @@ export function seriesBankRatings(options: {
     governedBy: forEmergencyA > forContinuousA ? 'emergency' : 'continuous',
     ratedCurrentArms,
     ratedVoltageKvRms,
-    ratedMvar: (3 * ratedCurrentArms ** 2 * reactanceOhm) / 1e6,
+    ratedMvar: varToMvar(3 * ratedCurrentArms ** 2 * reactanceOhm),
     protectiveLevelPu,
     protectiveLevelKvPeak: protectiveLevelPu * Math.SQRT2 * ratedVoltageKvRms,
     overloadDuties: duties.map((duty) => ({ ...duty, currentArms: duty.currentPu * ratedCurrentArms })),

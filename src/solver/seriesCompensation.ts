@@ -15,7 +15,7 @@ import { VOLTAGE_RANGE_KV, resizedSection } from './lineModels.ts';
 import { angleForTransfer, goldenSectionMinimum, receivingPowerAtAngleMw, steadyStateLimitAngleRad } from './curves.ts';
 import { solveTwoEndVoltages } from './solutions.ts';
 import { abcdOf, cascade, readTwoPort, throughTwoPort, type CascadeTwoPort, type LineSectionTwoPort, type TwoPort } from './twoPort.ts';
-import { degToRad, lineKvFromPhaseVolts } from './units.ts';
+import { degToRad, lineKvFromPhaseVolts, varToMvar } from './units.ts';
 
 export type CapacitorLocation = 'mid-line' | 'sending-end' | 'receiving-end';
 
@@ -316,7 +316,7 @@ export function seriesCompensationDesign(options: {
     transferAtAngleLimitMw: degree > 0 ? transferWith(degree) : uncompensatedMw,
     uncompensatedTransferAtAngleLimitMw: uncompensatedMw,
     angleLimitDeg,
-    threePhaseMvarAtRatedCurrent: (3 * ratedCurrentA * ratedCurrentA * reactanceOhm) / 1e6,
+    threePhaseMvarAtRatedCurrent: varToMvar(3 * ratedCurrentA * ratedCurrentA * reactanceOhm),
     capacitorVoltageAtRatedCurrentKv: ratedCapacitorKv,
     capacitorVoltageAtEmergencyCurrentKv: emergencyCapacitorKv,
     protectiveLevelPeakKv,

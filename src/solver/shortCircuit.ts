@@ -5,7 +5,7 @@ import { BASE_MVA, buildCase, readCase, type BuiltCase, type CaseState, type Cor
 import { admittanceMatrix, linePiS, solveLinear } from './corridorNetwork.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireNumber, requireObject } from './errors.ts';
 import { goldsworthyEquivalent } from './varistorEnergy.ts';
-import { kvToV, phaseVoltsFromLineKv } from './units.ts';
+import { SQRT3, kvToV, phaseVoltsFromLineKv, vToKv, vaToMva } from './units.ts';
 
 /** The case's network for short-circuit work: a system behind an EMF is grounded through its impedance, a held bus gets it as a shunt. */
 interface PassiveNetwork {
@@ -201,7 +201,7 @@ export function corridorFault(options: {
         const segment = (branch.tag as { segment: { name: string; reactanceOhm: number; sectionIndex: number } }).segment;
         const levelKv = levels.get(segment.name);
         if (levelKv === undefined) continue;
-        const protectiveCurrentA = (levelKv * 1e3) / (Math.SQRT2 * segment.reactanceOhm);
+        const protectiveCurrentA = kvToV(levelKv) / (Math.SQRT2 * segment.reactanceOhm);
         const computed = settled.currents.get(segment.name)! / protectiveCurrentA;
         const previous = ratios.get(segment.name) ?? computed;
         const ratio = iterations === 0 ? computed : 0.5 * previous + 0.5 * computed;
@@ -233,7 +233,7 @@ export function corridorFault(options: {
     voltageFactor,
     faultCurrentKa: settled.faultCurrentA / 1e3,
     linearFaultCurrentKa: linear.faultCurrentA / 1e3,
-    shortCircuitMva: (Math.sqrt(3) * corridor.nominalVoltageKv * settled.faultCurrentA) / 1e3,
+    shortCircuitMva: vaToMva(SQRT3 * kvToV(corridor.nominalVoltageKv) * settled.faultCurrentA),
     segments: segments.map(({ segment, section }): SegmentFaultDuty => {
       const isInserted = inserted.has(segment.name);
       const currentA = isInserted ? settled.currents.get(segment.name)! : 0;
@@ -253,7 +253,7 @@ export function corridorFault(options: {
         varistorConducts: conducts && isInserted,
         equivalentResistanceOhm: resistancePu * segment.reactanceOhm,
         equivalentReactanceOhm: reactancePu * segment.reactanceOhm,
-        capacitorVoltageKvPeak: (Math.SQRT2 * capacitorCurrentA * segment.reactanceOhm) / 1e3,
+        capacitorVoltageKvPeak: vToKv(Math.SQRT2 * capacitorCurrentA * segment.reactanceOhm),
       };
     }),
     iterations,

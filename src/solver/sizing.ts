@@ -1,4 +1,4 @@
-// Shunt compensation sizing: reactors for the no-load voltage, capacitors for a heavy-load voltage, and SVC range over load cases.
+// Shunt compensation sizing: reactors for the no-load voltage, capacitors for a heavy-load voltage, the SVC characteristic and its range over load cases.
 import { Complex } from './complex.ts';
 import {
   SolverDomainError,
@@ -37,7 +37,7 @@ import {
   type SourceEquivalentTwoPort,
   type TwoPort,
 } from './twoPort.ts';
-import { kvToV } from './units.ts';
+import { kvToV, varToMvar, vToKv, wToMw } from './units.ts';
 
 /** Bisection for the root of a function that is positive at `low` and negative at `high`. */
 function bisect(fn: (value: number) => number, low: number, high: number): number {
@@ -124,7 +124,7 @@ export function shuntReactorForNoLoad(options: {
   const reactorCount = placement === 'both-ends' ? 2 : 1;
 
   const reactor = (susceptanceS: number, label: string) =>
-    shuntReactor({ qMvar: (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6, ratedVoltageKv, label });
+    shuntReactor({ qMvar: varToMvar(susceptanceS * ratedVoltageV * ratedVoltageV), ratedVoltageKv, label });
   /** The network from the sending bus on: [sending reactor?, line, receiving reactor?]. */
   const fromBus = (susceptanceS: number): TwoPort[] => {
     const parts: TwoPort[] = [];
@@ -158,7 +158,7 @@ export function shuntReactorForNoLoad(options: {
     }
     susceptanceS = bisect((value) => receivingVoltageKv(value) - targetReceivingVoltageKv, 0, upper);
   }
-  const reactorMvarEach = (susceptanceS * ratedVoltageV * ratedVoltageV) / 1e6;
+  const reactorMvarEach = varToMvar(susceptanceS * ratedVoltageV * ratedVoltageV);
   const downstream = fromBus(susceptanceS);
   const finalReceivingKv = receivingVoltageKv(susceptanceS);
   const sendingBusVoltageKv = finalReceivingKv * aOf(downstream);
@@ -170,7 +170,7 @@ export function shuntReactorForNoLoad(options: {
   const noLoad = solveNoLoad({ network: compensatedNetwork, sendingVoltageKv: sendingSystemEmfKv ?? sendingBusVoltageKv });
   const profile = voltageProfile({ network: compensatedNetwork, operatingPoint: noLoad, pointCount: 401 });
   const degreeOfShuntCompensation = lineSusceptanceS > 0 ? (susceptanceS * (susceptanceS > 0 ? reactorCount : 0)) / lineSusceptanceS : 0;
-  const atBus = (busVoltageKv: number) => (susceptanceS * kvToV(busVoltageKv) ** 2) / 1e6;
+  const atBus = (busVoltageKv: number) => varToMvar(susceptanceS * kvToV(busVoltageKv) ** 2);
   const reactors =
     susceptanceS > 0
       ? [
@@ -201,7 +201,7 @@ export function shuntReactorForNoLoad(options: {
     reactorReactanceEachOhm: susceptanceS > 0 ? 1 / susceptanceS : null,
     reactors,
     degreeOfShuntCompensation,
-    lineChargingMvarAtRatedVoltage: (lineSusceptanceS * ratedVoltageV * ratedVoltageV) / 1e6,
+    lineChargingMvarAtRatedVoltage: varToMvar(lineSusceptanceS * ratedVoltageV * ratedVoltageV),
     noLoadReceivingVoltageWithoutReactorKv: withoutReactorKv,
     receivingVoltageKv: finalReceivingKv,
     sendingSystemEmfKv,
@@ -297,30 +297,30 @@ export function shuntCapacitorForLoadVoltage(options: {
     susceptanceS = upper;
   }
   const ratedV = kvToV(ratedVoltageKv);
-  const capacitorMvar = (susceptanceS * ratedV * ratedV) / 1e6;
+  const capacitorMvar = varToMvar(susceptanceS * ratedV * ratedV);
   const compensatedNetwork =
     susceptanceS > 0
       ? cascade({ elements: [network, shuntCapacitor({ qMvar: capacitorMvar, ratedVoltageKv, label: 'receiving-end shunt capacitor' })] })
       : network;
-  const loadRecord = { pMw: load.re / 1e6, qMvar: load.im / 1e6 };
+  const loadRecord = { pMw: wToMw(load.re), qMvar: varToMvar(load.im) };
   // Without a bank the receiving voltage settles above the target, so the operating point is solved from the sending voltage.
   const operatingPoint =
     susceptanceS > 0
       ? solveReceivingLoad({ network: compensatedNetwork, receivingVoltageKv: targetReceivingVoltageKv, load: loadRecord })
       : solveFixedSendingVoltage({ network, sendingVoltageKv, load: loadRecord });
-  const noseMw = (noseLoadMultiple(withBank(susceptanceS), sendingV, load) * load.re) / 1e6;
-  const noseMarginPercent = ((noseMw - load.re / 1e6) / noseMw) * 100;
+  const noseMw = wToMw(noseLoadMultiple(withBank(susceptanceS), sendingV, load) * load.re);
+  const noseMarginPercent = ((noseMw - wToMw(load.re)) / noseMw) * 100;
   const warnings =
     noseMarginPercent < minimumNoseMarginPercent
       ? [
-          `With the bank in, the load of ${forMessage(load.re / 1e6)} MW is ${noseMarginPercent.toFixed(1)} % below the nose of the P-V curve (${forMessage(noseMw)} MW at this power factor), below the ${minimumNoseMarginPercent} % margin: a small load increase or a loss of voltage support would collapse the bus voltage.`,
+          `With the bank in, the load of ${forMessage(wToMw(load.re))} MW is ${noseMarginPercent.toFixed(1)} % below the nose of the P-V curve (${forMessage(noseMw)} MW at this power factor), below the ${minimumNoseMarginPercent} % margin: a small load increase or a loss of voltage support would collapse the bus voltage.`,
         ]
       : [];
   return assertFiniteResult('shuntCapacitorForLoadVoltage', {
     capacitorNeeded: susceptanceS > 0,
     capacitorMvar,
     capacitorSusceptanceS: susceptanceS,
-    capacitorOutputMvar: (susceptanceS * receivingV * receivingV) / 1e6,
+    capacitorOutputMvar: varToMvar(susceptanceS * receivingV * receivingV),
     receivingVoltageKv: operatingPoint.receivingEnd.voltageKv,
     noseMw,
     noseMarginPercent,
@@ -329,6 +329,74 @@ export function shuntCapacitorForLoadVoltage(options: {
     lineModels: lineModelsOf(network),
     operatingPoint,
     compensatedNetwork,
+  });
+}
+
+export interface SvcCharacteristicOptions {
+  /** Slope of the control range in % on the SVC base (reactance Xs = slope/100 pu). */
+  slopePercent: number;
+  /** Voltage at zero SVC current. */
+  referenceVoltagePu: number;
+  /** Largest capacitive susceptance, on the SVC base. */
+  bMaxCapacitivePu: number;
+  /** Largest inductive susceptance, on the SVC base. */
+  bMaxInductivePu: number;
+}
+
+export interface SvcCharacteristicCorners {
+  /** Where the control slope meets the capacitive limit line I = −B_C·V. */
+  capacitiveCorner: { currentPu: number; voltagePu: number };
+  /** Where the control slope meets the inductive limit line I = B_L·V. */
+  inductiveCorner: { currentPu: number; voltagePu: number };
+}
+
+/**
+ * Corners of the SVC V-I characteristic. Current is positive when inductive (absorbing). The control
+ * range is V = Vref + Xs·I; the limits are the fixed-susceptance lines through the origin.
+ */
+export function svcCharacteristicCorners(options: SvcCharacteristicOptions): SvcCharacteristicCorners {
+  const hint = 'Pass { slopePercent, referenceVoltagePu, bMaxCapacitivePu, bMaxInductivePu }, all on the SVC base.';
+  const record = requireObject('options', options, hint);
+  const slopePercent = requireNumber(
+    'slopePercent',
+    record.slopePercent,
+    { min: 0, max: 100, maxInclusive: false, unit: '%' },
+    'Give the slope in percent on the SVC base, e.g. 3 for 3 % (typically 1 to 10 %, common practice).',
+  );
+  const positivePu = { min: 0, minInclusive: false, unit: 'pu' };
+  const referenceVoltagePu = requireNumber(
+    'referenceVoltagePu',
+    record.referenceVoltagePu,
+    positivePu,
+    'Give the magnitude as a positive number, e.g. 1.0.',
+  );
+  const capacitive = requireNumber(
+    'bMaxCapacitivePu',
+    record.bMaxCapacitivePu,
+    positivePu,
+    'Give the magnitude as a positive number, e.g. 1.0 on the SVC base.',
+  );
+  const inductive = requireNumber(
+    'bMaxInductivePu',
+    record.bMaxInductivePu,
+    positivePu,
+    'Give the magnitude as a positive number, e.g. 0.5 on the SVC base.',
+  );
+  const slopeReactancePu = slopePercent / 100;
+  if (slopeReactancePu * inductive >= 1) {
+    throw new SolverDomainError({
+      code: 'INCONSISTENT_QUANTITIES',
+      quantity: 'slopePercent × bMaxInductivePu / 100',
+      value: slopeReactancePu * inductive,
+      allowedRange: '[0, 1), otherwise the slope never meets the inductive limit',
+      hint: 'Check that slope and susceptances are on the same (SVC) base.',
+    });
+  }
+  const capacitiveVoltage = referenceVoltagePu / (1 + slopeReactancePu * capacitive);
+  const inductiveVoltage = referenceVoltagePu / (1 - slopeReactancePu * inductive);
+  return assertFiniteResult('svcCharacteristicCorners', {
+    capacitiveCorner: { currentPu: -capacitive * capacitiveVoltage, voltagePu: capacitiveVoltage },
+    inductiveCorner: { currentPu: inductive * inductiveVoltage, voltagePu: inductiveVoltage },
   });
 }
 
@@ -421,7 +489,7 @@ export function svcRange(options: {
       throw new SolverDomainError({
         code: 'NO_OPERATING_POINT',
         quantity: `loadCases[${index}] ('${label}')`,
-        value: `P = ${load.re / 1e6} MW, Q = ${load.im / 1e6} Mvar`,
+        value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
         allowedRange: `loads for which some SVC output holds the bus near ${referenceVoltageKv} kV`,
         hint: 'The bus voltage cannot be held on the SVC characteristic for this load with this sending voltage; the load lies beyond the network transfer capability.',
       });
@@ -430,10 +498,10 @@ export function svcRange(options: {
     const mode: SvcCaseResult['mode'] = Math.abs(output) < 1 ? 'floating' : output > 0 ? 'capacitive' : 'inductive';
     return {
       label,
-      pMw: load.re / 1e6,
-      qMvar: load.im / 1e6,
-      busVoltageKv: busV / 1e3,
-      svcOutputMvar: output / 1e6,
+      pMw: wToMw(load.re),
+      qMvar: varToMvar(load.im),
+      busVoltageKv: vToKv(busV),
+      svcOutputMvar: varToMvar(output),
       svcSusceptanceS: susceptance,
       mode,
     };
@@ -447,8 +515,8 @@ export function svcRange(options: {
     cases,
     maxCapacitiveOutputMvar: Math.max(0, ...cases.map((item) => item.svcOutputMvar)),
     maxInductiveOutputMvar: Math.max(0, ...cases.map((item) => -item.svcOutputMvar)),
-    capacitiveRatingMvarAtNominalVoltage: (maxCapacitiveSusceptance * nominalV * nominalV) / 1e6,
-    inductiveRatingMvarAtNominalVoltage: (maxInductiveSusceptance * nominalV * nominalV) / 1e6,
+    capacitiveRatingMvarAtNominalVoltage: varToMvar(maxCapacitiveSusceptance * nominalV * nominalV),
+    inductiveRatingMvarAtNominalVoltage: varToMvar(maxInductiveSusceptance * nominalV * nominalV),
     lineModels: lineModelsOf(network),
   });
 }

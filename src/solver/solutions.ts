@@ -4,7 +4,7 @@ import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requ
 import { requireInductiveSeriesPath } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import { abcdOf, elementsOf, labelOf, readTwoPort, type AbcdMatrix, type TwoPort } from './twoPort.ts';
-import { SQRT3, degToRad, kvToV, lineKvFromPhaseVolts, phaseVoltsFromLineKv } from './units.ts';
+import { degToRad, kvToV, lineKvFromPhaseVolts, mvarToVar, mwToW, phaseVoltsFromLineKv, SQRT3, varToMvar, vaToMva, wToMw } from './units.ts';
 
 /** A receiving-end load: P with Q, or P with a power factor and its sense (lagging = inductive, absorbs vars). */
 export type LoadInput = { pMw: number; qMvar: number } | { pMw: number; powerFactor: number; powerFactorSense: 'lagging' | 'leading' };
@@ -17,12 +17,12 @@ export function readLoad(quantity: string, value: unknown): Complex {
   const pMw = requireNumber(`${quantity}.pMw`, record.pMw, { min: 0, max: 1e5, unit: 'MW' }, LOAD_HINT);
   if (record.qMvar !== undefined) {
     const qMvar = requireNumber(`${quantity}.qMvar`, record.qMvar, { min: -1e5, max: 1e5, unit: 'Mvar' }, LOAD_HINT);
-    return new Complex(pMw * 1e6, qMvar * 1e6);
+    return new Complex(mwToW(pMw), mvarToVar(qMvar));
   }
   const powerFactor = requireNumber(`${quantity}.powerFactor`, record.powerFactor, { min: 0, max: 1, minInclusive: false }, LOAD_HINT);
   const sense = requireChoice(`${quantity}.powerFactorSense`, record.powerFactorSense, ['lagging', 'leading'] as const, LOAD_HINT);
   const qMagnitude = pMw * Math.tan(Math.acos(powerFactor));
-  return new Complex(pMw * 1e6, (sense === 'lagging' ? qMagnitude : -qMagnitude) * 1e6);
+  return new Complex(mwToW(pMw), mvarToVar(sense === 'lagging' ? qMagnitude : -qMagnitude));
 }
 
 export interface EndQuantities {
@@ -57,15 +57,15 @@ export interface OperatingPoint {
   newton: { iterations: number; mismatchMva: number } | null;
 }
 
-export function endQuantities(phaseVoltage: Complex, lineCurrent: Complex): EndQuantities {
+function endQuantities(phaseVoltage: Complex, lineCurrent: Complex): EndQuantities {
   const power = phaseVoltage.mul(lineCurrent.conjugate()).mul(3);
   return {
     voltageKv: lineKvFromPhaseVolts(phaseVoltage.abs()),
     voltageAngleDeg: angleDegOf(phaseVoltage),
     currentA: lineCurrent.abs(),
     currentAngleDeg: lineCurrent.abs() === 0 ? 0 : angleDegOf(lineCurrent),
-    pMw: power.re / 1e6,
-    qMvar: power.im / 1e6,
+    pMw: wToMw(power.re),
+    qMvar: varToMvar(power.im),
     phaseVoltageV: toPlain(phaseVoltage),
     lineCurrentA: toPlain(lineCurrent),
   };
@@ -262,8 +262,8 @@ export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load
   return new SolverDomainError({
     code: 'NO_OPERATING_POINT',
     quantity: 'load',
-    value: `P = ${load.re / 1e6} MW, Q = ${load.im / 1e6} Mvar`,
-    allowedRange: `up to P = ${forMessage((multiple * load.re) / 1e6)} MW, Q = ${forMessage((multiple * load.im) / 1e6)} Mvar at this power factor (the nose of the P-V curve at Vs = ${sendingVoltageKv} kV)`,
+    value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
+    allowedRange: `up to P = ${forMessage(wToMw(multiple * load.re))} MW, Q = ${forMessage(varToMvar(multiple * load.im))} Mvar at this power factor (the nose of the P-V curve at Vs = ${sendingVoltageKv} kV)`,
     hint: 'No receiving voltage carries this load: it lies beyond the maximum loadability. Reduce the load, add shunt or series compensation, or raise the sending voltage.',
   });
 }
@@ -325,7 +325,7 @@ export function solveFixedSendingVoltage(options: {
     throw new SolverDomainError({
       code: 'NO_CONVERGENCE',
       quantity: 'power mismatch at the receiving bus',
-      value: mismatch / 1e6,
+      value: vaToMva(mismatch),
       allowedRange: `[0, ${toleranceMva}] MVA within ${maxIterations} iterations`,
       hint: 'The load is very close to the nose of the P-V curve; reduce it slightly or raise maxIterations.',
     });
@@ -342,7 +342,7 @@ export function solveFixedSendingVoltage(options: {
       abcd,
       { voltage: sendingVoltage, current: sendingCurrent },
       { voltage: receivingVoltage, current: receivingCurrent },
-      { iterations, mismatchMva: mismatch / 1e6 },
+      { iterations, mismatchMva: vaToMva(mismatch) },
     ),
   );
 }

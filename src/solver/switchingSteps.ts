@@ -3,6 +3,7 @@ import { readCorridor, type Corridor, type CorridorInput, type ShuntUnit } from 
 import { readCase, solveCaseState, type CaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
 import { shortCircuitMvaAtBuses } from './shortCircuit.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireNumber, requireObject } from './errors.ts';
+import { varToMvar } from './units.ts';
 
 export interface BusVoltageChange {
   bus: string;
@@ -132,7 +133,7 @@ function stepFor(
   const after = solveCaseState(corridor, toggled, settings);
   const bus = corridor.buses[unit.busIndex]!;
   const beforeKv = before.buses[unit.busIndex]!.voltageKv;
-  const unitMvar = (unit.susceptanceS * (beforeKv * 1e3) ** 2) / 1e6;
+  const unitMvar = varToMvar(unit.susceptanceS * (beforeKv * 1e3) ** 2);
   // Switching a unit in adds its output to the bus; switching it out removes it.
   const estimatedChangePercent = shortCircuitMva > 0 ? ((wasInService ? -unitMvar : unitMvar) / shortCircuitMva) * 100 : 0;
   const common = {

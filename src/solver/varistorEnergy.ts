@@ -1,7 +1,7 @@
 // Varistor duty of a series capacitor bank during a fault: Goldsworthy's linearised capacitor-varistor model, energy per phase against capability, bypass need.
 import { Complex, requireComplex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, requireChoice, requireNumber, requireObject } from './errors.ts';
-import { phaseVoltsFromLineKv } from './units.ts';
+import { phaseVoltsFromLineKv, wToMw } from './units.ts';
 
 export interface VaristorEnergyOptions {
   /** Capacitive reactance of the bank per phase at power frequency. */
@@ -194,7 +194,7 @@ export function varistorEnergy(options: VaristorEnergyOptions): VaristorEnergy {
     capacitorCurrentShare,
     varistorCurrentShare,
     capacitorVoltageKvRms: (faultCurrentA * Math.hypot(resistanceOhm, reactanceOhm)) / 1e3,
-    varistorPowerMwPerPhase: powerW / 1e6,
+    varistorPowerMwPerPhase: wToMw(powerW),
     energyMjPerPhase: energyMj,
     capabilityMjPerPhase,
     energyShareOfCapability: energyJ / capabilityJ,

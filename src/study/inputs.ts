@@ -1,9 +1,8 @@
 // Study inputs: quantities with units from front matter, dimension- and range-checked, with command-line overrides.
 import { isMap, isScalar, type Document, type YAMLMap, type Node as YamlNode } from 'yaml';
 import { type Diagnostic, type SourceLocation, StudyFailure, formatLocation } from '../diagnostics/diagnostic.ts';
-import type { YamlPlace } from './parse.ts';
 import type { InputSpec } from './model.ts';
-import { type FieldReader, keyOf, pairsOf, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
+import { type FieldReader, type YamlPlace, keyOf, pairsOf, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
 import { QUANTITY_KINDS, type ParsedQuantity, type QuantityKind, UnitProblem, describeKinds, parseQuantity, sameDimension } from './units.ts';
 
 const INPUT_KEYS = ['value', 'quantity', 'min', 'max', 'description'] as const;

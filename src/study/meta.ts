@@ -1,11 +1,10 @@
 // The study's metadata from front matter: title, id, revision, date, engineer, checker, limits, report options.
 import type { Document, YAMLMap } from 'yaml';
 import type { Diagnostic } from '../diagnostics/diagnostic.ts';
-import type { YamlPlace } from './parse.ts';
 import { DEFAULT_LIMITS, type Person, type StudyMeta } from './model.ts';
-import { type FieldReader, readMap, readNumber, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
+import { type FieldReader, type YamlPlace, readMap, readNumber, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
 
-export const META_KEYS = ['title', 'project', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs'] as const;
+const META_KEYS = ['title', 'project', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs'] as const;
 const PERSON_KEYS = ['name', 'licence', 'jurisdiction'] as const;
 const LIMIT_KEYS = ['blockSeconds', 'studySeconds', 'heapMb'] as const;
 const REPORT_KEYS = ['pdf', 'paper'] as const;

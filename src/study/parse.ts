@@ -1,21 +1,17 @@
 // Parse stage: study source text -> Study (front matter, inputs, calculation blocks, inline values), or located diagnostics.
-import { createHash } from 'node:crypto';
 import type { Token } from 'markdown-it';
-import { LineCounter, parseDocument, isMap, type Node as YamlNode, type Document } from 'yaml';
-import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { LineCounter, parseDocument, isMap, type Document } from 'yaml';
+import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import { createMarkdown, INLINE_VALUE_TOKEN } from './markdown.ts';
 import { readInputs } from './inputs.ts';
 import { readMeta } from './meta.ts';
 import type { CalcBlock, InlineExpression, Study } from './model.ts';
+import type { YamlPlace } from './yamlFields.ts';
+import { sha256Hex } from '../seal/digest.ts';
 
 const FENCE_LINE = /^---\s*$/;
 const CALC_LANGUAGE = 'ts';
 const BLOCK_OPTION_WORDS = { 'hide-code': 'hideCode', 'no-run': 'noRun' } as const;
-
-/** Where a YAML node sits in the study file. */
-export interface YamlPlace {
-  at(node: YamlNode | null | undefined, fallbackLine?: number): SourceLocation;
-}
 
 export function parseStudy(file: string, source: string): Study {
   const diagnostics: Diagnostic[] = [];
@@ -89,7 +85,7 @@ export function parseStudy(file: string, source: string): Study {
   return {
     file,
     source,
-    sourceSha256: createHash('sha256').update(source, 'utf8').digest('hex'),
+    sourceSha256: sha256Hex(source),
     meta,
     inputs,
     blocks,

@@ -53,7 +53,7 @@ export class UnitProblem extends Error {
 }
 
 /** A quantity is short: "0.031 ohm/km". Anything longer is not a quantity, and is refused before it is read. */
-export const MAX_QUANTITY_CHARACTERS = 80;
+const MAX_QUANTITY_CHARACTERS = 80;
 const PLAIN_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 const LEADING_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?(?=\s*[A-Za-z(])/;
 const QUANTITY_HINT = 'write a number and a unit, e.g. "400 kV", "0.031 ohm/km", "3.9 uS/km"; nothing is calculated here';
@@ -106,11 +106,6 @@ export function parseQuantity(text: string | number): ParsedQuantity {
 /** mathjs stores prefixed values scaled, so 3.9 uS reads back as 3.9000000000000004; 15 significant digits undo that. */
 function cleanFloat(value: number): number {
   return Number(value.toPrecision(15));
-}
-
-/** True when `unit` (text) has the same physical dimension as the quantity kind. */
-export function dimensionMatches(quantity: ParsedQuantity, kind: QuantityKind): boolean {
-  return sameDimension(quantity.unit, QUANTITY_KINDS[kind]);
 }
 
 export function sameDimension(unitA: string, unitB: string): boolean {

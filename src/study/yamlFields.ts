@@ -1,7 +1,11 @@
 // Reading typed fields out of a YAML mapping, each problem a located diagnostic rather than a throw.
 import { isMap, isScalar, type YAMLMap, type Node as YamlNode, type Pair, type Scalar } from 'yaml';
-import type { Diagnostic } from '../diagnostics/diagnostic.ts';
-import type { YamlPlace } from './parse.ts';
+import type { Diagnostic, SourceLocation } from '../diagnostics/diagnostic.ts';
+
+/** Where a YAML node sits in the study file. */
+export interface YamlPlace {
+  at(node: YamlNode | null | undefined, fallbackLine?: number): SourceLocation;
+}
 
 export interface FieldReader {
   place: YamlPlace;

@@ -185,3 +185,12 @@ describe('checking a sealed report', () => {
     expect(fixture.html).not.toMatch(/PRIVATE KEY/);
   });
 });
+
+describe('the seal subject', () => {
+  it("signs a criterion's limits in the words the report shows", async () => {
+    const product = await runSource(studyText({ body: '```ts\ncriterion("Span", 1200, { min: 1000.125, unit: "m", digits: 3 });\n```\n' }));
+    const [criterion] = sealSubject(product.results, reportBodySha256(product.report)).criteria;
+    expect(criterion?.limits).toBe('at least 1000 m');
+    expect(product.report.body).toContain(`<td>${criterion?.limits}</td>`);
+  });
+});

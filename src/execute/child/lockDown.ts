@@ -2,7 +2,7 @@
 import Module from 'node:module';
 
 /** Process methods that reach beyond the child: signals to other processes (including the debugger signal), identity, native code. */
-export const DENIED_PROCESS_METHODS = [
+const DENIED_PROCESS_METHODS = [
   'dlopen',
   'binding',
   '_linkedBinding',
@@ -25,7 +25,7 @@ export const DENIED_PROCESS_METHODS = [
 ] as const;
 
 /** Globals that open connections; the network is not covered by the permission model. */
-export const DENIED_GLOBALS = ['fetch', 'WebSocket', 'EventSource', 'XMLHttpRequest', 'Request', 'Response', 'Headers', 'FormData'] as const;
+const DENIED_GLOBALS = ['fetch', 'WebSocket', 'EventSource', 'XMLHttpRequest', 'Request', 'Response', 'Headers', 'FormData'] as const;
 
 export const DENIAL_MARK = 'kvarbook-denied';
 

@@ -20,7 +20,7 @@ type Rule =
   | { kind: 'either'; rules: readonly Rule[] };
 
 /** How many data rows one chart may carry in all, and how many fields a row may have. */
-export const MAX_CHART_ROWS = 20_000;
+const MAX_CHART_ROWS = 20_000;
 const MAX_ROW_FIELDS = 64;
 const MAX_TEXT = 2_000;
 

@@ -1,4 +1,5 @@
 // Page geometry and the running header/footer templates of printed reports.
+import { escapeHtml } from '../escape.ts';
 
 /** Page margins; header and footer are drawn inside the top and bottom margins. */
 export const pageLayout = {
@@ -35,8 +36,4 @@ export function footerTemplate(): string {
     `<span>page <span class="pageNumber"></span> of <span class="totalPages"></span></span>` +
     `</div>`
   );
-}
-
-function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (character) => `&#${character.charCodeAt(0)};`);
 }

@@ -35,6 +35,15 @@ export function formatStated(value: number, digits = DEFAULT_DIGITS): string {
   return String(Number(value.toPrecision(digits)));
 }
 
+/** A criterion's limits in words, as the report shows them and the seal signs them: "0.95 to 1.05 pu", "at most 800 km". */
+export function formatLimits(limits: { min?: number; max?: number; unit: string; digits: number }): string {
+  // Limits are stated numbers, not computed ones: no padding zeros ("1 km", not "1.000 km").
+  const show = (value: number) => formatQuantity(formatStated(value, limits.digits), limits.unit);
+  if (limits.min !== undefined && limits.max !== undefined) return `${show(limits.min)} to ${show(limits.max)}`;
+  if (limits.min !== undefined) return `at least ${show(limits.min)}`;
+  return `at most ${show(limits.max as number)}`;
+}
+
 /** A count as a reader reads it in a message or a limit: "100,000 cells". */
 export function formatCount(value: number): string {
   return COUNT_FORMAT.format(value);
