@@ -2,10 +2,10 @@
 //
 // In a scratch .ts file, `/// <reference path="<kvarbook>/src/execute/blockGlobals.d.ts" />` gives completion for the
 // block API and the solver. Declare your study's inputs by adding to `KvarbookStudyInputs`:
-//   declare global { interface KvarbookStudyInputs { lineLength: import('<kvarbook>/src/execute/child/blockApi.ts').InputValue } }
-import type * as Api from './child/blockApi.ts';
+//   declare global { interface KvarbookStudyInputs { lineLength: import('<kvarbook>/src/blocks/blockApi.ts').InputValue } }
+import type * as Api from '../blocks/blockApi.ts';
 import type * as SolverModule from '../solver/index.ts';
-import type * as ChartModule from '../report/chart/builders.ts';
+import type * as ChartModule from '../blocks/charts.ts';
 
 declare global {
   /** The study's inputs, one member per input of the front matter; kvarbook fills it in for each study. */

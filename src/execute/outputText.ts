@@ -1,6 +1,6 @@
 // What a text a study writes must be to reach a report: bounded in length, free of control and invisible characters, never NaN.
 import { OUTPUT_LIMITS } from './limits.ts';
-import { formatCount } from '../report/format.ts';
+import { formatCount } from '../blocks/format.ts';
 
 /**
  * - `name`: result and criterion names, column labels, units. Two names must not look alike, so no invisible or

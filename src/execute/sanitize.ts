@@ -3,7 +3,7 @@ import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnosti
 import type { Study } from '../study/model.ts';
 import type { BlockErrorReport, BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
 import { OUTPUT_LIMITS } from './limits.ts';
-import { formatCount } from '../report/format.ts';
+import { formatCount } from '../blocks/format.ts';
 import { TEXT_PROBLEM_HINTS, type TextProblem, type TextRole, outputTextProblem } from './outputText.ts';
 
 const isText = (value: unknown): value is string => typeof value === 'string';

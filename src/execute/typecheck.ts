@@ -41,7 +41,7 @@ function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
 /** The block API's globals from blockGlobals.d.ts, and this study's inputs added to them. */
 function preamble(study: CheckedStudy): string {
   const globals = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/blockGlobals.d.ts'));
-  const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/child/blockApi.ts'));
+  const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/blocks/blockApi.ts'));
   const inputFields = study.inputs.map((input) => `    readonly ${input.name}: InputValue;`).join('\n');
   return [
     `/// <reference path=${globals} />`,

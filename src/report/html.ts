@@ -7,7 +7,7 @@ import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
 import type { CriterionRecord, TableRecord } from '../execute/records.ts';
 import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
-import { formatNumber, formatQuantity, formatStated } from './format.ts';
+import { formatNumber, formatQuantity, formatStated } from '../blocks/format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
 import { describeLimits } from './provenance.ts';

@@ -1,7 +1,7 @@
 // Where a report came from: kvarbook and Node versions, hashes of the lock file and study, the limits it ran under.
 import type { RunLimits } from '../study/model.ts';
 import { HOST_STAGE_LIMITS, OUTPUT_LIMITS } from '../execute/limits.ts';
-import { formatCount } from './format.ts';
+import { formatCount } from '../blocks/format.ts';
 
 export interface Provenance {
   kvarbookVersion: string;

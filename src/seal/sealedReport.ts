@@ -2,7 +2,7 @@
 import { createHash } from 'node:crypto';
 import { SEAL_SLOT_END, SEAL_SLOT_START, assembleReport, type ReportParts } from '../report/html.ts';
 import type { ResultsDocument } from '../report/studyRun.ts';
-import { formatQuantity } from '../report/format.ts';
+import { formatQuantity } from '../blocks/format.ts';
 import { jsonScript, jsonScriptTexts } from '../report/embed.ts';
 import { serializeCheckRecord, type CheckRecord } from './checkRecord.ts';
 import { serializeEnvelope, type SealEnvelope, type SealSubject } from './manifest.ts';

@@ -1,4 +1,4 @@
-// Transfer curves of a two-port: P-V and Q-V curves, P-delta curve, power circles, steady-state limit and the angle for a given transfer.
+// Transfer curves of a two-port: P-V and Q-V curves, P-delta curve, power circles, steady-state limit and margin, and the angle for a given transfer.
 import { Complex } from './complex.ts';
 import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
@@ -165,6 +165,24 @@ export function powerAngleCurve(options: {
       angleDeg: radToDeg(limitAngle),
     },
   });
+}
+
+/** Steady-state stability margin in % of the transfer limit: (Pmax − P0) / Pmax × 100. */
+export function stabilityMarginPercent(maxPowerMw: number, operatingPowerMw: number): number {
+  requireNumber(
+    'operatingPowerMw',
+    operatingPowerMw,
+    { unit: 'MW' },
+    'NaN or Infinity usually means a division by zero upstream in the calculation.',
+  );
+  requireNumber('maxPowerMw', maxPowerMw, { min: 0, minInclusive: false, unit: 'MW' }, 'Pass the peak of the P-δ curve, e.g. V_S·V_R/X in MW.');
+  requireNumber(
+    'operatingPowerMw',
+    operatingPowerMw,
+    { max: maxPowerMw, unit: 'MW' },
+    'An operating point above Pmax has no steady state; check the curve or the operating point.',
+  );
+  return ((maxPowerMw - operatingPowerMw) / maxPowerMw) * 100;
 }
 
 /** Receiving-end power (MW) at a given angle; exported for the sizing and loadability modules. */

@@ -1,4 +1,4 @@
-// Shunt compensation sizing: reactors for the no-load voltage, capacitors for a heavy-load voltage, and SVC range over load cases.
+// Shunt compensation sizing: reactors for the no-load voltage, capacitors for a heavy-load voltage, the SVC characteristic and its range over load cases.
 import { Complex } from './complex.ts';
 import {
   SolverDomainError,
@@ -329,6 +329,74 @@ export function shuntCapacitorForLoadVoltage(options: {
     lineModels: lineModelsOf(network),
     operatingPoint,
     compensatedNetwork,
+  });
+}
+
+export interface SvcCharacteristicOptions {
+  /** Slope of the control range in % on the SVC base (reactance Xs = slope/100 pu). */
+  slopePercent: number;
+  /** Voltage at zero SVC current. */
+  referenceVoltagePu: number;
+  /** Largest capacitive susceptance, on the SVC base. */
+  bMaxCapacitivePu: number;
+  /** Largest inductive susceptance, on the SVC base. */
+  bMaxInductivePu: number;
+}
+
+export interface SvcCharacteristicCorners {
+  /** Where the control slope meets the capacitive limit line I = −B_C·V. */
+  capacitiveCorner: { currentPu: number; voltagePu: number };
+  /** Where the control slope meets the inductive limit line I = B_L·V. */
+  inductiveCorner: { currentPu: number; voltagePu: number };
+}
+
+/**
+ * Corners of the SVC V-I characteristic. Current is positive when inductive (absorbing). The control
+ * range is V = Vref + Xs·I; the limits are the fixed-susceptance lines through the origin.
+ */
+export function svcCharacteristicCorners(options: SvcCharacteristicOptions): SvcCharacteristicCorners {
+  const hint = 'Pass { slopePercent, referenceVoltagePu, bMaxCapacitivePu, bMaxInductivePu }, all on the SVC base.';
+  const record = requireObject('options', options, hint);
+  const slopePercent = requireNumber(
+    'slopePercent',
+    record.slopePercent,
+    { min: 0, max: 100, maxInclusive: false, unit: '%' },
+    'Give the slope in percent on the SVC base, e.g. 3 for 3 % (typically 1 to 10 %, common practice).',
+  );
+  const positivePu = { min: 0, minInclusive: false, unit: 'pu' };
+  const referenceVoltagePu = requireNumber(
+    'referenceVoltagePu',
+    record.referenceVoltagePu,
+    positivePu,
+    'Give the magnitude as a positive number, e.g. 1.0.',
+  );
+  const capacitive = requireNumber(
+    'bMaxCapacitivePu',
+    record.bMaxCapacitivePu,
+    positivePu,
+    'Give the magnitude as a positive number, e.g. 1.0 on the SVC base.',
+  );
+  const inductive = requireNumber(
+    'bMaxInductivePu',
+    record.bMaxInductivePu,
+    positivePu,
+    'Give the magnitude as a positive number, e.g. 0.5 on the SVC base.',
+  );
+  const slopeReactancePu = slopePercent / 100;
+  if (slopeReactancePu * inductive >= 1) {
+    throw new SolverDomainError({
+      code: 'INCONSISTENT_QUANTITIES',
+      quantity: 'slopePercent × bMaxInductivePu / 100',
+      value: slopeReactancePu * inductive,
+      allowedRange: '[0, 1), otherwise the slope never meets the inductive limit',
+      hint: 'Check that slope and susceptances are on the same (SVC) base.',
+    });
+  }
+  const capacitiveVoltage = referenceVoltagePu / (1 + slopeReactancePu * capacitive);
+  const inductiveVoltage = referenceVoltagePu / (1 - slopeReactancePu * inductive);
+  return assertFiniteResult('svcCharacteristicCorners', {
+    capacitiveCorner: { currentPu: -capacitive * capacitiveVoltage, voltagePu: capacitiveVoltage },
+    inductiveCorner: { currentPu: inductive * inductiveVoltage, voltagePu: inductiveVoltage },
   });
 }
 

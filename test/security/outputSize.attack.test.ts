@@ -2,7 +2,7 @@
 // is located at the call that went over, and the bounds are stated in the report.
 import { describe, expect, it } from 'vitest';
 import { OUTPUT_LIMITS } from '../../src/execute/limits.ts';
-import { formatCount } from '../../src/report/format.ts';
+import { formatCount } from '../../src/blocks/format.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
 import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 

@@ -13,6 +13,7 @@ import {
   solveFixedSendingVoltage,
   solveTwoEndVoltages,
 } from '../../src/solver/index.ts';
+import { stabilityMarginPercent } from '../../src/solver/curves.ts';
 
 const shortLossless = (reactanceOhm: number) =>
   lineModel({
@@ -198,5 +199,21 @@ describe('qvCurve', () => {
     expect(atNewton.supportMvar[0]).toBeCloseTo(0, 3);
     // Below the nose of the P-V curve the bus has a positive reactive margin.
     expect(qvCurve({ network: line, sendingVoltageKv: 765, load }).reactiveMarginMvar).toBeGreaterThan(0);
+  });
+});
+
+describe('stabilityMarginPercent', () => {
+  // P = Pmax·sin δ for a lossless link (Kundur, Power System Stability and Control, 1994, §2.x —
+  // section from memory); at δ0 = 30° the load is Pmax/2, so the margin is exactly 50 %.
+  test('is (Pmax − P0)/Pmax in percent', () => {
+    expect(stabilityMarginPercent(1200, 1200 * Math.sin(Math.PI / 6))).toBeCloseTo(50, 12);
+  });
+
+  test('refuses an operating point above Pmax with OUT_OF_RANGE', () => {
+    expect(() => stabilityMarginPercent(1200, 1300)).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'operatingPowerMw' }));
+  });
+
+  test('refuses a Pmax that is not above 0 MW with OUT_OF_RANGE', () => {
+    expect(() => stabilityMarginPercent(0, -10)).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'maxPowerMw' }));
   });
 });

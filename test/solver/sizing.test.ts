@@ -12,6 +12,7 @@ import {
   svcRange,
   voltageProfile,
 } from '../../src/solver/index.ts';
+import { svcCharacteristicCorners } from '../../src/solver/sizing.ts';
 
 // Saadat, "Power System Analysis" (2nd ed.), Example 5.7 data: 500 kV, 60 Hz, 300 km lossless, L = 0.97 mH/km, C = 0.0115 uF/km.
 const saadatLine = lineModel({
@@ -349,5 +350,42 @@ describe('svcRange', () => {
       loadCases,
     });
     expect(result.maxCapacitiveOutputMvar).toBeLessThan(flat.maxCapacitiveOutputMvar);
+  });
+});
+
+describe('svcCharacteristicCorners', () => {
+  // Control range V = Vref + Xs·I (I > 0 inductive) meets the limit lines I = −B_C·V and I = B_L·V
+  // (Hingorani & Gyugyi, Understanding FACTS, 2000, ch. 5 — chapter from memory). Hand calculation
+  // for Vref = 1, Xs = 0.05, B_C = 1, B_L = 0.5: V_C = 1/1.05, V_L = 1/0.975.
+  const input = { slopePercent: 5, referenceVoltagePu: 1, bMaxCapacitivePu: 1, bMaxInductivePu: 0.5 };
+
+  test('puts the capacitive corner where the slope meets I = −B_C·V', () => {
+    const { capacitiveCorner } = svcCharacteristicCorners(input);
+    expect(capacitiveCorner.voltagePu).toBeCloseTo(1 / 1.05, 12);
+    expect(capacitiveCorner.currentPu).toBeCloseTo(-1 / 1.05, 12);
+  });
+
+  test('puts the inductive corner where the slope meets I = B_L·V', () => {
+    const { inductiveCorner } = svcCharacteristicCorners(input);
+    expect(inductiveCorner.voltagePu).toBeCloseTo(1 / 0.975, 12);
+    expect(inductiveCorner.currentPu).toBeCloseTo(0.5 / 0.975, 12);
+  });
+
+  test('keeps both corners on the control slope', () => {
+    for (const corner of Object.values(svcCharacteristicCorners(input))) {
+      expect(corner.voltagePu).toBeCloseTo(1 + 0.05 * corner.currentPu, 12);
+    }
+  });
+
+  test('refuses a slope that never meets the inductive limit with INCONSISTENT_QUANTITIES', () => {
+    expect(() => svcCharacteristicCorners({ ...input, slopePercent: 50, bMaxInductivePu: 2 })).toThrow(
+      expect.objectContaining({ code: 'INCONSISTENT_QUANTITIES', quantity: 'slopePercent × bMaxInductivePu / 100' }),
+    );
+  });
+
+  test('refuses a slope of 100 % or more with OUT_OF_RANGE', () => {
+    expect(() => svcCharacteristicCorners({ ...input, slopePercent: 100 })).toThrow(
+      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'slopePercent' }),
+    );
   });
 });

@@ -1,6 +1,6 @@
 // Shortening solver arguments and results for the calculation log: long arrays become their size, ends and range.
 
-import { markInvisible } from '../outputText.ts';
+import { markInvisible } from '../execute/outputText.ts';
 
 const KEEP_ITEMS = 3;
 const MAX_DEPTH = 6;

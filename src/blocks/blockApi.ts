@@ -1,12 +1,12 @@
 // The block API: the globals a calculation block calls (inputs, result, table, criterion, caution, chart, figure, solver).
-import type { InputData } from '../protocol.ts';
-import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../records.ts';
-import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from '../../report/format.ts';
-import { type UnitProblem, convertQuantity, unitProblem } from '../../study/units.ts';
+import type { InputData } from '../execute/protocol.ts';
+import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../execute/records.ts';
+import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from './format.ts';
+import { type UnitProblem, convertQuantity, unitProblem } from '../study/units.ts';
 import { summarise } from './summarise.ts';
-import { freezeDeep } from './harden.ts';
-import { OUTPUT_LIMITS } from '../limits.ts';
-import { TEXT_PROBLEM_HINTS, type TextRole, nameKey, outputTextProblem } from '../outputText.ts';
+import { freezeDeep } from '../execute/child/harden.ts';
+import { OUTPUT_LIMITS } from '../execute/limits.ts';
+import { TEXT_PROBLEM_HINTS, type TextRole, nameKey, outputTextProblem } from '../execute/outputText.ts';
 
 /** A thrown block-API misuse: the message names what and the hint says how to fix it. */
 export class BlockApiError extends Error {

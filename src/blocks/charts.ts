@@ -1,6 +1,12 @@
-// Ready-made Vega-Lite specs for the charts a reactive-compensation study usually needs.
-import { ChartInputError } from './errors.ts';
-import { allowedBandFill, referenceInk, seriesColours, seriesDashes, seriesShapes } from './theme.ts';
+// Ready-made Vega-Lite specs for the charts a reactive-compensation study usually needs: they shape data, the solver computes.
+import { ChartInputError } from '../report/chart/errors.ts';
+import { stabilityMarginPercent } from '../solver/curves.ts';
+import { type SvcCharacteristicOptions, svcCharacteristicCorners } from '../solver/sizing.ts';
+import { allowedBandFill, referenceInk, seriesColours, seriesDashes, seriesShapes } from './chartStyle.ts';
+
+// Blocks have always found these two beside the charts that draw them.
+export { stabilityMarginPercent, svcCharacteristicCorners };
+export type { SvcCharacteristicCorners } from '../solver/sizing.ts';
 
 /** A Vega-Lite spec as a plain object, so the author can still adjust it before rendering. */
 export type ChartSpec = Record<string, unknown>;
@@ -80,28 +86,6 @@ export interface PowerAngleInput {
   title?: string;
 }
 
-/** Steady-state stability margin in % of Pmax: (Pmax − P0) / Pmax × 100. */
-export function stabilityMarginPercent(maxPowerMw: number, operatingPowerMw: number): number {
-  finite(operatingPowerMw, 'operatingPoint.pMw');
-  if (!Number.isFinite(maxPowerMw) || maxPowerMw <= 0) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
-      quantity: 'maxPowerMw',
-      value: maxPowerMw,
-      allowed: 'a finite power greater than 0 MW',
-      hint: 'Pass the peak of the P-δ curve, e.g. V_S·V_R/X in MW.',
-    });
-  }
-  if (operatingPowerMw > maxPowerMw) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
-      quantity: 'operatingPoint.pMw',
-      value: operatingPowerMw,
-      allowed: `at most maxPowerMw = ${maxPowerMw} MW`,
-      hint: 'An operating point above Pmax has no steady state; check the curve or the operating point.',
-    });
-  }
-  return ((maxPowerMw - operatingPowerMw) / maxPowerMw) * 100;
-}
-
 /** P-δ curves with the operating point, Pmax and the steady-state stability margin annotated. */
 export function powerAngleChart(input: PowerAngleInput): ChartSpec {
   const labels = seriesLabels(input.curves, 'curves');
@@ -120,7 +104,7 @@ export function powerAngleChart(input: PowerAngleInput): ChartSpec {
   if (operatingPoint) {
     const firstCurvePeak = Math.max(...values.filter((value) => value.series === labels[0]).map((value) => value.pMw));
     const maxPowerMw = input.maxPowerMw ?? firstCurvePeak;
-    const marginPercent = stabilityMarginPercent(maxPowerMw, operatingPoint.pMw);
+    const marginPercent = stabilityMarginPercent(maxPowerMw, finite(operatingPoint.pMw, 'operatingPoint.pMw'));
     layers.push(
       referenceRuleLayer('y', maxPowerMw, `Pmax = ${formatNumber(maxPowerMw)} MW`, 'Active power P (MW)'),
       referenceRuleLayer('y', operatingPoint.pMw, `P0 = ${formatNumber(operatingPoint.pMw)} MW`, 'Active power P (MW)'),
@@ -144,58 +128,9 @@ export function powerAngleChart(input: PowerAngleInput): ChartSpec {
   return frame(input.title ?? 'Power-angle curves', layers);
 }
 
-export interface SvcCharacteristicInput {
-  /** Slope of the control range in % on the SVC base (reactance Xs = slope/100 pu). */
-  slopePercent: number;
-  /** Voltage at zero SVC current. */
-  referenceVoltagePu: number;
-  /** Largest capacitive susceptance, on the SVC base. */
-  bMaxCapacitivePu: number;
-  /** Largest inductive susceptance, on the SVC base. */
-  bMaxInductivePu: number;
+export interface SvcCharacteristicInput extends SvcCharacteristicOptions {
   operatingPoints?: { label: string; currentPu: number; voltagePu: number }[];
   title?: string;
-}
-
-export interface SvcCharacteristicCorners {
-  /** Where the control slope meets the capacitive limit line I = −B_C·V. */
-  capacitiveCorner: { currentPu: number; voltagePu: number };
-  /** Where the control slope meets the inductive limit line I = B_L·V. */
-  inductiveCorner: { currentPu: number; voltagePu: number };
-}
-
-/**
- * Corners of the SVC V-I characteristic. Current is positive when inductive (absorbing). The control
- * range is V = Vref + Xs·I; the limits are the fixed-susceptance lines through the origin.
- */
-export function svcCharacteristicCorners(input: SvcCharacteristicInput): SvcCharacteristicCorners {
-  const slopePercent = finite(input.slopePercent, 'slopePercent');
-  if (slopePercent < 0 || slopePercent >= 100) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
-      quantity: 'slopePercent',
-      value: slopePercent,
-      allowed: '0 ≤ slopePercent < 100 (typically 1 to 10 %)',
-      hint: 'Give the slope in percent on the SVC base, e.g. 3 for 3 %.',
-    });
-  }
-  const referenceVoltagePu = positive(input.referenceVoltagePu, 'referenceVoltagePu', 'e.g. 1.0');
-  const capacitive = positive(input.bMaxCapacitivePu, 'bMaxCapacitivePu', 'e.g. 1.0 on the SVC base');
-  const inductive = positive(input.bMaxInductivePu, 'bMaxInductivePu', 'e.g. 0.5 on the SVC base');
-  const slopeReactancePu = slopePercent / 100;
-  if (slopeReactancePu * inductive >= 1) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
-      quantity: 'slopePercent × bMaxInductivePu / 100',
-      value: slopeReactancePu * inductive,
-      allowed: 'less than 1, otherwise the slope never meets the inductive limit',
-      hint: 'Check that slope and susceptances are on the same (SVC) base.',
-    });
-  }
-  const capacitiveVoltage = referenceVoltagePu / (1 + slopeReactancePu * capacitive);
-  const inductiveVoltage = referenceVoltagePu / (1 - slopeReactancePu * inductive);
-  return {
-    capacitiveCorner: { currentPu: -capacitive * capacitiveVoltage, voltagePu: capacitiveVoltage },
-    inductiveCorner: { currentPu: inductive * inductiveVoltage, voltagePu: inductiveVoltage },
-  };
 }
 
 /** SVC voltage-current characteristic: both susceptance limits, the sloped control range, operating points. */

@@ -7,10 +7,13 @@ import {
   svcCharacteristicChart,
   svcCharacteristicCorners,
   voltageProfileChart,
-} from '../../../src/report/chart/builders.ts';
-import { ChartInputError } from '../../../src/report/chart/errors.ts';
-import { renderChartSvg } from '../../../src/report/chart/render.ts';
-import { axisTicks, linePaths, pixelOf, tickSnapPx, pointShapes, texts } from './svg-probe.ts';
+} from '../../src/blocks/charts.ts';
+import { ChartInputError } from '../../src/report/chart/errors.ts';
+import { renderChartSvg } from '../../src/report/chart/render.ts';
+import { stabilityMarginPercent as solverStabilityMarginPercent } from '../../src/solver/curves.ts';
+import { SolverDomainError } from '../../src/solver/errors.ts';
+import { svcCharacteristicCorners as solverSvcCharacteristicCorners } from '../../src/solver/sizing.ts';
+import { axisTicks, linePaths, pixelOf, tickSnapPx, pointShapes, texts } from '../report/chart/svg-probe.ts';
 
 const degree = Math.PI / 180;
 
@@ -24,16 +27,20 @@ function openEndedProfile(lengthKm: number, receivingPu: number): { distanceKm: 
   });
 }
 
-function expectInputError(build: () => unknown, code: string, quantity: string): void {
+function expectError(errorClass: typeof ChartInputError | typeof SolverDomainError, build: () => unknown, code: string, quantity: string): void {
   try {
     build();
   } catch (error) {
-    expect(error).toBeInstanceOf(ChartInputError);
-    expect((error as ChartInputError).code).toBe(code);
-    expect((error as ChartInputError).quantity).toBe(quantity);
+    expect(error).toBeInstanceOf(errorClass);
+    expect((error as ChartInputError | SolverDomainError).code).toBe(code);
+    expect((error as ChartInputError | SolverDomainError).quantity).toBe(quantity);
     return;
   }
-  throw new Error('expected a ChartInputError');
+  throw new Error(`expected a ${errorClass.name}`);
+}
+
+function expectInputError(build: () => unknown, code: string, quantity: string): void {
+  expectError(ChartInputError, build, code, quantity);
 }
 
 describe('voltageProfileChart', () => {
@@ -147,10 +154,6 @@ describe('powerAngleChart', () => {
     operatingPoint: { angleDeg: 30, pMw: 1200 * Math.sin(30 * degree) },
   };
 
-  it('computes the stability margin as (Pmax − P0)/Pmax in percent', () => {
-    expect(stabilityMarginPercent(1200, 600)).toBeCloseTo(50, 12);
-  });
-
   it('annotates the margin taken from the first curve’s peak when Pmax is not given', async () => {
     const svg = await renderChartSvg(powerAngleChart(input));
     expect(texts(svg)).toContain('Stability margin (Pmax − P0)/Pmax = 50.0 %');
@@ -178,10 +181,11 @@ describe('powerAngleChart', () => {
   });
 
   it('refuses an operating point above Pmax', () => {
-    expectInputError(
+    expectError(
+      SolverDomainError,
       () => powerAngleChart({ ...input, operatingPoint: { angleDeg: 90, pMw: 1300 } }),
-      'CHART_INPUT_OUT_OF_RANGE',
-      'operatingPoint.pMw',
+      'OUT_OF_RANGE',
+      'operatingPowerMw',
     );
   });
 });
@@ -200,24 +204,6 @@ describe('svcCharacteristicChart', () => {
       { label: 'peak load', currentPu: -0.6, voltagePu: 0.97 },
     ],
   };
-
-  it('puts the capacitive corner where the slope meets I = −B_C·V', () => {
-    const { capacitiveCorner } = svcCharacteristicCorners(input);
-    expect(capacitiveCorner.voltagePu).toBeCloseTo(1 / 1.05, 12);
-    expect(capacitiveCorner.currentPu).toBeCloseTo(-1 / 1.05, 12);
-  });
-
-  it('puts the inductive corner where the slope meets I = B_L·V', () => {
-    const { inductiveCorner } = svcCharacteristicCorners(input);
-    expect(inductiveCorner.voltagePu).toBeCloseTo(1 / 0.975, 12);
-    expect(inductiveCorner.currentPu).toBeCloseTo(0.5 / 0.975, 12);
-  });
-
-  it('keeps both corners on the control slope', () => {
-    for (const corner of Object.values(svcCharacteristicCorners(input))) {
-      expect(corner.voltagePu).toBeCloseTo(1 + 0.05 * corner.currentPu, 12);
-    }
-  });
 
   it('draws the characteristic through the origin and both corners', async () => {
     const svg = await renderChartSvg(svcCharacteristicChart(input));
@@ -240,11 +226,17 @@ describe('svcCharacteristicChart', () => {
   });
 
   it('refuses a slope that never meets the inductive limit', () => {
-    expectInputError(
-      () => svcCharacteristicCorners({ ...input, slopePercent: 50, bMaxInductivePu: 2 }),
-      'CHART_INPUT_OUT_OF_RANGE',
+    expectError(
+      SolverDomainError,
+      () => svcCharacteristicChart({ ...input, slopePercent: 50, bMaxInductivePu: 2 }),
+      'INCONSISTENT_QUANTITIES',
       'slopePercent × bMaxInductivePu / 100',
     );
+  });
+
+  it('offers the solver’s margin and corners beside the charts that draw them', () => {
+    expect(stabilityMarginPercent).toBe(solverStabilityMarginPercent);
+    expect(svcCharacteristicCorners).toBe(solverSvcCharacteristicCorners);
   });
 });
 
