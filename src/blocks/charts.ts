@@ -273,7 +273,7 @@ export function busVoltagesChart(input: BusVoltagesInput): ChartSpec {
       voltagePu: finite(bus.voltagePu, `cases[${caseIndex}].buses[${order}].voltagePu`),
     })),
   );
-  const x = { field: 'bus', type: 'ordinal', title: 'Bus', sort: busOrder };
+  const x = { field: 'bus', type: 'ordinal', title: 'Bus', sort: busOrder, axis: { labelAngle: 0 } };
   const y = { field: 'voltagePu', type: 'quantitative', title: 'Voltage (pu)', scale: { zero: false } };
   const layers: ChartSpec[] = [];
   if (input.bandPu) {
