@@ -93,14 +93,14 @@ export type {
 } from './cases.ts';
 export { switchingSteps } from './switchingSteps.ts';
 export { sizeReactorsAcrossCases } from './caseSizing.ts';
-export { corridorBusFault } from './shortCircuit.ts';
+export { corridorFault } from './shortCircuit.ts';
 export { corridorCaseCriteria } from './caseCriteria.ts';
 export { seriesBankRatings } from './seriesBankRatings.ts';
 export { corridorFrequencyScan } from './corridorScan.ts';
 export type { CorridorFrequencyScan } from './corridorScan.ts';
 export type { OverloadDuty, SeriesBankRatings } from './seriesBankRatings.ts';
 export type { CaseCriteria, CaseCriterionKind, CaseCriterionRow, CaseCriterionSettings, CaseCriterionSummary } from './caseCriteria.ts';
-export type { CorridorBusFault, SegmentFaultDuty } from './shortCircuit.ts';
+export type { CorridorFault, FaultPlace, SegmentFaultDuty } from './shortCircuit.ts';
 export type {
   BusAllotment,
   CaseVoltageSpan,

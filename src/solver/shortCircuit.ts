@@ -1,8 +1,8 @@
-// Short circuits on a corridor case: the passive network with every EMF short-circuited, the strength at each bus, and bus-fault currents through series banks.
+// Short circuits on a corridor case: the passive network with every EMF short-circuited, the strength at each bus, and fault currents through series banks.
 import { Complex } from './complex.ts';
 import { readCorridor, type Corridor, type CorridorInput } from './corridor.ts';
 import { BASE_MVA, buildCase, readCase, type BuiltCase, type CaseState, type CorridorCaseInput } from './cases.ts';
-import { admittanceMatrix, solveLinear } from './corridorNetwork.ts';
+import { admittanceMatrix, linePiS, solveLinear } from './corridorNetwork.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireNumber, requireObject } from './errors.ts';
 import { goldsworthyEquivalent } from './varistorEnergy.ts';
 import { kvToV, phaseVoltsFromLineKv } from './units.ts';
@@ -97,9 +97,13 @@ export interface SegmentFaultDuty {
   capacitorVoltageKvPeak: number;
 }
 
-export interface CorridorBusFault {
+/** Where the fault is: at a bus, or on a section at a distance from its from-bus. */
+export type FaultPlace = { bus: string } | { section: string; distanceKm: number };
+
+export interface CorridorFault {
   case: string;
-  faultBus: string;
+  /** The bus, or the section and distance, in words. */
+  faultAt: string;
   method: string;
   voltageFactor: number;
   /** Initial symmetrical short-circuit current at the fault (three-phase, bolted), rms. */
@@ -113,37 +117,29 @@ export interface CorridorBusFault {
 }
 
 const HINT =
-  'Pass { corridor, case, faultBus, voltageFactor?, protectiveLevelsKvPeak?: { <segment name>: kV peak } }; the case sets the switching state.';
+  'Pass { corridor, case, at: { bus } | { section, distanceKm }, voltageFactor?, protectiveLevelsKvPeak?: { <segment name>: kV peak } }; the case sets the switching state.';
 const ITERATION_LIMIT = 200;
 const ITERATION_TOLERANCE = 1e-9;
 
 /**
- * A three-phase bolted fault at a corridor bus, by the equivalent voltage source at the fault (IEC 60909-0: c U_n / sqrt 3, every other
+ * A three-phase bolted fault at a corridor bus or at a point of a line section (the line side of a series segment is the point where its
+ * line piece starts), by the equivalent voltage source at the fault (IEC 60909-0: c U_n / sqrt 3, every other
  * source short-circuited, pre-fault load currents left out; each system as a feeder of impedance c U_n^2 / S_sc) on the case's network
  * with line charging and connected shunts. Each
  * inserted series segment's current follows from the node voltages; where a segment has a protective level its capacitor-varistor
  * pair is replaced by Goldsworthy's equivalent for the current it carries, and the network is solved again until the currents settle.
  */
-export function corridorBusFault(options: {
+export function corridorFault(options: {
   corridor: CorridorInput;
   case: CorridorCaseInput;
-  faultBus: string;
+  at: FaultPlace;
   voltageFactor?: number;
   protectiveLevelsKvPeak?: Record<string, number>;
-}): CorridorBusFault {
+}): CorridorFault {
   const record = requireObject('options', options, HINT);
   const corridor = readCorridor(record.corridor);
   const state = readCase(corridor, record.case, 'case');
-  const bus = corridor.buses.find((candidate) => candidate.name === record.faultBus);
-  if (!bus) {
-    throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
-      quantity: 'faultBus',
-      value: String(record.faultBus),
-      allowedRange: `one of ${corridor.buses.map((candidate) => `'${candidate.name}'`).join(', ')}`,
-      hint: 'Name the corridor bus where the fault is applied.',
-    });
-  }
+  const place = readFaultPlace(corridor, state, record.at);
   const voltageFactor = optionalNumber(
     'voltageFactor',
     record.voltageFactor,
@@ -155,13 +151,14 @@ export function corridorBusFault(options: {
   const levels = readProtectiveLevels(record.protectiveLevelsKvPeak, new Set(segments.map(({ segment }) => segment.name)));
   // IEC 60909-0 gives a network feeder the impedance c U_n^2 / S''_k, so that a fault at its own bus draws the stated S''_k.
   const passive = passiveNetwork(corridor, state, voltageFactor);
-  if (passive === null) {
+  const faultNode = passive === null ? null : faultNodeOf(corridor, state, passive, place);
+  if (passive === null || faultNode === null) {
     throw new SolverDomainError({
       code: 'NO_OPERATING_POINT',
       quantity: 'case',
       value: state.label,
-      allowedRange: 'a case in which the fault bus is connected to a system',
-      hint: 'The case splits the corridor or disconnects both systems; a bus fault needs a source.',
+      allowedRange: 'a case in which the fault point is connected to a system',
+      hint: 'The case splits the corridor or disconnects both systems; a fault needs a source.',
     });
   }
   const segmentBranches = passive.built.network.branches.filter((branch) => branch.tag.kind === 'segment');
@@ -169,18 +166,18 @@ export function corridorBusFault(options: {
   const sourcePhaseV = voltageFactor * phaseVoltsFromLineKv(corridor.nominalVoltageKv);
 
   const solve = () => {
-    const column = impedanceColumn(passive, bus.index, 1);
+    const column = impedanceColumn(passive, faultNode, 1);
     if (column === null) {
       throw new SolverDomainError({
         code: 'DEGENERATE_NETWORK',
-        quantity: 'faultBus',
-        value: bus.name,
+        quantity: 'at',
+        value: place.description,
         allowedRange: 'a bus with a path to a source',
         hint: 'The network of the case is singular at the fault bus.',
       });
     }
     // Node voltages are Z_ik I_f; only magnitudes are reported, so the phase of I_f does not matter.
-    const faultCurrentA = sourcePhaseV / column[bus.index]!.abs();
+    const faultCurrentA = sourcePhaseV / column[faultNode]!.abs();
     const currents = new Map(
       segmentBranches.map((branch) => {
         const tag = branch.tag as { kind: 'segment'; segment: { name: string; sectionIndex: number } };
@@ -229,9 +226,9 @@ export function corridorBusFault(options: {
     }
   }
   const inserted = new Set(segmentBranches.map((branch) => (branch.tag as { segment: { name: string } }).segment.name));
-  return assertFiniteResult('corridorBusFault', {
+  return assertFiniteResult('corridorFault', {
     case: state.label,
-    faultBus: bus.name,
+    faultAt: place.description,
     method: 'IEC 60909-0 equivalent voltage source at the fault; Goldsworthy equivalent for conducting varistors',
     voltageFactor,
     faultCurrentKa: settled.faultCurrentA / 1e3,
@@ -261,6 +258,95 @@ export function corridorBusFault(options: {
     }),
     iterations,
   });
+}
+
+type ReadPlace = { description: string } & ({ busIndex: number } | { sectionIndex: number; distanceKm: number });
+
+function readFaultPlace(corridor: Corridor, state: CaseState, value: unknown): ReadPlace {
+  const place = requireObject('at', value, HINT);
+  if (place.bus !== undefined) {
+    const bus = corridor.buses.find((candidate) => candidate.name === place.bus);
+    if (!bus) {
+      throw new SolverDomainError({
+        code: 'OUT_OF_RANGE',
+        quantity: 'at.bus',
+        value: String(place.bus),
+        allowedRange: `one of ${corridor.buses.map((candidate) => `'${candidate.name}'`).join(', ')}`,
+        hint: 'Name the corridor bus where the fault is applied.',
+      });
+    }
+    return { description: bus.name, busIndex: bus.index };
+  }
+  const section = corridor.sections.find((candidate) => candidate.name === place.section);
+  if (!section) {
+    throw new SolverDomainError({
+      code: 'OUT_OF_RANGE',
+      quantity: 'at.section',
+      value: String(place.section),
+      allowedRange: `one of ${corridor.sections.map((candidate) => `'${candidate.name}'`).join(', ')}`,
+      hint: 'Give { bus } for a bus fault, or { section, distanceKm } for a fault on a line section.',
+    });
+  }
+  const distanceKm = requireNumber(
+    'at.distanceKm',
+    place.distanceKm,
+    { min: 0, max: section.lengthKm, unit: 'km' },
+    "Distance of the fault from the section's from-bus.",
+  );
+  const circuits = state.circuitsInService[section.index] as number;
+  if (circuits !== 1) {
+    throw new SolverDomainError({
+      code: 'INCONSISTENT_QUANTITIES',
+      quantity: 'at.section',
+      value: section.name,
+      allowedRange: 'a section with exactly one circuit in service in the case',
+      hint:
+        circuits === 0
+          ? 'The section is open in this case.'
+          : 'The model joins parallel circuits into one branch, so a fault on one of them is not represented; take the other circuit out in the case, or fault a bus.',
+    });
+  }
+  return { description: `${section.name} at ${distanceKm} km`, sectionIndex: section.index, distanceKm };
+}
+
+/** The node of the fault: the bus, or a point of the section's line, split there into two exact pi pieces when inside a piece. */
+function faultNodeOf(corridor: Corridor, state: CaseState, passive: PassiveNetwork, place: ReadPlace): number | null {
+  if ('busIndex' in place) return place.busIndex;
+  const section = corridor.sections[place.sectionIndex]!;
+  const { network } = passive.built;
+  const pieceIndex = network.branches.findIndex(
+    (branch) =>
+      branch.tag.kind === 'line' &&
+      branch.tag.sectionIndex === place.sectionIndex &&
+      place.distanceKm >= branch.tag.offsetKm - 1e-9 &&
+      place.distanceKm <= branch.tag.offsetKm + branch.tag.lengthKm + 1e-9,
+  );
+  const piece = network.branches[pieceIndex];
+  if (piece?.tag.kind !== 'line') return null;
+  const intoPieceKm = place.distanceKm - piece.tag.offsetKm;
+  if (intoPieceKm <= 1e-9) return piece.from;
+  if (piece.tag.lengthKm - intoPieceKm <= 1e-9) return piece.to;
+  const circuits = state.circuitsInService[place.sectionIndex] as number;
+  const node = network.addNode();
+  const pieceBranch = (from: number, to: number, lengthKm: number, offsetKm: number) => {
+    const pi = linePiS(section, lengthKm);
+    return {
+      from,
+      to,
+      seriesS: pi.seriesS.mul(circuits),
+      shuntFromS: pi.shuntS.mul(circuits),
+      shuntToS: pi.shuntS.mul(circuits),
+      tag: { kind: 'line' as const, sectionIndex: place.sectionIndex, lengthKm, offsetKm },
+    };
+  };
+  network.branches.splice(
+    pieceIndex,
+    1,
+    pieceBranch(piece.from, node, intoPieceKm, piece.tag.offsetKm),
+    pieceBranch(node, piece.to, piece.tag.lengthKm - intoPieceKm, place.distanceKm),
+  );
+  passive.kept.push(node);
+  return node;
 }
 
 function readProtectiveLevels(value: unknown, names: Set<string>): Map<string, number> {

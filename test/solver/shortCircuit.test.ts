@@ -1,6 +1,6 @@
 import { Complex } from 'complex.js';
 import { describe, expect, test } from 'vitest';
-import { corridorBusFault, varistorEnergy, type CorridorInput } from '../../src/solver/index.ts';
+import { corridorFault, varistorEnergy, type CorridorInput } from '../../src/solver/index.ts';
 import { perKm } from './corridorSupport.ts';
 
 const NOMINAL_KV = 400;
@@ -41,23 +41,23 @@ function feederImpedanceOhm(): Complex {
 }
 
 /** The exact long-line ABCD (Glover, Sarma & Overbye, Power System Analysis and Design, 5th ed., §5.2). */
-function lineAbcd(susceptanceUsPerKm = perKm.shuntSusceptanceUsPerKm): { a: Complex; b: Complex; c: Complex } {
+function lineAbcd(susceptanceUsPerKm = perKm.shuntSusceptanceUsPerKm, lengthKm = LENGTH_KM): { a: Complex; b: Complex; c: Complex } {
   const z = new Complex(perKm.seriesResistanceOhmPerKm, perKm.seriesReactanceOhmPerKm);
   const y = new Complex(0, susceptanceUsPerKm * 1e-6);
-  const gammaL = z.mul(y).sqrt().mul(LENGTH_KM);
+  const gammaL = z.mul(y).sqrt().mul(lengthKm);
   const surgeImpedance = z.div(y).sqrt();
   return { a: gammaL.cosh(), b: surgeImpedance.mul(gammaL.sinh()), c: gammaL.sinh().div(surgeImpedance) };
 }
 
 const sourcePhaseV = (C_MAX * NOMINAL_KV * 1e3) / Math.sqrt(3);
 
-describe('bus faults on a corridor case', () => {
+describe('faults on a corridor case', () => {
   test('at the feeding bus, draws the feeder in parallel with the open line, Zc coth(gamma l), at c U_n / sqrt 3 (IEC 60909-0)', () => {
     const { a, c } = lineAbcd();
     const feeder = feederImpedanceOhm();
     const openLine = a.div(c);
     const parallel = feeder.mul(openLine).div(feeder.add(openLine));
-    const fault = corridorBusFault({ corridor: corridorWith(), case: radialCase, faultBus: 'Tarrow' });
+    const fault = corridorFault({ corridor: corridorWith(), case: radialCase, at: { bus: 'Tarrow' } });
     expect(fault.faultCurrentKa).toBeCloseTo(sourcePhaseV / parallel.abs() / 1e3, 6);
     // The feeder alone would give the stated strength; the open line is capacitive, so in parallel it lowers the current a little.
     expect(fault.shortCircuitMva).toBeLessThan(SYSTEM_MVA);
@@ -68,7 +68,7 @@ describe('bus faults on a corridor case', () => {
     const { a, b, c } = lineAbcd();
     const feeder = feederImpedanceOhm();
     const thevenin = b.add(feeder.mul(a)).div(a.add(feeder.mul(c)));
-    const fault = corridorBusFault({ corridor: corridorWith(), case: radialCase, faultBus: 'Quill End' });
+    const fault = corridorFault({ corridor: corridorWith(), case: radialCase, at: { bus: 'Quill End' } });
     expect(fault.faultCurrentKa).toBeCloseTo(sourcePhaseV / thevenin.abs() / 1e3, 6);
   });
 
@@ -76,7 +76,7 @@ describe('bus faults on a corridor case', () => {
     const reactanceOhm = 40;
     const { a, b } = lineAbcd();
     const feederAndBank = feederImpedanceOhm().add(new Complex(0, -reactanceOhm));
-    const fault = corridorBusFault({ corridor: corridorWith({ segment: { reactanceOhm } }), case: radialCase, faultBus: 'Quill End' });
+    const fault = corridorFault({ corridor: corridorWith({ segment: { reactanceOhm } }), case: radialCase, at: { bus: 'Quill End' } });
     const segment = fault.segments[0]!;
     expect(segment.inserted).toBe(true);
     expect(segment.currentA).toBeCloseTo(sourcePhaseV / b.add(feederAndBank.mul(a)).abs(), 3);
@@ -90,10 +90,10 @@ describe('bus faults on a corridor case', () => {
     const reactanceOhm = 40;
     const protectiveLevelKvPeak = 150;
     const susceptanceUsPerKm = 1e-4;
-    const fault = corridorBusFault({
+    const fault = corridorFault({
       corridor: corridorWith({ segment: { reactanceOhm }, susceptanceUsPerKm }),
       case: radialCase,
-      faultBus: 'Quill End',
+      at: { bus: 'Quill End' },
       protectiveLevelsKvPeak: { SC1: protectiveLevelKvPeak },
     });
     const loop = feederImpedanceOhm().add(new Complex(perKm.seriesResistanceOhmPerKm, perKm.seriesReactanceOhmPerKm).mul(LENGTH_KM));
@@ -114,28 +114,64 @@ describe('bus faults on a corridor case', () => {
   });
 
   test('gives a bypassed segment no current', () => {
-    const fault = corridorBusFault({
+    const fault = corridorFault({
       corridor: corridorWith({ segment: { reactanceOhm: 40 } }),
       case: { ...radialCase, bypassed: ['SC1'] },
-      faultBus: 'Quill End',
+      at: { bus: 'Quill End' },
     });
     expect(fault.segments[0]).toMatchObject({ inserted: false, currentA: 0, linearCurrentA: 0 });
   });
 
   test('refuses a fault bus the corridor does not have, naming the buses it has', () => {
-    expect(() => corridorBusFault({ corridor: corridorWith(), case: radialCase, faultBus: 'Quil End' })).toThrow(
-      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'faultBus', allowedRange: "one of 'Tarrow', 'Quill End'" }),
+    expect(() => corridorFault({ corridor: corridorWith(), case: radialCase, at: { bus: 'Quil End' } })).toThrow(
+      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'at.bus', allowedRange: "one of 'Tarrow', 'Quill End'" }),
     );
   });
 
   test('refuses a protective level for a segment the corridor does not have', () => {
     expect(() =>
-      corridorBusFault({
+      corridorFault({
         corridor: corridorWith({ segment: { reactanceOhm: 40 } }),
         case: radialCase,
-        faultBus: 'Quill End',
+        at: { bus: 'Quill End' },
         protectiveLevelsKvPeak: { SC2: 150 },
       }),
     ).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'protectiveLevelsKvPeak.SC2', allowedRange: "one of 'SC1'" }));
+  });
+
+  test('inside a radial line, draws the feeder and the line up to the fault in parallel with the open rest of the line', () => {
+    const distanceKm = 120;
+    const toFault = lineAbcd(perKm.shuntSusceptanceUsPerKm, distanceKm);
+    const beyond = lineAbcd(perKm.shuntSusceptanceUsPerKm, LENGTH_KM - distanceKm);
+    const feeder = feederImpedanceOhm();
+    const left = toFault.b.add(feeder.mul(toFault.a)).div(toFault.a.add(feeder.mul(toFault.c)));
+    const right = beyond.a.div(beyond.c);
+    const thevenin = left.mul(right).div(left.add(right));
+    const fault = corridorFault({ corridor: corridorWith(), case: radialCase, at: { section: 'Tarrow - Quill End', distanceKm } });
+    expect(fault.faultAt).toBe('Tarrow - Quill End at 120 km');
+    expect(fault.faultCurrentKa).toBeCloseTo(sourcePhaseV / thevenin.abs() / 1e3, 6);
+  });
+
+  test('on the line side of a sending-end bank, drives the whole feeder current through the bank (an internal fault)', () => {
+    const reactanceOhm = 40;
+    const feederAndBank = feederImpedanceOhm().add(new Complex(0, -reactanceOhm));
+    const { a, c } = lineAbcd();
+    const openLine = a.div(c);
+    const fault = corridorFault({
+      corridor: corridorWith({ segment: { reactanceOhm } }),
+      case: radialCase,
+      at: { section: 'Tarrow - Quill End', distanceKm: 0 },
+    });
+    expect(fault.segments[0]!.currentA).toBeCloseTo(sourcePhaseV / feederAndBank.abs(), 2);
+    const thevenin = feederAndBank.mul(openLine).div(feederAndBank.add(openLine));
+    expect(fault.faultCurrentKa).toBeCloseTo(sourcePhaseV / thevenin.abs() / 1e3, 6);
+  });
+
+  test('refuses a fault inside a section with both of its circuits in service', () => {
+    const corridor = corridorWith();
+    const double = { ...corridor, sections: corridor.sections.map((section) => ({ ...section, circuits: 2 as const })) };
+    expect(() => corridorFault({ corridor: double, case: radialCase, at: { section: 'Tarrow - Quill End', distanceKm: 100 } })).toThrow(
+      expect.objectContaining({ code: 'INCONSISTENT_QUANTITIES', quantity: 'at.section' }),
+    );
   });
 });
