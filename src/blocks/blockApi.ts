@@ -1,5 +1,7 @@
-// The block API: the globals a calculation block calls (inputs, result, table, criterion, caution, chart, figure, solver).
+// The block API: the globals a calculation block calls (inputs, result, table, caseTable, criterion, caution, chart, figure, solver).
 import type { InputData } from '../execute/protocol.ts';
+import { type CaseTableLayout, caseTableContent, unsolvedNotes } from './caseTable.ts';
+import type { CorridorCaseTable } from '../solver/cases.ts';
 import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../execute/records.ts';
 import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from './format.ts';
 import { type UnitProblem, convertQuantity, unitProblem } from '../study/units.ts';
@@ -102,6 +104,12 @@ export interface TableOptions {
 
 export interface ChartOptions {
   caption: string;
+}
+
+export interface CaseTableOptions {
+  caption?: string;
+  /** Cases as rows (the default: bus voltages, highest along the lines, angle, SVC outputs, segment currents) or buses as rows. */
+  layout?: CaseTableLayout;
 }
 
 export interface Recorder {
@@ -324,6 +332,28 @@ export function createBlockApi(
     emit({ kind: 'table', ...(caption ? { caption } : {}), columns, rows: body });
   }
 
+  /** The cases of solveCorridorCases as one numbered table; a case without a solution keeps its row, and its reason is printed beneath. */
+  function caseTable(cases: CorridorCaseTable, options: CaseTableOptions = {}): void {
+    if (!cases || typeof cases !== 'object' || !Array.isArray((cases as { cases?: unknown }).cases)) {
+      throw new BlockApiError(
+        'case-table',
+        'caseTable() needs the result of solver.solveCorridorCases',
+        'pass e.g. caseTable(solver.solveCorridorCases({ corridor, cases }))',
+      );
+    }
+    const layout = options.layout ?? 'cases-as-rows';
+    if (layout !== 'cases-as-rows' && layout !== 'buses-as-rows') {
+      throw new BlockApiError(
+        'case-table',
+        `caseTable() layout "${String(layout)}" is not one of "cases-as-rows", "buses-as-rows"`,
+        'leave it out for cases as rows',
+      );
+    }
+    const content = caseTableContent(cases, layout);
+    table(content.rows, { ...(options.caption === undefined ? {} : { caption: options.caption }), columns: content.columns });
+    for (const note of unsolvedNotes(cases)) emit({ kind: 'text', text: note });
+  }
+
   function chart(spec: object, options: ChartOptions): void {
     if (!options || typeof options.caption !== 'string' || options.caption.trim() === '') {
       throw new BlockApiError(
@@ -373,7 +403,7 @@ export function createBlockApi(
   // The classes of what the API returns and throws: their prototypes are reachable from every instance.
   freezeDeep([Figure, InputValue, BlockApiError]);
   // Deeply: the functions with their own properties, the namespaces, the inputs.
-  return freezeDeep({ inputs, result, criterion, caution, table, chart, figure, solver, charts: { ...chartModule }, console });
+  return freezeDeep({ inputs, result, criterion, caution, table, caseTable, chart, figure, solver, charts: { ...chartModule }, console });
 }
 
 /** Every exported solver function, recorded in the calculation log when a block calls it. */

@@ -228,6 +228,157 @@ export function loadabilityChart(input: LoadabilityInput): ChartSpec {
   return frame(input.title ?? 'Line loadability versus length', layers);
 }
 
+export interface CorridorProfileInput {
+  /** The cases of solveCorridorCases (or some of them); unsolved cases are left out of the chart. */
+  cases: readonly {
+    label: string;
+    solved: boolean;
+    sections?: readonly { profile: { corridorKm: readonly number[]; voltagePu: readonly number[] } }[];
+  }[];
+  bandPu?: { min: number; max: number };
+  title?: string;
+}
+
+/** The voltage along the whole corridor in each solved case, from the sections' sampled profiles (a series segment shows as a step). */
+export function corridorProfileChart(input: CorridorProfileInput): ChartSpec {
+  const solved = nonEmpty(input.cases, 'cases').filter((solution) => solution.solved && solution.sections);
+  return voltageProfileChart({
+    cases: nonEmpty(solved, 'cases (solved)').map((solution) => ({
+      label: solution.label,
+      points: solution.sections!.flatMap((section) =>
+        section.profile.corridorKm.map((distanceKm, index) => ({ distanceKm, voltagePu: section.profile.voltagePu[index]! })),
+      ),
+    })),
+    ...(input.bandPu ? { bandPu: input.bandPu } : {}),
+    title: input.title ?? 'Voltage along the corridor by case',
+  });
+}
+
+export interface BusVoltagesInput {
+  cases: readonly { label: string; solved: boolean; buses?: readonly { name: string; voltagePu: number }[] }[];
+  bandPu?: { min: number; max: number };
+  title?: string;
+}
+
+/** Each bus's voltage in each solved case: buses in corridor order along the axis, one styled series per case. */
+export function busVoltagesChart(input: BusVoltagesInput): ChartSpec {
+  const solved = nonEmpty(input.cases, 'cases').filter((solution) => solution.solved && solution.buses);
+  const labels = seriesLabels(nonEmpty(solved, 'cases (solved)'), 'cases');
+  const busOrder = solved[0]!.buses!.map((bus) => bus.name);
+  const values = solved.flatMap((solution, caseIndex) =>
+    solution.buses!.map((bus, order) => ({
+      series: solution.label,
+      order,
+      bus: bus.name,
+      voltagePu: finite(bus.voltagePu, `cases[${caseIndex}].buses[${order}].voltagePu`),
+    })),
+  );
+  const x = { field: 'bus', type: 'ordinal', title: 'Bus', sort: busOrder, axis: { labelAngle: 0 } };
+  const y = { field: 'voltagePu', type: 'quantitative', title: 'Voltage (pu)', scale: { zero: false } };
+  const layers: ChartSpec[] = [];
+  if (input.bandPu) {
+    const band = orderedRange(input.bandPu.min, input.bandPu.max, 'bandPu');
+    layers.push(horizontalBandLayer(band, 'Voltage (pu)', `allowed ${band.min}–${band.max} pu`));
+  }
+  layers.push(seriesLayer(values, labels, x, y, 'Case'));
+  return frame(input.title ?? 'Bus voltages by case', layers);
+}
+
+export interface FrequencyScanChartInput {
+  /** The result of frequencyScan or corridorFrequencyScan. */
+  scan: {
+    frequencyHz: number;
+    points: { frequencyHz: readonly number[]; reactanceOhm: readonly number[]; resistanceOhm: readonly number[] };
+    seriesResonances: readonly { frequencyHz: number }[];
+  };
+  torsionalModesHz?: readonly number[];
+  /** The reactance axis is cut at plus and minus this; by default at twice the largest reactance away from the poles. */
+  reactanceLimitOhm?: number;
+  title?: string;
+}
+
+/**
+ * Driving-point reactance and resistance against frequency, the series resonances marked, and at f0 - f_m for each torsional mode
+ * f_m a dashed rule: an electrical resonance near a rule would excite that mode.
+ */
+export function frequencyScanChart(input: FrequencyScanChartInput): ChartSpec {
+  const { points } = input.scan;
+  const f0 = positive(input.scan.frequencyHz, 'scan.frequencyHz', 'the power frequency, 50 or 60 Hz');
+  const count = nonEmpty(points.frequencyHz, 'scan.points.frequencyHz').length;
+  const reactances = points.reactanceOhm.map((value, index) => finite(value, `scan.points.reactanceOhm[${index}]`));
+  // Near a pole the reactance runs off to infinity; the middle of the sorted magnitudes tells the scale of the rest.
+  const sorted = reactances.map(Math.abs).sort((a, b) => a - b);
+  const limit =
+    input.reactanceLimitOhm !== undefined
+      ? positive(input.reactanceLimitOhm, 'reactanceLimitOhm', 'the reactance axis runs from minus to plus this')
+      : Math.max(4 * (sorted[Math.floor(sorted.length / 2)] ?? 1), 1);
+  const values = Array.from({ length: count }, (_, order) => [
+    { series: 'reactance', order, frequencyHz: points.frequencyHz[order]!, ohm: Math.max(-limit, Math.min(limit, reactances[order]!)) },
+    {
+      series: 'resistance',
+      order,
+      frequencyHz: points.frequencyHz[order]!,
+      ohm: Math.max(-limit, Math.min(limit, finite(points.resistanceOhm[order]!, `scan.points.resistanceOhm[${order}]`))),
+    },
+  ]).flat();
+  const x = { field: 'frequencyHz', type: 'quantitative', title: 'Frequency (Hz)' };
+  const y = { field: 'ohm', type: 'quantitative', title: 'Driving-point impedance (ohm)', scale: { domain: [-limit, limit] } };
+  const layers: ChartSpec[] = [seriesLayer(values, ['reactance', 'resistance'], x, y, 'Part')];
+  const resonances = input.scan.seriesResonances.map((resonance, index) => ({
+    frequencyHz: finite(resonance.frequencyHz, `scan.seriesResonances[${index}].frequencyHz`),
+    ohm: 0,
+    note: `${formatNumber(resonance.frequencyHz)} Hz`,
+  }));
+  if (resonances.length > 0) layers.push(annotatedPointsLayer(resonances, 'frequencyHz', 'ohm', 'diamond', 'right'));
+  for (const [index, modeHz] of (input.torsionalModesHz ?? []).entries()) {
+    const complement = f0 - finite(modeHz, `torsionalModesHz[${index}]`);
+    layers.push(verticalRuleLayer(complement, `f0 - ${formatNumber(modeHz)} Hz`, x.title));
+  }
+  return frame(input.title ?? 'Frequency scan: impedance seen from the generator', layers);
+}
+
+export interface CostComparisonInput {
+  /** The result of capitalisedCostComparison. */
+  comparison: {
+    costUnit: string;
+    options: readonly { label: string; equipmentCost: number; presentValueOfLosses: number; presentValueOfMaintenance: number }[];
+  };
+  title?: string;
+}
+
+/** Capitalised cost of each option as stacked bars: equipment, present value of losses, present value of maintenance. */
+export function costComparisonChart(input: CostComparisonInput): ChartSpec {
+  const parts = ['equipment', 'losses (present value)', 'maintenance (present value)'];
+  const options = nonEmpty(input.comparison.options, 'comparison.options');
+  const values = options.flatMap((option, index) => [
+    { option: option.label, part: parts[0], cost: finite(option.equipmentCost, `comparison.options[${index}].equipmentCost`), stackOrder: 0 },
+    {
+      option: option.label,
+      part: parts[1],
+      cost: finite(option.presentValueOfLosses, `comparison.options[${index}].presentValueOfLosses`),
+      stackOrder: 1,
+    },
+    {
+      option: option.label,
+      part: parts[2],
+      cost: finite(option.presentValueOfMaintenance, `comparison.options[${index}].presentValueOfMaintenance`),
+      stackOrder: 2,
+    },
+  ]);
+  return frame(input.title ?? 'Capitalised cost of each option', [
+    {
+      data: { values },
+      mark: { type: 'bar' },
+      encoding: {
+        y: { field: 'option', type: 'nominal', title: 'Option', sort: options.map((option) => option.label) },
+        x: { field: 'cost', type: 'quantitative', title: `Capitalised cost (${input.comparison.costUnit})`, stack: 'zero' },
+        color: { field: 'part', type: 'nominal', title: 'Part', scale: { domain: parts, range: [...seriesColours.slice(0, 3)] } },
+        order: { field: 'stackOrder', type: 'quantitative' },
+      },
+    },
+  ]);
+}
+
 function frame(title: string, layers: ChartSpec[], subtitle?: string): ChartSpec {
   return {
     title: subtitle === undefined ? title : { text: title, subtitle },
@@ -317,6 +468,22 @@ function referenceRuleLayer(axis: 'y', value: number, note: string, title: strin
       {
         mark: { type: 'text', align: 'right', baseline: 'bottom', dx: -4, dy: -2, fontSize: 9, color: referenceInk, x: 'width' },
         encoding: { [axis]: { field: 'value', type: 'quantitative', title }, text: { field: 'note' } },
+      },
+    ],
+  };
+}
+
+function verticalRuleLayer(value: number, note: string, title: string): ChartSpec {
+  return {
+    data: { values: [{ value, note }] },
+    layer: [
+      {
+        mark: { type: 'rule', color: referenceInk, strokeDash: [4, 3], strokeWidth: 1 },
+        encoding: { x: { field: 'value', type: 'quantitative', title } },
+      },
+      {
+        mark: { type: 'text', angle: 270, align: 'right', baseline: 'bottom', dx: -4, dy: -2, fontSize: 9, color: referenceInk, y: 0 },
+        encoding: { x: { field: 'value', type: 'quantitative', title }, text: { field: 'note' } },
       },
     ],
   };

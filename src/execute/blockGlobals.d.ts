@@ -15,6 +15,7 @@ declare global {
   const criterion: Api.BlockApi['criterion'];
   const caution: Api.BlockApi['caution'];
   const table: Api.BlockApi['table'];
+  const caseTable: Api.BlockApi['caseTable'];
   const chart: Api.BlockApi['chart'];
   const figure: Api.BlockApi['figure'];
   const solver: typeof SolverModule;

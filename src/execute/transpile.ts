@@ -7,7 +7,7 @@ import type { CalcBlock, InlineExpression, Study } from '../study/model.ts';
 import type { Declaration, DeclarationKind } from './protocol.ts';
 
 /** Names the block API owns; a block declaring one would hide it from every later block. */
-const RESERVED_NAMES = ['inputs', 'result', 'criterion', 'caution', 'table', 'chart', 'figure', 'solver', 'charts', 'console'] as const;
+const RESERVED_NAMES = ['inputs', 'result', 'criterion', 'caution', 'table', 'caseTable', 'chart', 'figure', 'solver', 'charts', 'console'] as const;
 
 export interface TranspiledBlock {
   blockIndex: number;

@@ -4,7 +4,7 @@ import type { EffectiveInput } from '../study/inputs.ts';
 import type { Study } from '../study/model.ts';
 import type { ExecutionOutcome, LocatedRecord } from '../execute/session.ts';
 import type { CautionRecord, CriterionRecord, ResultRecord, SolverCallRecord } from '../execute/records.ts';
-import { STANDING_CAUTIONS } from './cautions.ts';
+import { STANDING_CAUTIONS, earnedCautions } from './cautions.ts';
 import type { Provenance } from './provenance.ts';
 
 export interface StudyRun {
@@ -34,7 +34,8 @@ export function cautionsOf(run: StudyRun): CautionEntry[] {
     standing: false,
     ...(record.at ? { at: record.at } : {}),
   }));
-  return [...STANDING_CAUTIONS.map((caution) => ({ text: caution.text, standing: true })), ...fromStudy];
+  const catalogue = [...STANDING_CAUTIONS, ...earnedCautions(recordsOf(run, 'solver-call'))];
+  return [...catalogue.map((caution) => ({ text: caution.text, standing: true })), ...fromStudy];
 }
 
 export interface ResultsDocument {

@@ -72,8 +72,8 @@ function corridorChain(corridor: Corridor, state: CaseState): { elements: ScanEl
       elements.push({ kind: unit.kind, qMvar: unit.qMvar, ratedVoltageKv: unit.ratedVoltageKv });
     }
     if (bus.svc && state.inService(bus.svc.name))
-      omissions.push(`the SVC ${bus.svc.name} (its controls set its subsynchronous behaviour; study it with its maker's model)`);
-    for (const load of bus.loads) if (state.inService(load.name)) omissions.push(`the load ${load.name}`);
+      omissions.push(`${bus.svc.name} is left out: its controls set its subsynchronous behaviour; study it with its maker's model`);
+    for (const load of bus.loads) if (state.inService(load.name)) omissions.push(`the load ${load.name} is left out`);
     const section = corridor.sections[index];
     if (!section) return;
     const circuits = state.circuitsInService[section.index] as number;

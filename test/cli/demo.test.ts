@@ -9,7 +9,7 @@ describe('the demo study, end to end', async () => {
   const first = scratchFolder('kvarbook-demo-');
   const second = scratchFolder('kvarbook-demo-');
   const runs = [kvarbook(['run', DEMO, '--out', first], first), kvarbook(['run', DEMO, '--out', second], second)];
-  const results = JSON.parse(readFileSync(join(first, 'CBX-RC-001-r2.results.json'), 'utf8'));
+  const results = JSON.parse(readFileSync(join(first, 'CBX-RC-001-r3.results.json'), 'utf8'));
   const figure = (name: string) => results.results.find((result: { name: string }) => result.name === name)?.value as number;
 
   it('runs with its blocks type-checked and meets every criterion', () => {
@@ -20,19 +20,31 @@ describe('the demo study, end to end', async () => {
   });
 
   it('gives byte-identical report and results when run twice', () => {
-    for (const name of ['CBX-RC-001-r2.html', 'CBX-RC-001-r2.results.json']) {
+    for (const name of ['CBX-RC-001-r3.html', 'CBX-RC-001-r3.results.json']) {
       expect(readFileSync(join(second, name)).equals(readFileSync(join(first, name)))).toBe(true);
     }
   });
 
   it('draws its five charts into the report as inline SVG', () => {
-    const html = readFileSync(join(first, 'CBX-RC-001-r2.html'), 'utf8');
+    const html = readFileSync(join(first, 'CBX-RC-001-r3.html'), 'utf8');
     expect(html.match(/<figure class="chart"><svg/g)).toHaveLength(5);
     expect(html).not.toMatch(/NaN|Infinity/);
   });
 
-  it('finds the open-end rise of its nearly lossless line close to 1/cos(beta l)', () => {
-    // Physical identity: the lossless open-end ratio is 1/cos(beta l); the demo line's resistance moves it by well under 0.1 %.
-    expect(Math.abs(figure('Open-end voltage, no reactors') / figure('Lossless estimate 1/cos(beta l)') - 1)).toBeLessThan(1e-3);
+  it('finds an electrical length that puts the wave speed on its line just below the speed of light', () => {
+    // Physical check: on an overhead line the wave travels at 0.97 to 1.0 times the speed of light (common practice), so the
+    // electrical length of 380 km at 50 Hz lies between 360 deg x 50 Hz x 380 km / c and that divided by 0.97.
+    const atLightSpeedDeg = (360 * 50 * 380e3) / 299_792_458;
+    expect(figure('Electrical length')).toBeGreaterThan(atLightSpeedDeg);
+    expect(figure('Electrical length')).toBeLessThan(atLightSpeedDeg / 0.97);
+  });
+
+  it('carries the export within the angle limit only with the series capacitor in, and names the reduced export without it', () => {
+    // Independent of the solver: a line of 380 km x 0.269 ohm/km carries P = V^2 sin(delta) / X at most; at 30 deg without the bank
+    // that is about 780 MW, well short of the 1100 MW export.
+    const lineOnlyMw = (400 ** 2 * Math.sin(Math.PI / 6)) / (380 * 0.2691);
+    expect(figure('Export with the series capacitor bypassed')).toBeLessThan(1100);
+    expect(Math.abs(figure('Export with the series capacitor bypassed') / lineOnlyMw - 1)).toBeLessThan(0.1);
+    expect(figure('Angle across the corridor during the export')).toBeLessThanOrEqual(30);
   });
 });
