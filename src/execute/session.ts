@@ -13,6 +13,7 @@ import { childBundlePath } from './childBundle.ts';
 import { type OutputBudget, sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
 import { TEXT_PROBLEM_HINTS, outputTextProblem } from './outputText.ts';
 import { DENIAL_MARK } from './child/lockDown.ts';
+import { type DiagnosticCode, isDiagnosticCode } from '../diagnostics/codes.ts';
 
 export type LocatedRecord = Exclude<BlockRecord, never> & { at?: SourceLocation };
 
@@ -267,13 +268,33 @@ function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorRep
       hint: DENIED_HINT,
     };
   }
+  const code: DiagnosticCode = error.code === DENIAL_MARK ? 'block-denied' : error.code && isDiagnosticCode(error.code) ? error.code : 'block-threw';
+  // A code of the block's own (or of Node's) is not in the catalogue; the message keeps it.
+  const ownCode = code === 'block-threw' && error.code ? ` (code ${error.code})` : '';
   return {
-    code: error.code === DENIAL_MARK ? 'block-denied' : error.code ? `block-${error.code}` : 'block-threw',
-    message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}`,
+    code,
+    message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}${ownCode}`,
     at,
     excerpt: excerptAround(study.source, mapped.line, mapped.column),
     hint: error.hint ?? (error.code === DENIAL_MARK ? DENIED_HINT : HOST_FRAME_HINT),
+    ...valueFields(error),
   };
+}
+
+function valueFields(error: BlockErrorReport): Pick<Diagnostic, 'quantity' | 'expected' | 'actual'> {
+  return {
+    ...(error.quantity !== undefined ? { quantity: error.quantity } : {}),
+    ...(error.expected !== undefined ? { expected: error.expected } : {}),
+    ...(error.actual !== undefined ? { actual: error.actual } : {}),
+  };
+}
+
+/** An inline value's problem: the block API's text problems under their inline names, kvarbook's own codes as they are. */
+function inlineCode(error: BlockErrorReport): DiagnosticCode {
+  if (!error.code) return 'inline-failed';
+  const asInline = error.code.replace(/^block-/, 'inline-');
+  if (isDiagnosticCode(asInline) && asInline.startsWith('inline-')) return asInline;
+  return isDiagnosticCode(error.code) ? error.code : 'inline-failed';
 }
 
 /** What the child's own guards (no code from strings, no module loader in the sandbox) refused, in the reader's words. */
@@ -288,13 +309,14 @@ function refusedCapability(error: BlockErrorReport): string | undefined {
 function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
   const notDefined = /(\w+) is not defined/.exec(error.message);
   return {
-    code: notDefined ? 'inline-undefined' : error.code && error.code in TEXT_PROBLEM_HINTS ? `inline-${error.code}` : 'inline-failed',
+    code: notDefined ? 'inline-undefined' : inlineCode(error),
     message: notDefined
       ? `the inline value {{ ${inline.inline.expression} }} refers to "${notDefined[1]}", which no block above it defines`
       : `the inline value {{ ${inline.inline.expression} }} failed: ${error.message}`,
     at: inline.inline.at,
     excerpt: excerptAround(study.source, inline.inline.at.line, inline.inline.at.column),
     hint: error.hint ?? 'an inline value sees the names declared in the blocks above it, and the inputs as inputs.<name>',
+    ...valueFields(error),
   };
 }
 

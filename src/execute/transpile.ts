@@ -3,6 +3,7 @@ import { transformSync, type Message } from 'esbuild';
 import { parse, type Node as AcornNode, type Pattern, type Program } from 'acorn';
 import { TraceMap, originalPositionFor } from '@jridgewell/trace-mapping';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import type { DiagnosticCode } from '../diagnostics/codes.ts';
 import type { CalcBlock, InlineExpression, Study } from '../study/model.ts';
 import type { Declaration, DeclarationKind } from './protocol.ts';
 
@@ -63,7 +64,7 @@ export function transpileBlocks(study: Study): TranspiledBlock[] {
   return out;
 }
 
-function esbuildDiagnostics(study: Study, firstLine: number, messages: Message[], code: string): Diagnostic[] {
+function esbuildDiagnostics(study: Study, firstLine: number, messages: Message[], code: DiagnosticCode): Diagnostic[] {
   return messages.map((message) => {
     const line = (message.location?.line ?? 1) + firstLine - 1;
     const column = (message.location?.column ?? 0) + 1;

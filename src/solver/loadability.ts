@@ -103,7 +103,7 @@ export function lineLoadability(
       (SQRT3 * nominalV * requireNumber('thermalLimitA', record.thermalLimitA, { min: 0, max: 1e5, minInclusive: false, unit: 'A' }, HINT)) / 1e6;
   } else {
     throw new SolverDomainError({
-      code: 'MISSING_QUANTITY',
+      code: 'missing-quantity',
       quantity: 'thermalLimitMw (or thermalLimitA)',
       value: null,
       allowedRange: '(0, 100000] MW',

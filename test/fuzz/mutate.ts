@@ -2,6 +2,7 @@
 import fc from 'fast-check';
 import type { Diagnostic } from '../../src/diagnostics/diagnostic.ts';
 import { StudyFailure } from '../../src/diagnostics/diagnostic.ts';
+import { isDiagnosticCode } from '../../src/diagnostics/codes.ts';
 import { effectiveInputs } from '../../src/study/inputs.ts';
 import { parseStudy } from '../../src/study/parse.ts';
 import { transpileBlocks, transpileInlines } from '../../src/execute/transpile.ts';
@@ -147,7 +148,7 @@ const STACK_FRAME = /\n\s+at \S|node:internal|node_modules\/|\/src\/[a-z]+\//;
 
 /** Why a diagnostic is not one a study author can act on, or undefined when it is. */
 export function diagnosticFlaw(diagnostic: Diagnostic, source: string): string | undefined {
-  if (typeof diagnostic.code !== 'string' || diagnostic.code === '' || diagnostic.code === 'internal') return `code "${diagnostic.code}"`;
+  if (typeof diagnostic.code !== 'string' || !isDiagnosticCode(diagnostic.code) || diagnostic.code === 'internal') return `code "${diagnostic.code}"`;
   if (typeof diagnostic.message !== 'string' || diagnostic.message.trim() === '') return 'no message';
   for (const text of [diagnostic.message, diagnostic.hint ?? '', diagnostic.excerpt ?? '']) {
     if (STACK_FRAME.test(text)) return `internal detail in "${text.slice(0, 200)}"`;

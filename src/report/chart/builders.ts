@@ -84,7 +84,7 @@ export interface PowerAngleInput {
 export function stabilityMarginPercent(maxPowerMw: number, operatingPowerMw: number): number {
   finite(operatingPowerMw, 'operatingPoint.pMw');
   if (!Number.isFinite(maxPowerMw) || maxPowerMw <= 0) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity: 'maxPowerMw',
       value: maxPowerMw,
       allowed: 'a finite power greater than 0 MW',
@@ -92,7 +92,7 @@ export function stabilityMarginPercent(maxPowerMw: number, operatingPowerMw: num
     });
   }
   if (operatingPowerMw > maxPowerMw) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity: 'operatingPoint.pMw',
       value: operatingPowerMw,
       allowed: `at most maxPowerMw = ${maxPowerMw} MW`,
@@ -171,7 +171,7 @@ export interface SvcCharacteristicCorners {
 export function svcCharacteristicCorners(input: SvcCharacteristicInput): SvcCharacteristicCorners {
   const slopePercent = finite(input.slopePercent, 'slopePercent');
   if (slopePercent < 0 || slopePercent >= 100) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity: 'slopePercent',
       value: slopePercent,
       allowed: '0 ≤ slopePercent < 100 (typically 1 to 10 %)',
@@ -183,7 +183,7 @@ export function svcCharacteristicCorners(input: SvcCharacteristicInput): SvcChar
   const inductive = positive(input.bMaxInductivePu, 'bMaxInductivePu', 'e.g. 0.5 on the SVC base');
   const slopeReactancePu = slopePercent / 100;
   if (slopeReactancePu * inductive >= 1) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity: 'slopePercent × bMaxInductivePu / 100',
       value: slopeReactancePu * inductive,
       allowed: 'less than 1, otherwise the slope never meets the inductive limit',
@@ -435,7 +435,7 @@ function seriesLabels(series: readonly { label: string }[], quantity: string): s
   const seen = new Set<string>();
   labels.forEach((label, index) => {
     if (seen.has(label)) {
-      throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+      throw new ChartInputError('chart-input-out-of-range', {
         quantity: `${quantity}[${index}].label`,
         value: label,
         allowed: 'labels that are unique within the chart',
@@ -449,7 +449,7 @@ function seriesLabels(series: readonly { label: string }[], quantity: string): s
 
 function nonEmpty<T>(items: readonly T[], quantity: string): readonly T[] {
   if (items.length === 0) {
-    throw new ChartInputError('CHART_INPUT_EMPTY', {
+    throw new ChartInputError('chart-input-empty', {
       quantity: `${quantity}.length`,
       value: 0,
       allowed: 'at least one entry',
@@ -461,7 +461,7 @@ function nonEmpty<T>(items: readonly T[], quantity: string): readonly T[] {
 
 function finite(value: number, quantity: string): number {
   if (!Number.isFinite(value)) {
-    throw new ChartInputError('CHART_INPUT_NOT_FINITE', {
+    throw new ChartInputError('chart-input-not-finite', {
       quantity,
       value,
       allowed: 'a finite number',
@@ -473,7 +473,7 @@ function finite(value: number, quantity: string): number {
 
 function positive(value: number, quantity: string, example: string): number {
   if (finite(value, quantity) <= 0) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity,
       value,
       allowed: `greater than 0 (${example})`,
@@ -485,7 +485,7 @@ function positive(value: number, quantity: string, example: string): number {
 
 function orderedRange(min: number, max: number, quantity: string): { min: number; max: number } {
   if (finite(min, `${quantity}.min`) >= finite(max, `${quantity}.max`)) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity: `${quantity}.min`,
       value: min,
       allowed: `less than ${quantity}.max = ${max}`,
