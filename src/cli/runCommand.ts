@@ -34,6 +34,7 @@ export async function produceStudy(
   terminal: Terminal,
 ): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
+  terminal.studyText(studyPath, source);
   return runStudy({
     file: studyPath,
     source,

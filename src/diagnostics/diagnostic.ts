@@ -26,8 +26,6 @@ export interface Diagnostic {
   expected?: string;
   /** The value found (`null`: it is missing). */
   actual?: DiagnosticValue;
-  /** A few lines of the study around the problem, already numbered. */
-  excerpt?: string;
 }
 
 /**
@@ -81,29 +79,4 @@ export function plainValue(value: unknown): DiagnosticValue {
     text = String(value);
   }
   return text.length > 80 ? `${text.slice(0, 77)}...` : text;
-}
-
-/** Numbered lines of `source` around `line` (1-based), with a caret under `column` when known. */
-export function excerptAround(source: string, line: number, column?: number, context = 2): string {
-  const all = linesOf(source);
-  const first = Math.max(1, line - context);
-  const last = Math.min(all.length, line + context);
-  const width = String(last).length;
-  const out: string[] = [];
-  for (let n = first; n <= last; n++) {
-    const marker = n === line ? '>' : ' ';
-    out.push(`  ${marker} ${String(n).padStart(width)} | ${all[n - 1] ?? ''}`);
-    if (n === line && column && column > 0) {
-      out.push(`    ${' '.repeat(width)} | ${' '.repeat(column - 1)}^`);
-    }
-  }
-  return out.join('\n');
-}
-
-/** The lines of the last source excerpted: a study with many problems is split once, not once per problem. */
-let split: { source: string; lines: string[] } | undefined;
-
-function linesOf(source: string): string[] {
-  if (split?.source !== source) split = { source, lines: source.split('\n') };
-  return split.lines;
 }

@@ -2,7 +2,7 @@
 import { fork, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
-import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { RunLimits, Study } from '../study/model.ts';
 import { CEILING_OPTIONS, type GrantedLimits } from './limits.ts';
 import type { EffectiveInput } from '../study/inputs.ts';
@@ -108,9 +108,9 @@ export async function executeStudy(
     }
     const ask = async (message: ParentMessage, at: SourceLocation, what: string, steps = 1): Promise<ChildMessage> => {
       try {
-        return await conversation.ask(message, budget(limits.blockSeconds * steps, studyDeadline), () => timeoutDiagnostic(study, at, what, granted));
+        return await conversation.ask(message, budget(limits.blockSeconds * steps, studyDeadline), () => timeoutDiagnostic(at, what, granted));
       } catch (error) {
-        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(study, at, what, error, granted)]);
+        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(at, what, error, granted)]);
         throw error;
       }
     };
@@ -136,7 +136,7 @@ export async function executeStudy(
       );
       if (reply.type === 'inline-failed') {
         const failed = group.find((inline) => inline.inlineId === reply.inlineId);
-        if (failed) throw new StudyFailure([inlineFailure(study, failed, sanitizeErrorReport(reply.error))]);
+        if (failed) throw new StudyFailure([inlineFailure(failed, sanitizeErrorReport(reply.error))]);
       }
       if (reply.type !== 'inlines-done' || !Array.isArray(reply.texts) || reply.texts.length !== group.length)
         throw new StudyFailure([outOfTurn(first.at)]);
@@ -222,25 +222,23 @@ function raiseHint(granted: GrantedLimits, keys: readonly (keyof RunLimits)[], u
 
 const LIMIT_UNITS: Record<keyof RunLimits, string> = { blockSeconds: 's', studySeconds: 's', heapMb: 'MB' };
 
-function timeoutDiagnostic(study: Study, at: SourceLocation, what: string, granted: GrantedLimits): Diagnostic {
+function timeoutDiagnostic(at: SourceLocation, what: string, granted: GrantedLimits): Diagnostic {
   const { limits } = granted;
   return {
     code: 'time-limit',
     message: `${what} ran longer than its time limit (${limits.blockSeconds} s per block, ${limits.studySeconds} s per study) and was stopped`,
     at,
-    excerpt: excerptAround(study.source, at.line, at.column),
     hint: `look for a loop that never ends; a long calculation ${raiseHint(granted, ['blockSeconds', 'studySeconds'], LIMIT_UNITS)}`,
   };
 }
 
-function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: ChildExit, granted: GrantedLimits): Diagnostic {
+function exitDiagnostic(at: SourceLocation, what: string, exit: ChildExit, granted: GrantedLimits): Diagnostic {
   if (exit.outOfMemory) {
     const { heapMb } = granted.limits;
     return {
       code: 'memory-limit',
       message: `${what} used more memory than its limits allow (${heapMb} MB heap, ${residentLimitBytes(heapMb) / 1024 / 1024} MB in all) and was stopped`,
       at,
-      excerpt: excerptAround(study.source, at.line),
       hint: `look for an array or string that grows without bound; a large study ${raiseHint(granted, ['heapMb'], LIMIT_UNITS)}`,
     };
   }
@@ -248,7 +246,6 @@ function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: Ch
     code: 'child-exit',
     message: `${what} stopped the calculation process (exit code ${exit.exitCode ?? 'none'}${exit.signal ? `, signal ${exit.signal}` : ''})`,
     at,
-    excerpt: excerptAround(study.source, at.line),
     hint: 'a block must not end the process it runs in',
   };
 }
@@ -257,14 +254,13 @@ function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorRep
   const own = error.positions.find((position) => position.blockIndex === block.blockIndex);
   const mapped = own ? studyPositionOf(block, own.line, own.column) : { line: block.block.fenceLine, column: 1 };
   const at = { file: study.file, line: mapped.line, column: mapped.column };
-  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, granted);
+  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(at, `the block at line ${block.block.fenceLine}`, granted);
   const refused = refusedCapability(error);
   if (refused) {
     return {
       code: 'block-denied',
       message: `a calculation block may not ${refused}`,
       at,
-      excerpt: excerptAround(study.source, mapped.line, mapped.column),
       hint: DENIED_HINT,
     };
   }
@@ -275,7 +271,6 @@ function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorRep
     code,
     message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}${ownCode}`,
     at,
-    excerpt: excerptAround(study.source, mapped.line, mapped.column),
     hint: error.hint ?? (error.code === DENIAL_MARK ? DENIED_HINT : HOST_FRAME_HINT),
     ...valueFields(error),
   };
@@ -306,7 +301,7 @@ function refusedCapability(error: BlockErrorReport): string | undefined {
   return undefined;
 }
 
-function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
+function inlineFailure(inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
   const notDefined = /(\w+) is not defined/.exec(error.message);
   return {
     code: notDefined ? 'inline-undefined' : inlineCode(error),
@@ -314,7 +309,6 @@ function inlineFailure(study: Study, inline: TranspiledInline, error: BlockError
       ? `the inline value {{ ${inline.inline.expression} }} refers to "${notDefined[1]}", which no block above it defines`
       : `the inline value {{ ${inline.inline.expression} }} failed: ${error.message}`,
     at: inline.inline.at,
-    excerpt: excerptAround(study.source, inline.inline.at.line, inline.inline.at.column),
     hint: error.hint ?? 'an inline value sees the names declared in the blocks above it, and the inputs as inputs.<name>',
     ...valueFields(error),
   };

@@ -150,7 +150,7 @@ const STACK_FRAME = /\n\s+at \S|node:internal|node_modules\/|\/src\/[a-z]+\//;
 export function diagnosticFlaw(diagnostic: Diagnostic, source: string): string | undefined {
   if (typeof diagnostic.code !== 'string' || !isDiagnosticCode(diagnostic.code) || diagnostic.code === 'internal') return `code "${diagnostic.code}"`;
   if (typeof diagnostic.message !== 'string' || diagnostic.message.trim() === '') return 'no message';
-  for (const text of [diagnostic.message, diagnostic.hint ?? '', diagnostic.excerpt ?? '']) {
+  for (const text of [diagnostic.message, diagnostic.hint ?? '']) {
     if (STACK_FRAME.test(text)) return `internal detail in "${text.slice(0, 200)}"`;
   }
   // Every problem a study run finds lies in the study, so every one must say where.
