@@ -1,6 +1,6 @@
 // The run of one study, stage by stage: parse -> inputs -> transpile -> type-check -> execute -> charts -> render.
 import type { Diagnostic } from './diagnostics/diagnostic.ts';
-import { StudyFailure, excerptAround } from './diagnostics/diagnostic.ts';
+import { StudyFailure } from './diagnostics/diagnostic.ts';
 import { parseStudy } from './study/parse.ts';
 import { type InputOverride, effectiveInputs } from './study/inputs.ts';
 import { transpileBlocks, transpileInlines } from './execute/transpile.ts';
@@ -83,7 +83,6 @@ function requireReportSize(run: StudyRun, report: ReportParts): void {
       code: 'report-too-large',
       message: `the report would be ${(bytes / 1024 / 1024).toFixed(1)} MB; a report may be at most ${OUTPUT_LIMITS.reportBytes / 1024 / 1024} MB${block && line !== 1 ? ` (the block at line ${line} wrote ${(largest.characters / 1024 / 1024).toFixed(1)} MB of it)` : ''}`,
       at: { file: run.study.file, line },
-      excerpt: excerptAround(run.study.source, line),
       hint: 'write less: summarise long series, and keep bulky data out of the study text',
     },
   ]);
@@ -109,7 +108,6 @@ async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
           code: limited ? 'chart-limit' : 'chart-spec',
           message: `chart "${record.caption}" cannot be drawn: ${limited ? `drawing it ${(error as Error).message}` : (error as Error).message}`,
           at,
-          excerpt: excerptAround(run.study.source, at.line, at.column),
           hint: limited
             ? `a chart is drawn within ${HOST_STAGE_LIMITS.chart.callSeconds} s and ${HOST_STAGE_LIMITS.chart.heapMb} MB; draw fewer points or split the chart`
             : 'the specification must be valid Vega-Lite with inline data (values); see the charts.* builders',

@@ -5,20 +5,20 @@ import type { CorridorCaseTable } from '../solver/cases.ts';
 import type { BlockPosition, BlockRecord, ScalarValue, TableColumn } from '../execute/records.ts';
 import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from './format.ts';
 import { type UnitProblem, convertQuantity, unitProblem } from '../study/units.ts';
+import type { CodesStartingWith } from '../diagnostics/codes.ts';
+import { Problem } from '../diagnostics/diagnostic.ts';
 import { summarise } from './summarise.ts';
 import { freezeDeep } from '../execute/child/harden.ts';
 import { OUTPUT_LIMITS } from '../execute/limits.ts';
 import { TEXT_PROBLEM_HINTS, type TextRole, nameKey, outputTextProblem } from '../execute/outputText.ts';
 
 /** A thrown block-API misuse: the message names what and the hint says how to fix it. */
-export class BlockApiError extends Error {
-  readonly code: string;
-  readonly hint: string;
-  constructor(code: string, message: string, hint: string) {
-    super(message);
-    this.name = 'BlockApiError';
-    this.code = code;
-    this.hint = hint;
+export class BlockApiError extends Problem {
+  override readonly name = 'BlockApiError';
+  declare readonly code: CodesStartingWith<'block-' | 'inline-'>;
+  declare readonly hint: string;
+  constructor(code: CodesStartingWith<'block-' | 'inline-'>, message: string, hint: string) {
+    super({ code, message, hint });
   }
 }
 
@@ -63,7 +63,7 @@ export class InputValue {
     } catch (error) {
       const problem = error as UnitProblem;
       throw new BlockApiError(
-        'input-conversion',
+        'block-input-conversion',
         `inputs.${this.name} (${this.toString()}): ${problem.message}`,
         problem.hint ?? 'ask for a unit of the same kind',
       );
@@ -118,10 +118,10 @@ export interface Recorder {
   callerPosition(): BlockPosition | undefined;
 }
 
-function requireName(kind: string, name: unknown): string {
+function requireName(kind: 'result' | 'criterion', name: unknown): string {
   if (typeof name !== 'string' || name.trim() === '') {
     throw new BlockApiError(
-      `${kind}-name`,
+      `block-${kind}-name`,
       `${kind}() needs a name as its first argument, got ${describe(name)}`,
       `write e.g. ${kind}('receivingEndVoltage', ...)`,
     );
@@ -132,19 +132,19 @@ function requireName(kind: string, name: unknown): string {
 /** A text a report shows, refused when it is too long, hides characters or says NaN. */
 export function checkedText(kind: string, what: string, text: string, role: TextRole): string {
   const problem = outputTextProblem(role, text);
-  if (problem) throw new BlockApiError(problem.code, `${kind}: ${what} ${problem.message}`, TEXT_PROBLEM_HINTS[problem.code]);
+  if (problem) throw new BlockApiError(`block-${problem.code}`, `${kind}: ${what} ${problem.message}`, TEXT_PROBLEM_HINTS[problem.code]);
   return text;
 }
 
 function requireUnit(kind: string, name: string, unit: unknown): string {
   if (unit === undefined) return '';
   if (typeof unit !== 'string')
-    throw new BlockApiError('unit', `${kind} "${name}": unit must be text, got ${describe(unit)}`, 'write e.g. { unit: "Mvar" }');
+    throw new BlockApiError('block-unit', `${kind} "${name}": unit must be text, got ${describe(unit)}`, 'write e.g. { unit: "Mvar" }');
   checkedText(kind, 'the unit', unit, 'name');
   const problem = unitProblem(unit);
   if (problem)
     throw new BlockApiError(
-      'unit',
+      'block-unit',
       `${kind} "${name}": unknown unit "${unit}" (${problem})`,
       'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %',
     );
@@ -155,7 +155,7 @@ function requireDigits(kind: string, name: string, digits: unknown): number {
   if (digits === undefined) return DEFAULT_DIGITS;
   if (typeof digits !== 'number' || !Number.isInteger(digits) || digits < 1 || digits > 15) {
     throw new BlockApiError(
-      'digits',
+      'block-digits',
       `${kind} "${name}": digits = ${describe(digits)} is outside the allowed range 1 to 15`,
       'digits is the number of significant figures shown',
     );
@@ -167,7 +167,7 @@ function requireFinite(kind: string, name: string, what: string, value: unknown)
   const number = value instanceof Figure ? value.value : value;
   if (typeof number !== 'number' || !Number.isFinite(number)) {
     throw new BlockApiError(
-      'non-finite',
+      'block-non-finite',
       `${kind} "${name}": ${what} is ${describe(number)}, not a finite number`,
       'a NaN or Infinity usually means a division by zero or a missing input upstream; a report never shows one',
     );
@@ -205,7 +205,7 @@ export function createBlockApi(
     writtenCharacters += JSON.stringify(record).length;
     if (writtenCharacters > OUTPUT_LIMITS.studyOutputBytes) {
       throw new BlockApiError(
-        'output-limit',
+        'block-output-limit',
         `the study has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all (results, tables, charts, printed text), which is all a report holds`,
         'print less (console.log inside a loop adds up), or summarise long series in a table or a chart',
       );
@@ -223,7 +223,7 @@ export function createBlockApi(
     const earlier = resultNames.get(nameKey(name));
     if (earlier !== undefined) {
       throw new BlockApiError(
-        'result-duplicate',
+        'block-result-duplicate',
         earlier === name ? `result "${name}" is recorded twice` : `result "${name}" looks like the result "${earlier}" recorded before`,
         'every named result is a figure a checker verifies: give each its own name',
       );
@@ -233,7 +233,7 @@ export function createBlockApi(
     const digits = requireDigits('result', name, options.digits ?? (value instanceof Figure ? value.digits : undefined));
     if (options.tolerance !== undefined && !(typeof options.tolerance === 'number' && options.tolerance > 0 && options.tolerance < 1)) {
       throw new BlockApiError(
-        'tolerance',
+        'block-tolerance',
         `result "${name}": tolerance = ${describe(options.tolerance)} is outside the allowed range (0, 1)`,
         'tolerance is the relative difference a checker accepts, e.g. 1e-6',
       );
@@ -256,7 +256,7 @@ export function createBlockApi(
     const earlier = criterionNames.get(nameKey(name));
     if (earlier !== undefined) {
       throw new BlockApiError(
-        'criterion-duplicate',
+        'block-criterion-duplicate',
         earlier === name ? `criterion "${name}" is checked twice` : `criterion "${name}" looks like the criterion "${earlier}" checked before`,
         'give each criterion its own name',
       );
@@ -264,7 +264,7 @@ export function createBlockApi(
     const number = requireFinite('criterion', name, 'the value', value);
     if (!limits || (limits.min === undefined && limits.max === undefined)) {
       throw new BlockApiError(
-        'criterion-limits',
+        'block-criterion-limits',
         `criterion "${name}" has neither min nor max`,
         'write e.g. criterion("Receiving-end voltage", v, { min: 0.95, max: 1.05, unit: "pu" })',
       );
@@ -272,7 +272,7 @@ export function createBlockApi(
     const min = limits.min === undefined ? undefined : requireFinite('criterion', name, 'min', limits.min);
     const max = limits.max === undefined ? undefined : requireFinite('criterion', name, 'max', limits.max);
     if (min !== undefined && max !== undefined && min > max)
-      throw new BlockApiError('criterion-limits', `criterion "${name}": min ${min} is above max ${max}`, 'swap min and max');
+      throw new BlockApiError('block-criterion-limits', `criterion "${name}": min ${min} is above max ${max}`, 'swap min and max');
     const unit = requireUnit('criterion', name, limits.unit ?? (value instanceof Figure ? value.unit : undefined));
     const digits = requireDigits('criterion', name, limits.digits ?? (value instanceof Figure ? value.digits : undefined));
     const passed = (min === undefined || number >= min) && (max === undefined || number <= max);
@@ -294,7 +294,7 @@ export function createBlockApi(
   function caution(text: string): void {
     if (typeof text !== 'string' || text.trim() === '')
       throw new BlockApiError(
-        'caution-text',
+        'block-caution-text',
         'caution() needs the text of the caution',
         'write e.g. caution("Energise the reactor before the line ...")',
       );
@@ -303,13 +303,13 @@ export function createBlockApi(
 
   function table(rows: readonly (Record<string, unknown> | readonly unknown[])[], options: TableOptions = {}): void {
     if (!Array.isArray(rows))
-      throw new BlockApiError('table-rows', 'table() needs an array of rows', 'pass e.g. [{ caseName: "light load", vrPu: 1.02 }]');
+      throw new BlockApiError('block-table-rows', 'table() needs an array of rows', 'pass e.g. [{ caseName: "light load", vrPu: 1.02 }]');
     const columnOptions: TableColumnOption[] =
       options.columns ?? (rows.length > 0 && !Array.isArray(rows[0]) ? Object.keys(rows[0] as object).map((key) => ({ key })) : []);
     const caption = options.caption === undefined ? undefined : checkedText('table', 'the caption', String(options.caption), 'caption');
     if (rows.length * columnOptions.length > OUTPUT_LIMITS.tableCells) {
       throw new BlockApiError(
-        'output-limit',
+        'block-output-limit',
         `table${caption ? ` "${caption.slice(0, 80)}"` : ''}: ${formatCount(rows.length)} rows of ${columnOptions.length} columns are ${formatCount(rows.length * columnOptions.length)} cells; a report table holds at most ${formatCount(OUTPUT_LIMITS.tableCells)}`,
         'show fewer rows (every tenth point, or the ends and extremes), or draw the series as a chart',
       );
@@ -336,7 +336,7 @@ export function createBlockApi(
   function caseTable(cases: CorridorCaseTable, options: CaseTableOptions = {}): void {
     if (!cases || typeof cases !== 'object' || !Array.isArray((cases as { cases?: unknown }).cases)) {
       throw new BlockApiError(
-        'case-table',
+        'block-case-table',
         'caseTable() needs the result of solver.solveCorridorCases',
         'pass e.g. caseTable(solver.solveCorridorCases({ corridor, cases }))',
       );
@@ -344,7 +344,7 @@ export function createBlockApi(
     const layout = options.layout ?? 'cases-as-rows';
     if (layout !== 'cases-as-rows' && layout !== 'buses-as-rows') {
       throw new BlockApiError(
-        'case-table',
+        'block-case-table',
         `caseTable() layout "${String(layout)}" is not one of "cases-as-rows", "buses-as-rows"`,
         'leave it out for cases as rows',
       );
@@ -357,7 +357,7 @@ export function createBlockApi(
   function chart(spec: object, options: ChartOptions): void {
     if (!options || typeof options.caption !== 'string' || options.caption.trim() === '') {
       throw new BlockApiError(
-        'chart-caption',
+        'block-chart-caption',
         'chart() needs { caption: "..." }: every figure in a report has a caption',
         'write e.g. chart(spec, { caption: "Receiving-end voltage along the line" })',
       );
@@ -368,7 +368,7 @@ export function createBlockApi(
       const json = JSON.stringify(spec);
       if (json.length > OUTPUT_LIMITS.chartSpecCharacters) {
         throw new BlockApiError(
-          'output-limit',
+          'block-output-limit',
           `chart "${caption.slice(0, 80)}": the specification is ${formatCount(json.length)} characters of JSON; a chart may have at most ${formatCount(OUTPUT_LIMITS.chartSpecCharacters)}`,
           'draw fewer points: a line of a few hundred points looks the same on paper',
         );
@@ -377,13 +377,13 @@ export function createBlockApi(
     } catch (error) {
       if (error instanceof BlockApiError) throw error;
       throw new BlockApiError(
-        'chart-spec',
+        'block-chart-spec',
         `chart "${caption}": the specification is not plain data (${(error as Error).message})`,
         'a Vega-Lite specification is JSON: numbers, text, arrays and objects',
       );
     }
     if (typeof plain !== 'object' || plain === null)
-      throw new BlockApiError('chart-spec', `chart "${caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
+      throw new BlockApiError('block-chart-spec', `chart "${caption}": the specification must be an object`, 'pass a Vega-Lite specification object');
     emit({ kind: 'chart', caption, spec: plain });
   }
 

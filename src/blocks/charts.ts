@@ -537,7 +537,7 @@ function seriesLabels(series: readonly { label: string }[], quantity: string): s
   const seen = new Set<string>();
   labels.forEach((label, index) => {
     if (seen.has(label)) {
-      throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+      throw new ChartInputError('chart-input-out-of-range', {
         quantity: `${quantity}[${index}].label`,
         value: label,
         allowed: 'labels that are unique within the chart',
@@ -551,7 +551,7 @@ function seriesLabels(series: readonly { label: string }[], quantity: string): s
 
 function nonEmpty<T>(items: readonly T[], quantity: string): readonly T[] {
   if (items.length === 0) {
-    throw new ChartInputError('CHART_INPUT_EMPTY', {
+    throw new ChartInputError('chart-input-empty', {
       quantity: `${quantity}.length`,
       value: 0,
       allowed: 'at least one entry',
@@ -563,7 +563,7 @@ function nonEmpty<T>(items: readonly T[], quantity: string): readonly T[] {
 
 function finite(value: number, quantity: string): number {
   if (!Number.isFinite(value)) {
-    throw new ChartInputError('CHART_INPUT_NOT_FINITE', {
+    throw new ChartInputError('chart-input-not-finite', {
       quantity,
       value,
       allowed: 'a finite number',
@@ -575,7 +575,7 @@ function finite(value: number, quantity: string): number {
 
 function positive(value: number, quantity: string, example: string): number {
   if (finite(value, quantity) <= 0) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity,
       value,
       allowed: `greater than 0 (${example})`,
@@ -587,7 +587,7 @@ function positive(value: number, quantity: string, example: string): number {
 
 function orderedRange(min: number, max: number, quantity: string): { min: number; max: number } {
   if (finite(min, `${quantity}.min`) >= finite(max, `${quantity}.max`)) {
-    throw new ChartInputError('CHART_INPUT_OUT_OF_RANGE', {
+    throw new ChartInputError('chart-input-out-of-range', {
       quantity: `${quantity}.min`,
       value: min,
       allowed: `less than ${quantity}.max = ${max}`,

@@ -17,7 +17,6 @@ import { installationFacts } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
-import { withSealErrors } from './sealErrors.ts';
 import { pdfAsPrintedStep, readPdfReport, type PdfInHand } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 import type { RunLimits } from '../study/model.ts';
@@ -171,58 +170,56 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     throw new StudyFailure([
       { code: 'check-unsignable', message: 'there is no readable seal to counter-sign', hint: 'only a sealed report can be counter-signed' },
     ]);
-  await withSealErrors(async () => {
-    const stored = loadDefaultKey(options.keys);
-    if (stored.identity.fingerprint === envelope.manifest.signer.fingerprint) {
-      throw new StudyFailure([
-        {
-          code: 'check-own-seal',
-          message: `the checking key is the key that sealed the report (${envelope.manifest.signer.name}); a check is a second engineer's`,
-          hint: "counter-sign with the checker's own key (--keys <folder of the checker's keys>)",
-        },
-      ]);
-    }
-    const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${stored.identity.name}: `));
-    const record = signCheckRecord(
+  const stored = loadDefaultKey(options.keys);
+  if (stored.identity.fingerprint === envelope.manifest.signer.fingerprint) {
+    throw new StudyFailure([
       {
-        envelopeSha256: envelopeSha256(envelope),
-        verdict: outcome.verdict,
-        steps: outcome.steps,
-        // The one place a date comes from the clock: the day the checker signs.
-        checkedOn: new Date().toISOString().slice(0, 10),
+        code: 'check-own-seal',
+        message: `the checking key is the key that sealed the report (${envelope.manifest.signer.name}); a check is a second engineer's`,
+        hint: "counter-sign with the checker's own key (--keys <folder of the checker's keys>)",
       },
-      privateKey,
-      stored.identity,
-    );
-    const stem = join(dirname(reportPath), basename(reportPath).replace(/(\.checked)?\.(html|pdf)$/, ''));
-    const checkPath = `${stem}.check.json`;
-    const checkedHtmlPath = `${stem}.checked.html`;
-    if (existsSync(checkPath) || existsSync(checkedHtmlPath)) {
-      throw new StudyFailure([
-        {
-          code: 'check-exists',
-          message: `${checkPath} already exists; a check record is never overwritten`,
-          hint: 'move the earlier check record aside first',
-        },
-      ]);
-    }
-    try {
-      // Into the report's own set when it is one, so that the counter-signature stays with it when superseded.
-      addToSet(reportPath, [
-        { name: basename(checkedHtmlPath), content: sealedReportHtml(reading.contents.parts, envelope, [...outcome.checks, record]) },
-        { name: basename(checkPath), content: `${serializeCheckRecord(record)}\n` },
-      ]);
-    } catch (error) {
-      if ((error as NodeJS.ErrnoException).code !== 'EEXIST') throw error;
-      throw new StudyFailure([
-        {
-          code: 'check-exists',
-          message: `${checkPath} already exists; a check record is never overwritten`,
-          hint: 'move the earlier check record aside first',
-        },
-      ]);
-    }
-    terminal.say(`check record: ${checkPath}`);
-    terminal.say(`report with both signatures: ${checkedHtmlPath}`);
-  });
+    ]);
+  }
+  const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${stored.identity.name}: `));
+  const record = signCheckRecord(
+    {
+      envelopeSha256: envelopeSha256(envelope),
+      verdict: outcome.verdict,
+      steps: outcome.steps,
+      // The one place a date comes from the clock: the day the checker signs.
+      checkedOn: new Date().toISOString().slice(0, 10),
+    },
+    privateKey,
+    stored.identity,
+  );
+  const stem = join(dirname(reportPath), basename(reportPath).replace(/(\.checked)?\.(html|pdf)$/, ''));
+  const checkPath = `${stem}.check.json`;
+  const checkedHtmlPath = `${stem}.checked.html`;
+  if (existsSync(checkPath) || existsSync(checkedHtmlPath)) {
+    throw new StudyFailure([
+      {
+        code: 'check-exists',
+        message: `${checkPath} already exists; a check record is never overwritten`,
+        hint: 'move the earlier check record aside first',
+      },
+    ]);
+  }
+  try {
+    // Into the report's own set when it is one, so that the counter-signature stays with it when superseded.
+    addToSet(reportPath, [
+      { name: basename(checkedHtmlPath), content: sealedReportHtml(reading.contents.parts, envelope, [...outcome.checks, record]) },
+      { name: basename(checkPath), content: `${serializeCheckRecord(record)}\n` },
+    ]);
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code !== 'EEXIST') throw error;
+    throw new StudyFailure([
+      {
+        code: 'check-exists',
+        message: `${checkPath} already exists; a check record is never overwritten`,
+        hint: 'move the earlier check record aside first',
+      },
+    ]);
+  }
+  terminal.say(`check record: ${checkPath}`);
+  terminal.say(`report with both signatures: ${checkedHtmlPath}`);
 }

@@ -3,7 +3,6 @@ import { writeFileSync } from 'node:fs';
 import { createSigningKey } from '../seal/keys.ts';
 import { exportIdentity, loadDefaultKey, saveKey } from '../seal/keystore.ts';
 import { readPassphrase } from './passphrase.ts';
-import { withSealErrors } from './sealErrors.ts';
 import type { Terminal } from './terminal.ts';
 
 export interface KeyNewOptions {
@@ -14,24 +13,20 @@ export interface KeyNewOptions {
 }
 
 export async function keyNewCommand(options: KeyNewOptions, terminal: Terminal): Promise<number> {
-  return withSealErrors(async () => {
-    const passphrase = await readPassphrase('Passphrase for the new signing key (at least 12 characters): ');
-    const key = createSigningKey({ name: options.name, licence: options.licence, jurisdiction: options.jurisdiction, passphrase });
-    const { keyPath, identityPath } = saveKey(options.keys, key);
-    terminal.say(`signing key: ${keyPath} (encrypted, mode 0600; never share it)`);
-    terminal.say(`public identity: ${identityPath} (share it with checkers)`);
-    terminal.say(`fingerprint: ${key.identity.fingerprint}`);
-    return 0;
-  });
+  const passphrase = await readPassphrase('Passphrase for the new signing key (at least 12 characters): ');
+  const key = createSigningKey({ name: options.name, licence: options.licence, jurisdiction: options.jurisdiction, passphrase });
+  const { keyPath, identityPath } = saveKey(options.keys, key);
+  terminal.say(`signing key: ${keyPath} (encrypted, mode 0600; never share it)`);
+  terminal.say(`public identity: ${identityPath} (share it with checkers)`);
+  terminal.say(`fingerprint: ${key.identity.fingerprint}`);
+  return 0;
 }
 
 export async function keyShowCommand(options: { keys: string; out?: string }, terminal: Terminal): Promise<number> {
-  return withSealErrors(() => {
-    const identity = exportIdentity(loadDefaultKey(options.keys).identity);
-    if (options.out) {
-      writeFileSync(options.out, identity, { flag: 'wx' });
-      terminal.say(`public identity written to ${options.out}`);
-    } else process.stdout.write(identity);
-    return 0;
-  });
+  const identity = exportIdentity(loadDefaultKey(options.keys).identity);
+  if (options.out) {
+    writeFileSync(options.out, identity, { flag: 'wx' });
+    terminal.say(`public identity written to ${options.out}`);
+  } else process.stdout.write(identity);
+  return 0;
 }

@@ -20,60 +20,55 @@ export interface PdfInputs {
 }
 
 export async function printStudyPdf(inputs: PdfInputs): Promise<Uint8Array> {
-  const { findChromium, printReportPdf, PdfError } = await import('../report/pdf/index.ts');
+  const { findChromium, printReportPdf } = await import('../report/pdf/index.ts');
   const chromium = findChromium(launchEnvironment());
   if ('error' in chromium) throw new StudyFailure([{ code: 'pdf-no-chromium', message: chromium.error }]);
   const { meta } = inputs;
   const encoder = new TextEncoder();
   const base = `${meta.id}-r${meta.revision}`;
-  try {
-    return await printReportPdf({
-      html: inputs.html,
-      chromiumPath: chromium.path,
-      paper: meta.report.paper,
-      headerText: `${meta.id}  rev ${meta.revision}`,
-      metadata: {
-        title: meta.title,
-        author: meta.engineer.name,
-        subject: `${meta.project}: reactive compensation study ${meta.id}, revision ${meta.revision}`,
-        keywords: ['reactive compensation', meta.id, `revision ${meta.revision}`, meta.project],
+  return printReportPdf({
+    html: inputs.html,
+    chromiumPath: chromium.path,
+    paper: meta.report.paper,
+    headerText: `${meta.id}  rev ${meta.revision}`,
+    metadata: {
+      title: meta.title,
+      author: meta.engineer.name,
+      subject: `${meta.project}: reactive compensation study ${meta.id}, revision ${meta.revision}`,
+      keywords: ['reactive compensation', meta.id, `revision ${meta.revision}`, meta.project],
+    },
+    fixedDate: new Date(`${meta.date}T00:00:00Z`),
+    attachments: [
+      {
+        fileName: inputs.htmlFileName,
+        mimeType: 'text/html',
+        description: 'The report itself, as sealed; check it with kvarbook check',
+        content: encoder.encode(inputs.html),
       },
-      fixedDate: new Date(`${meta.date}T00:00:00Z`),
-      attachments: [
-        {
-          fileName: inputs.htmlFileName,
-          mimeType: 'text/html',
-          description: 'The report itself, as sealed; check it with kvarbook check',
-          content: encoder.encode(inputs.html),
-        },
-        {
-          fileName: `${base}.results.json`,
-          mimeType: 'application/json',
-          description: 'Every result, criterion and caution, for machines',
-          content: encoder.encode(inputs.resultsJson),
-        },
-        ...(inputs.sealJson
-          ? [
-              {
-                fileName: `${base}.seal.json`,
-                mimeType: 'application/json',
-                description: "The engineer's seal",
-                content: encoder.encode(inputs.sealJson),
-              },
-            ]
-          : []),
-        {
-          fileName: basename(inputs.studyFileName),
-          mimeType: 'text/markdown',
-          description: 'The study source the figures were computed from',
-          content: encoder.encode(inputs.studySource),
-        },
-      ],
-    });
-  } catch (error) {
-    if (error instanceof PdfError) throw new StudyFailure([{ code: `pdf-${error.code.toLowerCase()}`, message: error.message }]);
-    throw error;
-  }
+      {
+        fileName: `${base}.results.json`,
+        mimeType: 'application/json',
+        description: 'Every result, criterion and caution, for machines',
+        content: encoder.encode(inputs.resultsJson),
+      },
+      ...(inputs.sealJson
+        ? [
+            {
+              fileName: `${base}.seal.json`,
+              mimeType: 'application/json',
+              description: "The engineer's seal",
+              content: encoder.encode(inputs.sealJson),
+            },
+          ]
+        : []),
+      {
+        fileName: basename(inputs.studyFileName),
+        mimeType: 'text/markdown',
+        description: 'The study source the figures were computed from',
+        content: encoder.encode(inputs.studySource),
+      },
+    ],
+  });
 }
 
 /** A PDF handed to `check`: its bytes, what was read from it, and the one report it carries. */
@@ -93,7 +88,8 @@ export async function readPdfReport(bytes: Uint8Array, pdfPath: string): Promise
   try {
     read = await readPdf(bytes);
   } catch (error) {
-    if (error instanceof PdfError) throw new StudyFailure([{ code: `pdf-${error.code.toLowerCase()}`, message: `${pdfPath}: ${error.message}` }]);
+    if (error instanceof PdfError)
+      throw new StudyFailure(error.diagnostics.map((diagnostic) => ({ ...diagnostic, message: `${pdfPath}: ${diagnostic.message}` })));
     throw error;
   }
   const reports = read.attachments.filter((attachment) => attachment.fileName.toLowerCase().endsWith('.html'));

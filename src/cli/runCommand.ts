@@ -12,7 +12,6 @@ import { installationFacts } from './environment.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
-import { withSealErrors } from './sealErrors.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 import type { RunLimits } from '../study/model.ts';
@@ -31,6 +30,7 @@ export interface RunOptions {
 
 async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
+  terminal.studyText(studyPath, source);
   return runStudy({
     file: studyPath,
     source,
@@ -46,27 +46,25 @@ async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' |
 
 /** Seal with the engineer's key, refusing a key that is not the engineer the study names. */
 async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ html: string; seal: string }> {
-  return withSealErrors(async () => {
-    const stored = loadDefaultKey(keysFolder);
-    const engineer = product.run.study.meta.engineer;
-    const signer = stored.identity;
-    if (signer.name !== engineer.name || signer.licence !== engineer.licence || signer.jurisdiction !== engineer.jurisdiction) {
-      throw new StudyFailure([
-        {
-          code: 'seal-not-the-engineer',
-          message: `the study names ${engineer.name} (licence ${engineer.licence ?? '?'}, ${engineer.jurisdiction ?? '?'}) as its engineer, but the signing key belongs to ${signer.name} (licence ${signer.licence}, ${signer.jurisdiction})`,
-          at: { file: product.run.study.file, line: 1 },
-          hint: 'only the engineer named in the front matter may seal the study',
-        },
-      ]);
-    }
-    const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${signer.name}: `));
-    const manifest = buildManifest(sealSubject(product.results, reportBodySha256(product.report)));
-    const envelope = signManifest(manifest, privateKey, signer);
-    const verification = verifyEnvelope(envelope, [signer]);
-    if (!verification.ok) throw new Error(`the seal just made does not verify: ${verification.problems.join('; ')}`);
-    return { html: sealedReportHtml(product.report, envelope), seal: `${serializeEnvelope(envelope)}\n` };
-  });
+  const stored = loadDefaultKey(keysFolder);
+  const engineer = product.run.study.meta.engineer;
+  const signer = stored.identity;
+  if (signer.name !== engineer.name || signer.licence !== engineer.licence || signer.jurisdiction !== engineer.jurisdiction) {
+    throw new StudyFailure([
+      {
+        code: 'seal-not-the-engineer',
+        message: `the study names ${engineer.name} (licence ${engineer.licence ?? '?'}, ${engineer.jurisdiction ?? '?'}) as its engineer, but the signing key belongs to ${signer.name} (licence ${signer.licence}, ${signer.jurisdiction})`,
+        at: { file: product.run.study.file, line: 1 },
+        hint: 'only the engineer named in the front matter may seal the study',
+      },
+    ]);
+  }
+  const privateKey = unlockStoredKey(stored, await readPassphrase(`Passphrase for the signing key of ${signer.name}: `));
+  const manifest = buildManifest(sealSubject(product.results, reportBodySha256(product.report)));
+  const envelope = signManifest(manifest, privateKey, signer);
+  const verification = verifyEnvelope(envelope, [signer]);
+  if (!verification.ok) throw new Error(`the seal just made does not verify: ${verification.problems.join('; ')}`);
+  return { html: sealedReportHtml(product.report, envelope), seal: `${serializeEnvelope(envelope)}\n` };
 }
 
 export async function runCommand(studyPath: string, options: RunOptions, terminal: Terminal): Promise<number> {

@@ -1,10 +1,13 @@
 // What the command line prints: results on stdout, diagnostics on stderr, a progress line only on a terminal; every text escaped.
 import { type Diagnostic, formatLocation } from '../diagnostics/diagnostic.ts';
+import { excerptAround } from './excerpt.ts';
 
 export interface Terminal {
   say(line: string): void;
   progress(line: string): void;
   progressDone(): void;
+  /** Lends the terminal a study's text, so that every problem located in that study prints with its lines. */
+  studyText(file: string, text: string): void;
   problems(diagnostics: readonly Diagnostic[]): void;
 }
 
@@ -49,13 +52,16 @@ function printableLines(text: string, indent: string): string {
     .join('\n');
 }
 
-/** path:line:col: error: message [code], then the excerpt and the hint, with nothing of the study printed raw. */
-export function printableDiagnostic(diagnostic: Diagnostic): string {
+/**
+ * path:line:col: error: message [code], then the study lines around the place (when `studyText` is the text of the
+ * study it is in) and the hint, with nothing of the study printed raw.
+ */
+export function printableDiagnostic(diagnostic: Diagnostic, studyText?: string): string {
   const where = printable(formatLocation(diagnostic.at));
   const lines = [`${where ? `${where}: ` : ''}error: ${printableLines(diagnostic.message, '    ')} [${printable(diagnostic.code)}]`];
-  if (diagnostic.excerpt)
+  if (diagnostic.at && studyText !== undefined)
     lines.push(
-      diagnostic.excerpt
+      excerptAround(studyText, diagnostic.at)
         .split('\n')
         .map((line) => printable(line))
         .join('\n'),
@@ -71,6 +77,7 @@ interface Streams {
 
 export function processTerminal(streams: Streams = { out: process.stdout, err: process.stderr }): Terminal {
   const interactive = Boolean(streams.err.isTTY);
+  const studyTexts = new Map<string, string>();
   let showing = false;
   const clear = () => {
     if (showing) streams.err.write('\r\x1b[2K');
@@ -88,9 +95,13 @@ export function processTerminal(streams: Streams = { out: process.stdout, err: p
       showing = true;
     },
     progressDone: clear,
+    studyText: (file, text) => {
+      studyTexts.set(file, text);
+    },
     problems: (diagnostics) => {
       clear();
-      for (const diagnostic of diagnostics) streams.err.write(`${printableDiagnostic(diagnostic)}\n`);
+      for (const diagnostic of diagnostics)
+        streams.err.write(`${printableDiagnostic(diagnostic, diagnostic.at && studyTexts.get(diagnostic.at.file))}\n`);
     },
   };
 }

@@ -1,4 +1,5 @@
 // What a calculation block leaves behind, as plain data that crosses the process boundary from the calculation child.
+import type { DiagnosticValue } from '../diagnostics/diagnostic.ts';
 
 /** Where in a block something happened, before the parent maps it to a study line. */
 export interface BlockPosition {
@@ -81,5 +82,9 @@ export interface BlockErrorReport {
   message: string;
   code?: string;
   hint?: string;
+  /** The value at fault, when the error is one of kvarbook's own (see Diagnostic). */
+  quantity?: string;
+  expected?: string;
+  actual?: DiagnosticValue;
   positions: BlockPosition[];
 }

@@ -1,5 +1,5 @@
 // Records from the calculation child are untrusted data: keep only well-formed ones, and refuse non-finite numbers.
-import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, type DiagnosticValue, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
 import type { BlockErrorReport, BlockPosition, BlockRecord, ScalarValue, TableColumn } from './records.ts';
 import { OUTPUT_LIMITS } from './limits.ts';
@@ -55,8 +55,15 @@ export function sanitizeErrorReport(raw: unknown): BlockErrorReport {
     message: boundedText(report.message, 'the calculation process reported a failure without a message'),
     ...(isText(report.code) ? { code: boundedText(report.code, '') } : {}),
     ...(isText(report.hint) ? { hint: boundedText(report.hint, '') } : {}),
+    ...(isText(report.quantity) ? { quantity: boundedText(report.quantity, '') } : {}),
+    ...(isText(report.expected) ? { expected: boundedText(report.expected, '') } : {}),
+    ...(isDiagnosticValue(report.actual) ? { actual: isText(report.actual) ? boundedText(report.actual, '') : report.actual } : {}),
     positions,
   };
+}
+
+function isDiagnosticValue(value: unknown): value is DiagnosticValue {
+  return value === null || typeof value === 'boolean' || (typeof value === 'number' && Number.isFinite(value)) || isText(value);
 }
 
 function optionalText(value: unknown): string | undefined {

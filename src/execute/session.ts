@@ -2,7 +2,7 @@
 import { fork, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
-import { type Diagnostic, type SourceLocation, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { RunLimits, Study } from '../study/model.ts';
 import { CEILING_OPTIONS, type GrantedLimits } from './limits.ts';
 import type { EffectiveInput } from '../study/inputs.ts';
@@ -13,6 +13,7 @@ import { childBundlePath } from './childBundle.ts';
 import { type OutputBudget, sanitizeErrorReport, sanitizeRecords } from './sanitize.ts';
 import { TEXT_PROBLEM_HINTS, outputTextProblem } from './outputText.ts';
 import { DENIAL_MARK } from './child/lockDown.ts';
+import { type DiagnosticCode, isDiagnosticCode } from '../diagnostics/codes.ts';
 
 export type LocatedRecord = Exclude<BlockRecord, never> & { at?: SourceLocation };
 
@@ -107,9 +108,9 @@ export async function executeStudy(
     }
     const ask = async (message: ParentMessage, at: SourceLocation, what: string, steps = 1): Promise<ChildMessage> => {
       try {
-        return await conversation.ask(message, budget(limits.blockSeconds * steps, studyDeadline), () => timeoutDiagnostic(study, at, what, granted));
+        return await conversation.ask(message, budget(limits.blockSeconds * steps, studyDeadline), () => timeoutDiagnostic(at, what, granted));
       } catch (error) {
-        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(study, at, what, error, granted)]);
+        if (error instanceof ChildExit) throw new StudyFailure([exitDiagnostic(at, what, error, granted)]);
         throw error;
       }
     };
@@ -135,7 +136,7 @@ export async function executeStudy(
       );
       if (reply.type === 'inline-failed') {
         const failed = group.find((inline) => inline.inlineId === reply.inlineId);
-        if (failed) throw new StudyFailure([inlineFailure(study, failed, sanitizeErrorReport(reply.error))]);
+        if (failed) throw new StudyFailure([inlineFailure(failed, sanitizeErrorReport(reply.error))]);
       }
       if (reply.type !== 'inlines-done' || !Array.isArray(reply.texts) || reply.texts.length !== group.length)
         throw new StudyFailure([outOfTurn(first.at)]);
@@ -221,25 +222,23 @@ function raiseHint(granted: GrantedLimits, keys: readonly (keyof RunLimits)[], u
 
 const LIMIT_UNITS: Record<keyof RunLimits, string> = { blockSeconds: 's', studySeconds: 's', heapMb: 'MB' };
 
-function timeoutDiagnostic(study: Study, at: SourceLocation, what: string, granted: GrantedLimits): Diagnostic {
+function timeoutDiagnostic(at: SourceLocation, what: string, granted: GrantedLimits): Diagnostic {
   const { limits } = granted;
   return {
     code: 'time-limit',
     message: `${what} ran longer than its time limit (${limits.blockSeconds} s per block, ${limits.studySeconds} s per study) and was stopped`,
     at,
-    excerpt: excerptAround(study.source, at.line, at.column),
     hint: `look for a loop that never ends; a long calculation ${raiseHint(granted, ['blockSeconds', 'studySeconds'], LIMIT_UNITS)}`,
   };
 }
 
-function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: ChildExit, granted: GrantedLimits): Diagnostic {
+function exitDiagnostic(at: SourceLocation, what: string, exit: ChildExit, granted: GrantedLimits): Diagnostic {
   if (exit.outOfMemory) {
     const { heapMb } = granted.limits;
     return {
       code: 'memory-limit',
       message: `${what} used more memory than its limits allow (${heapMb} MB heap, ${residentLimitBytes(heapMb) / 1024 / 1024} MB in all) and was stopped`,
       at,
-      excerpt: excerptAround(study.source, at.line),
       hint: `look for an array or string that grows without bound; a large study ${raiseHint(granted, ['heapMb'], LIMIT_UNITS)}`,
     };
   }
@@ -247,7 +246,6 @@ function exitDiagnostic(study: Study, at: SourceLocation, what: string, exit: Ch
     code: 'child-exit',
     message: `${what} stopped the calculation process (exit code ${exit.exitCode ?? 'none'}${exit.signal ? `, signal ${exit.signal}` : ''})`,
     at,
-    excerpt: excerptAround(study.source, at.line),
     hint: 'a block must not end the process it runs in',
   };
 }
@@ -256,24 +254,42 @@ function blockFailure(study: Study, block: TranspiledBlock, error: BlockErrorRep
   const own = error.positions.find((position) => position.blockIndex === block.blockIndex);
   const mapped = own ? studyPositionOf(block, own.line, own.column) : { line: block.block.fenceLine, column: 1 };
   const at = { file: study.file, line: mapped.line, column: mapped.column };
-  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(study, at, `the block at line ${block.block.fenceLine}`, granted);
+  if (/Script execution timed out/.test(error.message)) return timeoutDiagnostic(at, `the block at line ${block.block.fenceLine}`, granted);
   const refused = refusedCapability(error);
   if (refused) {
     return {
       code: 'block-denied',
       message: `a calculation block may not ${refused}`,
       at,
-      excerpt: excerptAround(study.source, mapped.line, mapped.column),
       hint: DENIED_HINT,
     };
   }
+  const code: DiagnosticCode = error.code === DENIAL_MARK ? 'block-denied' : error.code && isDiagnosticCode(error.code) ? error.code : 'block-threw';
+  // A code of the block's own (or of Node's) is not in the catalogue; the message keeps it.
+  const ownCode = code === 'block-threw' && error.code ? ` (code ${error.code})` : '';
   return {
-    code: error.code === DENIAL_MARK ? 'block-denied' : error.code ? `block-${error.code}` : 'block-threw',
-    message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}`,
+    code,
+    message: `${error.name && error.name !== 'Error' ? `${error.name}: ` : ''}${error.message}${ownCode}`,
     at,
-    excerpt: excerptAround(study.source, mapped.line, mapped.column),
     hint: error.hint ?? (error.code === DENIAL_MARK ? DENIED_HINT : HOST_FRAME_HINT),
+    ...valueFields(error),
   };
+}
+
+function valueFields(error: BlockErrorReport): Pick<Diagnostic, 'quantity' | 'expected' | 'actual'> {
+  return {
+    ...(error.quantity !== undefined ? { quantity: error.quantity } : {}),
+    ...(error.expected !== undefined ? { expected: error.expected } : {}),
+    ...(error.actual !== undefined ? { actual: error.actual } : {}),
+  };
+}
+
+/** An inline value's problem: the block API's text problems under their inline names, kvarbook's own codes as they are. */
+function inlineCode(error: BlockErrorReport): DiagnosticCode {
+  if (!error.code) return 'inline-failed';
+  const asInline = error.code.replace(/^block-/, 'inline-');
+  if (isDiagnosticCode(asInline) && asInline.startsWith('inline-')) return asInline;
+  return isDiagnosticCode(error.code) ? error.code : 'inline-failed';
 }
 
 /** What the child's own guards (no code from strings, no module loader in the sandbox) refused, in the reader's words. */
@@ -285,16 +301,16 @@ function refusedCapability(error: BlockErrorReport): string | undefined {
   return undefined;
 }
 
-function inlineFailure(study: Study, inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
+function inlineFailure(inline: TranspiledInline, error: BlockErrorReport): Diagnostic {
   const notDefined = /(\w+) is not defined/.exec(error.message);
   return {
-    code: notDefined ? 'inline-undefined' : error.code && error.code in TEXT_PROBLEM_HINTS ? `inline-${error.code}` : 'inline-failed',
+    code: notDefined ? 'inline-undefined' : inlineCode(error),
     message: notDefined
       ? `the inline value {{ ${inline.inline.expression} }} refers to "${notDefined[1]}", which no block above it defines`
       : `the inline value {{ ${inline.inline.expression} }} failed: ${error.message}`,
     at: inline.inline.at,
-    excerpt: excerptAround(study.source, inline.inline.at.line, inline.inline.at.column),
     hint: error.hint ?? 'an inline value sees the names declared in the blocks above it, and the inputs as inputs.<name>',
+    ...valueFields(error),
   };
 }
 

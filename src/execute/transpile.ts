@@ -2,7 +2,8 @@
 import { transformSync, type Message } from 'esbuild';
 import { parse, type Node as AcornNode, type Pattern, type Program } from 'acorn';
 import { TraceMap, originalPositionFor } from '@jridgewell/trace-mapping';
-import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
+import type { DiagnosticCode } from '../diagnostics/codes.ts';
 import type { CalcBlock, InlineExpression, Study } from '../study/model.ts';
 import type { Declaration, DeclarationKind } from './protocol.ts';
 
@@ -44,7 +45,6 @@ export function transpileBlocks(study: Study): TranspiledBlock[] {
           code: 'block-reserved-name',
           message: `the block declares "${declaration.name}", a name the block API owns`,
           at: { file: study.file, line: block.fenceLine },
-          excerpt: excerptAround(study.source, block.fenceLine),
           hint: 'choose another name',
         });
       } else if (earlier && earlier !== block) {
@@ -52,7 +52,6 @@ export function transpileBlocks(study: Study): TranspiledBlock[] {
           code: 'block-redeclared',
           message: `"${declaration.name}" is declared again; it was declared in the block at line ${earlier.fenceLine}`,
           at: { file: study.file, line: block.fenceLine },
-          excerpt: excerptAround(study.source, block.fenceLine),
           hint: 'blocks share one scope: give the new value its own name',
         });
       } else firstDeclaredAt.set(declaration.name, block);
@@ -63,7 +62,7 @@ export function transpileBlocks(study: Study): TranspiledBlock[] {
   return out;
 }
 
-function esbuildDiagnostics(study: Study, firstLine: number, messages: Message[], code: string): Diagnostic[] {
+function esbuildDiagnostics(study: Study, firstLine: number, messages: Message[], code: DiagnosticCode): Diagnostic[] {
   return messages.map((message) => {
     const line = (message.location?.line ?? 1) + firstLine - 1;
     const column = (message.location?.column ?? 0) + 1;
@@ -71,7 +70,6 @@ function esbuildDiagnostics(study: Study, firstLine: number, messages: Message[]
       code,
       message: message.text,
       at: { file: study.file, line, column },
-      excerpt: excerptAround(study.source, line, column),
       hint: 'calculation blocks are TypeScript; check the syntax near the caret',
     };
   });
@@ -117,7 +115,6 @@ function transpileOne(study: Study, block: CalcBlock, diagnostics: Diagnostic[])
       code: 'block-module-syntax',
       message,
       at: { file: study.file, line, column },
-      excerpt: excerptAround(study.source, line, column),
       hint,
     });
   });
@@ -288,7 +285,7 @@ export function transpileInlines(study: Study): TranspiledInline[] {
     const failing = new Set(errors.map((message) => inlineAtLine(startLines, message.location?.line ?? 1)));
     throw new StudyFailure(
       [...failing].map((index) =>
-        inlineSyntax(study, study.inlines[index]!, errors.find((message) => inlineAtLine(startLines, message.location?.line ?? 1) === index)?.text),
+        inlineSyntax(study.inlines[index]!, errors.find((message) => inlineAtLine(startLines, message.location?.line ?? 1) === index)?.text),
       ),
     );
   }
@@ -312,7 +309,7 @@ export function transpileInlines(study: Study): TranspiledInline[] {
   const out: TranspiledInline[] = [];
   study.inlines.forEach((inline, index) => {
     const script = scripts.get(index);
-    if (script === undefined || statementCounts.get(index) !== 1) diagnostics.push(inlineSyntax(study, inline, 'it is not a single expression'));
+    if (script === undefined || statementCounts.get(index) !== 1) diagnostics.push(inlineSyntax(inline, 'it is not a single expression'));
     else out.push({ inlineId: inline.id, script: `(async function () { "use strict"; return ${script}; })()`, inline });
   });
   if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
@@ -338,12 +335,11 @@ function assignedInline(statement: AcornNode): number | undefined {
   return name?.startsWith(INLINE_NAME) ? Number(name.slice(INLINE_NAME.length)) : undefined;
 }
 
-function inlineSyntax(study: Study, inline: InlineExpression, detail: string | undefined): Diagnostic {
+function inlineSyntax(inline: InlineExpression, detail: string | undefined): Diagnostic {
   return {
     code: 'inline-syntax',
     message: `the inline value {{ ${inline.expression} }} is not an expression${detail ? `: ${detail}` : ''}`,
     at: inline.at,
-    excerpt: excerptAround(study.source, inline.at.line, inline.at.column),
     hint: 'write a single expression between the braces, e.g. {{ chargingMvar }}',
   };
 }

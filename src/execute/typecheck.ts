@@ -1,7 +1,7 @@
 // Type-checks all calculation blocks together against the block API, with every error mapped to its study line.
 import { dirname, join, resolve, sep } from 'node:path';
 import type ts from 'typescript';
-import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
 import { KVARBOOK_ROOT } from './childBundle.ts';
 import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
@@ -69,7 +69,6 @@ export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_S
         code: 'typecheck-limit',
         message: `the type check of the blocks ${error.message} (it may take ${callSeconds} s and ${heapMb} MB)`,
         at: { file: study.file, line },
-        excerpt: excerptAround(study.source, line),
         hint: 'look for types that expand without end (recursive or combinatorial types); --no-typecheck skips the step while drafting',
       },
     ]);
@@ -153,7 +152,6 @@ export async function typecheckDiagnostics(study: CheckedStudy): Promise<Diagnos
       code: `type-${problem.code}`,
       message: typescript.flattenDiagnosticMessageText(problem.messageText, '\n  '),
       at: { file: study.file, line: studyLine, column },
-      excerpt: excerptAround(study.source, studyLine, column),
       hint: 'the block API and solver are typed; run with --no-typecheck to skip this step while drafting',
     });
   }
@@ -193,7 +191,6 @@ function moduleRefusals(
       code: 'type-module-refused',
       message: `the type check refuses ${what}: it reads no file but the study and the block API's declarations`,
       at: { file: study.file, ...at },
-      excerpt: excerptAround(study.source, at.line, at.column),
       hint: MODULE_REFUSED_HINT,
     });
   };

@@ -59,7 +59,7 @@ function assertPlainJson(value: unknown, path: string): void {
 
 function notJson(path: string, found: string): SealError {
   return new SealError({
-    code: 'not-canonical-json',
+    code: 'seal-not-canonical-json',
     message: `Cannot put ${found} at ${path} into canonical JSON.`,
     quantity: path,
     value: found,

@@ -57,7 +57,7 @@ export function signCheckRecord(content: CheckContent, privateKey: KeyObject, id
   if (!parsed.success) {
     const problems = describeIssues(parsed.error, 'check');
     throw new SealError({
-      code: 'invalid-check-record',
+      code: 'seal-invalid-check-record',
       message: `Cannot sign the check record: ${problems.join('; ')}.`,
       quantity: formatPath('check', parsed.error.issues[0]!.path),
       allowed: 'see the check record format in docs/seal.md',

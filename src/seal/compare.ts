@@ -120,7 +120,7 @@ function firstByName<T extends { name: string }>(items: readonly T[], duplicated
 function checkedTolerance(tolerance: number, quantity: string): number {
   if (Number.isFinite(tolerance) && tolerance >= 0) return tolerance;
   throw new SealError({
-    code: 'invalid-tolerance',
+    code: 'seal-invalid-tolerance',
     message: `The ${quantity} is ${tolerance}; a tolerance must be a finite number of at least 0.`,
     quantity,
     value: tolerance,

@@ -1,20 +1,8 @@
-// The one error type of the seal modules: a stable code, what was wrong, and what to do about it.
+// The error of the seal modules: one diagnostic with a stable `seal-` code, what was wrong, and what to do about it.
+import type { CodesStartingWith } from '../diagnostics/codes.ts';
+import { Problem, plainValue } from '../diagnostics/diagnostic.ts';
 
-export type SealErrorCode =
-  | 'not-canonical-json'
-  | 'passphrase-too-short'
-  | 'wrong-passphrase'
-  | 'malformed-key'
-  | 'wrong-key-type'
-  | 'key-identity-mismatch'
-  | 'invalid-identity-field'
-  | 'key-exists'
-  | 'key-not-found'
-  | 'no-default-key'
-  | 'ambiguous-default-key'
-  | 'invalid-seal-subject'
-  | 'invalid-tolerance'
-  | 'invalid-check-record';
+export type SealErrorCode = CodesStartingWith<'seal-'>;
 
 export interface SealErrorDetails {
   code: SealErrorCode;
@@ -28,20 +16,25 @@ export interface SealErrorDetails {
   allowed?: string;
 }
 
-export class SealError extends Error {
-  readonly code: SealErrorCode;
-  readonly hint: string;
-  readonly quantity?: string;
+export class SealError extends Problem {
+  override readonly name = 'SealError';
+  declare readonly code: SealErrorCode;
+  declare readonly hint: string;
+  /** The offending value as it was (the diagnostic's `actual` is its plain form). */
   readonly value?: unknown;
-  readonly allowed?: string;
 
   constructor(details: SealErrorDetails, options?: { cause?: unknown }) {
-    super(details.message, options);
-    this.name = 'SealError';
-    this.code = details.code;
-    this.hint = details.hint;
-    if (details.quantity !== undefined) this.quantity = details.quantity;
+    super(
+      {
+        code: details.code,
+        message: details.message,
+        hint: details.hint,
+        ...(details.quantity !== undefined ? { quantity: details.quantity } : {}),
+        ...(details.allowed !== undefined ? { expected: details.allowed } : {}),
+        ...(details.value !== undefined ? { actual: plainValue(details.value) } : {}),
+      },
+      options,
+    );
     if (details.value !== undefined) this.value = details.value;
-    if (details.allowed !== undefined) this.allowed = details.allowed;
   }
 }

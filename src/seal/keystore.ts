@@ -47,7 +47,7 @@ export function saveKey(dir: string, key: NewSigningKey): { keyPath: string; ide
   const checked = checkIdentity(key.identity, 'identity');
   if (!checked.ok) {
     throw new SealError({
-      code: 'invalid-identity-field',
+      code: 'seal-invalid-identity-field',
       message: `Refusing to save a key with an invalid identity: ${checked.problems.join('; ')}.`,
       quantity: 'identity',
       hint: 'Save exactly what key creation returned.',
@@ -93,7 +93,7 @@ export function loadKeyByFingerprint(dir: string, fingerprint: string): StoredKe
   const found = listKeys(dir).find((stored) => stored.identity.fingerprint === wanted || shortFingerprint(stored.identity.fingerprint) === wanted);
   if (found !== undefined) return found;
   throw new SealError({
-    code: 'key-not-found',
+    code: 'seal-key-not-found',
     message: `No signing key with fingerprint ${fingerprint} in ${dir}.`,
     quantity: 'fingerprint',
     value: fingerprint,
@@ -110,7 +110,7 @@ export function loadDefaultKey(dir: string): StoredKey {
   if (keys.length === 1) return keys[0]!;
   if (keys.length === 0) {
     throw new SealError({
-      code: 'no-default-key',
+      code: 'seal-no-default-key',
       message: `There is no signing key in ${dir}.`,
       quantity: 'signing keys in folder',
       value: 0,
@@ -119,7 +119,7 @@ export function loadDefaultKey(dir: string): StoredKey {
     });
   }
   throw new SealError({
-    code: 'ambiguous-default-key',
+    code: 'seal-ambiguous-default-key',
     message: `${dir} holds ${keys.length} signing keys and none is marked as the default.`,
     quantity: 'signing keys in folder',
     value: keys.length,
@@ -133,7 +133,7 @@ export function unlockStoredKey(stored: StoredKey, passphrase: string): KeyObjec
   const privateKey = unlockSigningKey(stored.encryptedPrivateKeyPem, passphrase);
   if (!keyBelongsTo(privateKey, stored.identity)) {
     throw new SealError({
-      code: 'key-identity-mismatch',
+      code: 'seal-key-identity-mismatch',
       message: `${stored.keyPath} is not the key of ${describeSigner(stored.identity)} named in ${stored.identityPath}.`,
       quantity: 'private key',
       hint: 'The key and identity files were mixed up; restore both from the same backup.',
@@ -158,7 +158,7 @@ export function exportIdentity(identity: PublicIdentity): string {
 function pathsFor(dir: string, fingerprint: string): { keyPath: string; identityPath: string } {
   if (!FINGERPRINT_PATTERN.test(fingerprint)) {
     throw new SealError({
-      code: 'invalid-identity-field',
+      code: 'seal-invalid-identity-field',
       message: `The fingerprint ${fingerprint} is not in kvarbook's form.`,
       quantity: 'fingerprint',
       value: fingerprint,
@@ -219,7 +219,7 @@ function listedFingerprints(dir: string): string {
 
 function keyExists(path: string, fingerprint: string | undefined): SealError {
   return new SealError({
-    code: 'key-exists',
+    code: 'seal-key-exists',
     message: `${path} already exists; kvarbook never overwrites a key file.`,
     quantity: 'key file',
     value: fingerprint ?? path,

@@ -156,7 +156,7 @@ function validOrThrow<T>(schema: z.ZodType<T>, value: unknown, root: string): T 
   const problems = describeIssues(parsed.error, root);
   const first = parsed.error.issues[0]!;
   throw new SealError({
-    code: 'invalid-seal-subject',
+    code: 'seal-invalid-seal-subject',
     message: `Cannot seal: ${problems.join('; ')}.`,
     quantity: formatPath(root, first.path),
     value: valueAtPath(value, first.path),

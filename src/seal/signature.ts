@@ -40,7 +40,7 @@ export function signCanonical(payload: unknown, privateKey: KeyObject, identity:
   const checked = checkIdentity(identity, 'signer');
   if (!checked.ok) {
     throw new SealError({
-      code: 'invalid-identity-field',
+      code: 'seal-invalid-identity-field',
       message: `The signer identity is not valid: ${checked.problems.join('; ')}.`,
       quantity: 'signer identity',
       hint: 'Use the identity JSON written when the key was created.',
@@ -48,7 +48,7 @@ export function signCanonical(payload: unknown, privateKey: KeyObject, identity:
   }
   if (privateKey.asymmetricKeyType !== 'ed25519' || !keyBelongsTo(privateKey, identity)) {
     throw new SealError({
-      code: 'key-identity-mismatch',
+      code: 'seal-key-identity-mismatch',
       message: `The private key is not the key of ${describeSigner(identity)} (${identity.fingerprint}).`,
       quantity: 'private key',
       hint: 'Unlock the key whose fingerprint matches the identity you sign as.',

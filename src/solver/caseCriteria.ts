@@ -69,7 +69,7 @@ export function corridorCaseCriteria(options: {
     for (const [label, value] of Object.entries(requireObject('cases', record.cases, HINT))) {
       if (!labels.has(label)) {
         throw new SolverDomainError({
-          code: 'OUT_OF_RANGE',
+          code: 'out-of-range',
           quantity: `cases.${label}`,
           value: label,
           allowedRange: `one of ${[...labels].map((known) => `'${known}'`).join(', ')}`,

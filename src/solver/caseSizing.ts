@@ -132,7 +132,7 @@ export function sizeReactorsAcrossCases(options: {
   const maxUnitsPerBus = optionalNumber('maxUnitsPerBus', record.maxUnitsPerBus, 2, { min: 1, max: 4 }, 'Identical units allowed at one bus.');
   if (!Number.isInteger(maxUnitsPerBus)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'maxUnitsPerBus',
       value: maxUnitsPerBus,
       allowedRange: 'a whole number in [1, 4]',
@@ -197,7 +197,7 @@ export function sizeReactorsAcrossCases(options: {
 function requireBus(corridor: Corridor, name: unknown, path: string): string {
   if (typeof name === 'string' && corridor.buses.some((bus) => bus.name === name)) return name;
   throw new SolverDomainError({
-    code: 'OUT_OF_RANGE',
+    code: 'out-of-range',
     quantity: path,
     value: String(name),
     allowedRange: `one of ${corridor.buses.map((bus) => `'${bus.name}'`).join(', ')}`,
@@ -208,7 +208,7 @@ function requireBus(corridor: Corridor, name: unknown, path: string): string {
 function readCheckSteps(path: string, value: unknown, caseInput: CorridorCaseInput): boolean {
   if (value === undefined) return caseInput.loading.kind !== 'energisation';
   if (typeof value === 'boolean') return value;
-  throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: path, value: String(value), allowedRange: 'true or false', hint: HINT });
+  throw new SolverDomainError({ code: 'out-of-range', quantity: path, value: String(value), allowedRange: 'true or false', hint: HINT });
 }
 
 function readBand(path: string, value: unknown): { min: number; max: number } {

@@ -248,7 +248,7 @@ function nameList(path: string, value: unknown, corridor: Corridor, allowed: (ki
           .filter((candidate) => allowed(kindOfUnit(candidate)))
           .map((candidate) => `'${candidate.name}'`);
         throw new SolverDomainError({
-          code: 'OUT_OF_RANGE',
+          code: 'out-of-range',
           quantity: `${path}[${index}]`,
           value: String(name),
           allowedRange: known.length === 0 ? `no ${what} in this corridor` : `one of ${known.join(', ')}`,
@@ -285,7 +285,7 @@ function readSystemState(
   );
   if (record.open !== undefined && typeof record.open !== 'boolean') {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: `${path}.open`,
       value: String(record.open),
       allowedRange: 'true or false',
@@ -311,7 +311,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   for (const name of unitsIn) {
     if (unitsOut.has(name)) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${path}.unitsIn`,
         value: name,
         allowedRange: 'names not also in unitsOut',
@@ -322,7 +322,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   for (const name of inserted) {
     if (bypassed.has(name) || unitsOut.has(name)) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${path}.inserted`,
         value: name,
         allowedRange: 'names not also bypassed',
@@ -336,7 +336,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
     const sectionIndex = typeof name === 'string' ? sectionNames.indexOf(name) : -1;
     if (sectionIndex < 0) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: `${path}.circuitsOut[${index}]`,
         value: String(name),
         allowedRange: `one of ${sectionNames.map((candidate) => `'${candidate}'`).join(', ')}`,
@@ -356,7 +356,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
   const requireConnected = (end: 'sending' | 'receiving', why: string) => {
     if (!systems[end].connected) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${path}.${end}System.open`,
         value: 'true',
         allowedRange: 'false for this loading',
@@ -415,7 +415,7 @@ export function readCase(corridor: Corridor, value: unknown, path: string): Case
     const busIndex = corridor.buses.findIndex((bus) => bus.name === control.bus);
     if (busIndex < 0) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: `${itemPath}.bus`,
         value: String(control.bus),
         allowedRange: `one of ${corridor.buses.map((bus) => `'${bus.name}'`).join(', ')}`,
@@ -544,7 +544,7 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
         network.shuntS[bus.index] = (network.shuntS[bus.index] as Complex).add(new Complex(0, (limitMvar * 1e6) / (baseV * baseV)));
       } else if (spec.type !== 'pq') {
         throw new SolverDomainError({
-          code: 'INCONSISTENT_QUANTITIES',
+          code: 'inconsistent-quantities',
           quantity: svc.path,
           value: svc.name,
           allowedRange: 'an SVC at a bus whose voltage no system holds',
@@ -572,7 +572,7 @@ export function buildCase(corridor: Corridor, state: CaseState, svcLimits: Map<s
     const busName = corridor.buses[control.busIndex]?.name;
     if (spec.type !== 'pq' || spec.svcSlope) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${state.path}.voltageControl[${index}].bus`,
         value: String(busName),
         allowedRange: 'a bus whose voltage nothing else holds (no system holding it, no SVC in service, no other control)',

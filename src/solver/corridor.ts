@@ -199,7 +199,7 @@ function atPath<T>(path: string, read: () => T): T {
 function requireName(path: string, value: unknown, hint: string): string {
   if (typeof value !== 'string' || value.trim() === '') {
     throw new SolverDomainError({
-      code: value === undefined || value === null ? 'MISSING_QUANTITY' : 'OUT_OF_RANGE',
+      code: value === undefined || value === null ? 'missing-quantity' : 'out-of-range',
       quantity: path,
       value: value === undefined || value === null ? null : String(value),
       allowedRange: 'a non-empty name',
@@ -212,7 +212,7 @@ function requireName(path: string, value: unknown, hint: string): string {
 function optionalBoolean(path: string, value: unknown, fallback: boolean, hint: string): boolean {
   if (value === undefined) return fallback;
   if (typeof value !== 'boolean') {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity: path, value: String(value), allowedRange: 'true or false', hint });
+    throw new SolverDomainError({ code: 'out-of-range', quantity: path, value: String(value), allowedRange: 'true or false', hint });
   }
   return value;
 }
@@ -238,7 +238,7 @@ function readSystem(path: string, value: unknown, nominalVoltageKv: number, fall
   );
   if ((record.emfKv === undefined) === (record.heldVoltageKv === undefined)) {
     throw new SolverDomainError({
-      code: record.emfKv === undefined ? 'MISSING_QUANTITY' : 'INCONSISTENT_QUANTITIES',
+      code: record.emfKv === undefined ? 'missing-quantity' : 'inconsistent-quantities',
       quantity: `${path}.emfKv (or ${path}.heldVoltageKv)`,
       value: record.emfKv === undefined ? null : 'both given',
       allowedRange: 'exactly one of emfKv and heldVoltageKv',
@@ -291,7 +291,7 @@ function readSvc(path: string, value: unknown, busIndex: number): Svc {
   const inductiveMvar = requireNumber(`${path}.inductiveMvar`, record.inductiveMvar, { min: 0, max: 1e5, unit: 'Mvar' }, hint);
   if (capacitiveMvar + inductiveMvar <= 0) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: `${path}.capacitiveMvar + inductiveMvar`,
       value: 0,
       allowedRange: '(0, ∞) Mvar',
@@ -377,7 +377,7 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
     const earlier = unitsByName.get(item.name);
     if (earlier) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${item.path}.name`,
         value: item.name,
         allowedRange: `a name not used elsewhere (already used at ${earlier.path})`,
@@ -399,7 +399,7 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
     const name = requireName(`${busPath}.name`, bus.name, 'Every bus needs a name; cases and results refer to it.');
     if (busNames.has(name)) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${busPath}.name`,
         value: name,
         allowedRange: `a name not used by another bus (already buses[${busNames.get(name)}])`,
@@ -426,7 +426,7 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
   const sectionsInput = requireArray(`${path}.sections`, record.sections, 1, 'One section between each pair of consecutive buses.');
   if (sectionsInput.length !== buses.length - 1) {
     throw new SolverDomainError({
-      code: 'INCONSISTENT_QUANTITIES',
+      code: 'inconsistent-quantities',
       quantity: `${path}.sections.length`,
       value: sectionsInput.length,
       allowedRange: `${buses.length - 1} (one per pair of consecutive buses)`,
@@ -441,7 +441,7 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
       const name = requireName(`${sectionPath}.${end}`, section[end], 'Name the buses the section joins.');
       if (name !== expected[endIndex]) {
         throw new SolverDomainError({
-          code: busNames.has(name) ? 'INCONSISTENT_QUANTITIES' : 'OUT_OF_RANGE',
+          code: busNames.has(name) ? 'inconsistent-quantities' : 'out-of-range',
           quantity: `${sectionPath}.${end}`,
           value: name,
           allowedRange: `'${expected[endIndex]}' (${busNames.has(name) ? 'sections join consecutive buses in order' : 'no bus has this name'})`,
@@ -456,7 +456,7 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
         : requireNumber(`${sectionPath}.circuits`, section.circuits, { min: 1, max: 2 }, 'One or two identical circuits.');
     if (circuits !== 1 && circuits !== 2) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: `${sectionPath}.circuits`,
         value: circuits,
         allowedRange: '1 or 2',
@@ -480,7 +480,7 @@ export function readCorridor(value: unknown, path = 'corridor'): Corridor {
   sections.forEach((section) => {
     if (sectionNames.has(section.name)) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: `${path}.sections[${section.index}].name`,
         value: section.name,
         allowedRange: 'a name not used by another section',

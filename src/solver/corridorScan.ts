@@ -79,7 +79,7 @@ function corridorChain(corridor: Corridor, state: CaseState): { elements: ScanEl
     const circuits = state.circuitsInService[section.index] as number;
     if (circuits === 0) {
       throw new SolverDomainError({
-        code: 'DEGENERATE_NETWORK',
+        code: 'degenerate-network',
         quantity: 'case.circuitsOut',
         value: section.name,
         allowedRange: 'a case in which every section has a circuit in service',

@@ -86,7 +86,7 @@ function readLineLosses(where: string, value: unknown): { energyMwh: number; pea
     const totalHours = blocks.reduce((sum, block) => sum + block.hours, 0);
     if (totalHours > HOURS_PER_YEAR + 1e-9) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: `${where}.loadDuration (total hours)`,
         value: totalHours,
         allowedRange: `[0, ${HOURS_PER_YEAR}] h`,
@@ -133,7 +133,7 @@ export function capitalisedCostComparison(options: CapitalisedCostOptions): Capi
   const lifeYears = requireNumber('lifeYears', record.lifeYears, { min: 1, max: 100, unit: 'years' }, HINT);
   if (!Number.isInteger(lifeYears)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'lifeYears',
       value: lifeYears,
       allowedRange: 'a whole number of years in [1, 100]',

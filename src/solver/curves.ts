@@ -69,7 +69,7 @@ export function pvCurve(options: {
   const noseMultiple = noseLoadMultiple(abcd, sendingLineV, unitLoad);
   if (!Number.isFinite(noseMultiple)) {
     throw new SolverDomainError({
-      code: 'DEGENERATE_NETWORK',
+      code: 'degenerate-network',
       quantity: 'powerFactor',
       value: powerFactor,
       allowedRange: 'a power factor for which this network has a finite maximum loadability',
@@ -224,7 +224,7 @@ export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: 
   const minimumMw = receivingPowerAtAngleMw(abcd, sendingVoltageKv, receivingVoltageKv, limitAngle - Math.PI);
   if (receivingPMw > limitMw || receivingPMw < minimumMw) {
     throw new SolverDomainError({
-      code: 'TRANSFER_LIMIT_EXCEEDED',
+      code: 'transfer-limit-exceeded',
       quantity: 'receivingPMw',
       value: receivingPMw,
       allowedRange: `[${forMessage(minimumMw)}, ${forMessage(limitMw)}] MW (steady-state limits in both directions at ${sendingVoltageKv} kV / ${receivingVoltageKv} kV)`,
@@ -359,7 +359,7 @@ export function qvCurve(options: {
   }
   if (voltageKv.length === 0) {
     throw new SolverDomainError({
-      code: 'NO_OPERATING_POINT',
+      code: 'no-operating-point',
       quantity: 'load.pMw',
       value: wToMw(load.re),
       allowedRange: `active powers the network can carry at some bus voltage in [${minimumVoltageKv}, ${maximumVoltageKv}] kV`,

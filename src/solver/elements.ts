@@ -66,7 +66,7 @@ export function requireInductiveSeriesPath(network: TwoPort): void {
   const { inductiveOhm, capacitiveOhm } = seriesPathReactances(network);
   if (capacitiveOhm > 0 && !(capacitiveOhm < inductiveOhm)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: `series capacitor reactance of '${labelOf(network)}' (ohm)`,
       value: capacitiveOhm,
       allowedRange: `(0, ${forMessage(inductiveOhm)}) ohm, below the series reactance of the path's line sections and series reactors`,
@@ -102,7 +102,7 @@ export function seriesCapacitor(options: SeriesCapacitorOptions): SeriesElementT
     const lineReactance = lineSeriesReactanceOhm(line);
     if (!(lineReactance > 0)) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: 'compensatedLine',
         value: line.kind,
         allowedRange: 'a line section or a cascade containing line sections',
@@ -154,7 +154,7 @@ function shuntElement(kind: 'shunt-reactor' | 'shunt-capacitor', options: ShuntE
     admittance = requireComplex('admittanceS', record.admittanceS, hint);
     if (!(admittance.im * sign > 0) || admittance.re < 0) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: 'admittanceS.im',
         value: admittance.im,
         allowedRange: kind === 'shunt-reactor' ? '(-∞, 0) S (inductive) with re >= 0' : '(0, ∞) S (capacitive) with re >= 0',

@@ -1,17 +1,19 @@
 // Domain errors of the solver: the typed SolverDomainError and the input/output guards that raise it.
 
+import { Problem } from '../diagnostics/diagnostic.ts';
+
 export type SolverErrorCode =
-  | 'OUT_OF_RANGE'
-  | 'MISSING_QUANTITY'
-  | 'NOT_A_FINITE_NUMBER'
-  | 'INCONSISTENT_QUANTITIES'
-  | 'NO_OPERATING_POINT'
-  | 'NO_CONVERGENCE'
-  | 'TRANSFER_LIMIT_EXCEEDED'
-  | 'TARGET_UNREACHABLE'
-  | 'RECIPROCITY_VIOLATED'
-  | 'DEGENERATE_NETWORK'
-  | 'NON_FINITE_RESULT';
+  | 'out-of-range'
+  | 'missing-quantity'
+  | 'not-a-finite-number'
+  | 'inconsistent-quantities'
+  | 'no-operating-point'
+  | 'no-convergence'
+  | 'transfer-limit-exceeded'
+  | 'target-unreachable'
+  | 'reciprocity-violated'
+  | 'degenerate-network'
+  | 'non-finite-result';
 
 export interface SolverDomainErrorDetails {
   code: SolverErrorCode;
@@ -29,14 +31,17 @@ function formatValue(value: number | string | null): string {
   return value;
 }
 
-/** Raised for every input or result the solver cannot accept; plain fields so it survives a process boundary. */
-export class SolverDomainError extends Error {
+/**
+ * Raised for every input or result the solver cannot accept: one diagnostic, with plain fields so it survives a
+ * process boundary. `value` and `allowedRange` are the diagnostic's `actual` and `expected` under the names blocks use.
+ */
+export class SolverDomainError extends Problem {
   override readonly name = 'SolverDomainError';
-  readonly code: SolverErrorCode;
-  readonly quantity: string;
+  declare readonly code: SolverErrorCode;
+  override readonly quantity: string;
   readonly value: number | string | null;
   readonly allowedRange: string;
-  readonly hint: string;
+  override readonly hint: string;
 
   constructor(details: SolverDomainErrorDetails) {
     const sentence =
@@ -44,8 +49,17 @@ export class SolverDomainError extends Error {
       (details.value === null
         ? `${details.quantity} is missing; it must be in the allowed range ${details.allowedRange}`
         : `${details.quantity} = ${formatValue(details.value)} is outside the allowed range ${details.allowedRange}`);
-    super(`${sentence}. ${details.hint}`);
-    this.code = details.code;
+    super(
+      {
+        code: details.code,
+        message: sentence,
+        hint: details.hint,
+        quantity: details.quantity,
+        expected: details.allowedRange,
+        actual: details.value,
+      },
+      { message: `${sentence}. ${details.hint}` },
+    );
     this.quantity = details.quantity;
     this.value = details.value;
     this.allowedRange = details.allowedRange;
@@ -96,11 +110,11 @@ function isInside(value: number, range: NumericRange): boolean {
 export function requireNumber(quantity: string, value: unknown, range: NumericRange, hint: string): number {
   const allowedRange = describeRange(range);
   if (value === undefined || value === null) {
-    throw new SolverDomainError({ code: 'MISSING_QUANTITY', quantity, value: null, allowedRange, hint });
+    throw new SolverDomainError({ code: 'missing-quantity', quantity, value: null, allowedRange, hint });
   }
   if (typeof value !== 'number' || !Number.isFinite(value)) {
     throw new SolverDomainError({
-      code: 'NOT_A_FINITE_NUMBER',
+      code: 'not-a-finite-number',
       quantity,
       value: typeof value === 'number' ? String(value) : `${typeof value} ${JSON.stringify(value) ?? ''}`.trim(),
       allowedRange,
@@ -108,7 +122,7 @@ export function requireNumber(quantity: string, value: unknown, range: NumericRa
     });
   }
   if (!isInside(value, range)) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity, value, allowedRange, hint });
+    throw new SolverDomainError({ code: 'out-of-range', quantity, value, allowedRange, hint });
   }
   return value;
 }
@@ -121,10 +135,10 @@ export function optionalNumber(quantity: string, value: unknown, fallback: numbe
 export function requireChoice<T extends string>(quantity: string, value: unknown, choices: readonly T[], hint: string): T {
   const allowedRange = `one of ${choices.map((choice) => `'${choice}'`).join(', ')}`;
   if (value === undefined || value === null) {
-    throw new SolverDomainError({ code: 'MISSING_QUANTITY', quantity, value: null, allowedRange, hint });
+    throw new SolverDomainError({ code: 'missing-quantity', quantity, value: null, allowedRange, hint });
   }
   if (typeof value !== 'string' || !(choices as readonly string[]).includes(value)) {
-    throw new SolverDomainError({ code: 'OUT_OF_RANGE', quantity, value: String(value), allowedRange, hint });
+    throw new SolverDomainError({ code: 'out-of-range', quantity, value: String(value), allowedRange, hint });
   }
   return value as T;
 }
@@ -132,7 +146,7 @@ export function requireChoice<T extends string>(quantity: string, value: unknown
 export function requireObject(quantity: string, value: unknown, hint: string): Record<string, unknown> {
   if (value === null || typeof value !== 'object' || Array.isArray(value)) {
     throw new SolverDomainError({
-      code: value === undefined || value === null ? 'MISSING_QUANTITY' : 'OUT_OF_RANGE',
+      code: value === undefined || value === null ? 'missing-quantity' : 'out-of-range',
       quantity,
       value: value === undefined || value === null ? null : typeof value,
       allowedRange: 'an object',
@@ -145,7 +159,7 @@ export function requireObject(quantity: string, value: unknown, hint: string): R
 export function requireArray(quantity: string, value: unknown, minLength: number, hint: string): unknown[] {
   if (!Array.isArray(value)) {
     throw new SolverDomainError({
-      code: value === undefined || value === null ? 'MISSING_QUANTITY' : 'OUT_OF_RANGE',
+      code: value === undefined || value === null ? 'missing-quantity' : 'out-of-range',
       quantity,
       value: value === undefined || value === null ? null : typeof value,
       allowedRange: `a list of at least ${minLength} item(s)`,
@@ -154,7 +168,7 @@ export function requireArray(quantity: string, value: unknown, minLength: number
   }
   if (value.length < minLength) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: `${quantity}.length`,
       value: value.length,
       allowedRange: `[${minLength}, ∞)`,
@@ -203,7 +217,7 @@ export function assertFiniteResult<T>(functionName: string, result: T): T {
   const found = containsNonFinite(result) ? findNonFinite(result, functionName) : null;
   if (found) {
     throw new SolverDomainError({
-      code: 'NON_FINITE_RESULT',
+      code: 'non-finite-result',
       quantity: found.path,
       value: String(found.value),
       allowedRange: 'a finite number',

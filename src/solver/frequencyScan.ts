@@ -158,7 +158,7 @@ function readElement(value: unknown, index: number, frequencyHz: number): ScanBr
       const lengthKm = requireNumber(`${where}.lengthKm`, record.lengthKm, LENGTH_RANGE_KM, HINT);
       if (!(constants.perKm.shuntSusceptanceUsPerKm > 0)) {
         throw new SolverDomainError({
-          code: 'OUT_OF_RANGE',
+          code: 'out-of-range',
           quantity: `${where}.shuntSusceptanceUsPerKm`,
           value: constants.perKm.shuntSusceptanceUsPerKm,
           allowedRange: '(0, 1000] uS/km',
@@ -193,7 +193,7 @@ function drivingPointImpedance(branches: ScanBranch[], frequencyHz: number): Com
   const abcd = branches.reduce((product, branch) => multiplyAbcd(product, branch.abcdAt(frequencyHz)), IDENTITY_ABCD);
   if (abcd.C.abs() <= 1e-300) {
     throw new SolverDomainError({
-      code: 'DEGENERATE_NETWORK',
+      code: 'degenerate-network',
       quantity: 'elements',
       value: `C = ${abcd.C.abs()} S at ${frequencyHz} Hz`,
       allowedRange: 'a chain with a path to ground (a system, a shunt reactor or a line section)',

@@ -75,7 +75,7 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
   const count = bundle === null ? 1 : requireNumber('bundle.subConductorCount', bundle.subConductorCount, { min: 1, max: 16 }, HINT);
   if (!Number.isInteger(count)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'bundle.subConductorCount',
       value: count,
       allowedRange: 'an integer in [1, 16]',
@@ -100,7 +100,7 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
   });
   if (positions.length !== 3) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'phasePositionsM.length',
       value: positions.length,
       allowedRange: 'exactly 3',
@@ -120,7 +120,7 @@ export function lineConstantsFromGeometry(options: GeometryOptions): LineConstan
   const bundleCapacitanceRadiusM = bundleRadius(outsideDiameterMm / 2e3);
   if (!(gmdM > circumradiusM + outsideDiameterMm / 2e3) || !(gmdM > bundleCapacitanceRadiusM)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'geometric mean distance between phases (m)',
       value: gmdM,
       allowedRange: `(${circumradiusM + outsideDiameterMm / 2e3}, ∞) m, larger than the bundle size`,

@@ -36,7 +36,7 @@ function eitherOf(
   const [firstValue, secondValue] = values;
   if (firstValue === undefined && secondValue === undefined) {
     throw new SolverDomainError({
-      code: 'MISSING_QUANTITY',
+      code: 'missing-quantity',
       quantity: `${firstName} (or ${secondName})`,
       value: null,
       allowedRange: `[${range.min}, ${range.max}] ${range.unit}`,
@@ -51,7 +51,7 @@ function eitherOf(
   if (first !== undefined && second !== undefined) {
     if (Math.abs(first - second) > 1e-9 * Math.max(Math.abs(first), Math.abs(second))) {
       throw new SolverDomainError({
-        code: 'INCONSISTENT_QUANTITIES',
+        code: 'inconsistent-quantities',
         quantity: firstName,
         value: first,
         allowedRange: `${second} ${range.unit} (the value implied by ${secondName} at this frequency)`,
@@ -130,7 +130,7 @@ export function perKmToSi(perKm: PerKmConstants): { z: Complex; y: Complex } {
 function requirePositiveSusceptance(model: LineModelName, perKm: PerKmConstants): void {
   if (model === 'distributed' && !(perKm.shuntSusceptanceUsPerKm > 0)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'shuntSusceptanceUsPerKm',
       value: perKm.shuntSusceptanceUsPerKm,
       allowedRange: '(0, 1000] uS/km for the distributed model',

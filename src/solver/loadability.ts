@@ -104,7 +104,7 @@ export function lineLoadability(
     );
   } else {
     throw new SolverDomainError({
-      code: 'MISSING_QUANTITY',
+      code: 'missing-quantity',
       quantity: 'thermalLimitMw (or thermalLimitA)',
       value: null,
       allowedRange: '(0, 100000] MW',

@@ -93,7 +93,7 @@ function deadTimeCase(phaseVoltageV: number, interphaseS: number, phaseToGroundS
   const selfS = phaseToGroundS + 2 * interphaseS;
   if (selfS === 0 || Math.abs(selfS) < 1e-12 * Math.abs(interphaseS)) {
     throw new SolverDomainError({
-      code: 'DEGENERATE_NETWORK',
+      code: 'degenerate-network',
       quantity: 'open-phase self susceptance (S)',
       value: selfS,
       allowedRange: 'non-zero',
@@ -150,7 +150,7 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
   );
   if (!Number.isInteger(bankCount)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'reactorBankCount',
       value: bankCount,
       allowedRange: 'an integer in [1, 20]',
@@ -178,7 +178,7 @@ export function neutralReactorDesign(options: NeutralReactorOptions): NeutralRea
   const reactor0 = reactor1 - cancellation * (b1 - b0);
   if (!(reactor0 > 0)) {
     throw new SolverDomainError({
-      code: 'TARGET_UNREACHABLE',
+      code: 'target-unreachable',
       quantity: 'interphaseCancellation',
       value: cancellation,
       allowedRange: `[0, ${forMessage(reactor1 / (b1 - b0))}) with shuntCompensationDegree ${degree}`,

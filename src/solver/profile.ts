@@ -137,7 +137,7 @@ export function requireSameNetwork(
   const currentDeviation = current.sub(expectedCurrent).abs() / scaleI;
   if (!(voltageDeviation <= 1e-6 && currentDeviation <= 1e-6)) {
     throw new SolverDomainError({
-      code: 'INCONSISTENT_QUANTITIES',
+      code: 'inconsistent-quantities',
       quantity: 'operatingPoint',
       value: `receiving end ${lineKvFromPhaseVolts(expectedVoltage.abs())} kV, ${expectedCurrent.abs()} A`,
       allowedRange: `the receiving end this network gives for the same sending end: ${lineKvFromPhaseVolts(voltage.abs())} kV, ${current.abs()} A`,
@@ -170,7 +170,7 @@ export function voltageProfile(options: {
   const routeLengthKm = elements.reduce((sum, element) => sum + (element.kind === 'line-section' ? element.lengthKm : 0), 0);
   if (!(routeLengthKm > 0)) {
     throw new SolverDomainError({
-      code: 'DEGENERATE_NETWORK',
+      code: 'degenerate-network',
       quantity: 'route length of network',
       value: routeLengthKm,
       allowedRange: '(0, ∞) km',

@@ -102,7 +102,7 @@ export function sequenceCapacitanceFromGeometry(options: SequenceCapacitanceOpti
       const distance = Math.hypot(wires[i]!.x - wires[j]!.x, wires[i]!.y - wires[j]!.y);
       if (!(distance > wires[i]!.radiusM + wires[j]!.radiusM)) {
         throw new SolverDomainError({
-          code: 'OUT_OF_RANGE',
+          code: 'out-of-range',
           quantity: `distance between wire ${i + 1} and wire ${j + 1} (m)`,
           value: distance,
           allowedRange: `(${wires[i]!.radiusM + wires[j]!.radiusM}, ∞) m`,

@@ -73,7 +73,7 @@ export function seriesBankRatings(options: {
     (record.emergencyCases === undefined ? [] : requireArray('emergencyCases', record.emergencyCases, 0, HINT)).map((label, index) => {
       if (typeof label === 'string' && labels.includes(label)) return label;
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: `emergencyCases[${index}]`,
         value: String(label),
         allowedRange: `one of ${labels.map((known) => `'${known}'`).join(', ')}`,
@@ -107,7 +107,7 @@ export function seriesBankRatings(options: {
   const heldTo = duties.find((duty) => duty.label === dutyLabel);
   if (!heldTo) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'emergencyDutyLabel',
       value: dutyLabel,
       allowedRange: `one of ${duties.map((duty) => `'${duty.label}'`).join(', ')}`,
@@ -135,7 +135,7 @@ export function seriesBankRatings(options: {
       ),
     ];
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'segment',
       value: String(segmentName),
       allowedRange: known.length === 0 ? 'no series segments in the solved cases' : `one of ${known.map((name) => `'${name}'`).join(', ')}`,
@@ -152,7 +152,7 @@ export function seriesBankRatings(options: {
   const normal = highest(false);
   if (normal === null) {
     throw new SolverDomainError({
-      code: 'MISSING_QUANTITY',
+      code: 'missing-quantity',
       quantity: 'table.cases',
       value: null,
       allowedRange: `at least one solved normal case with '${String(segmentName)}' inserted`,
@@ -188,7 +188,7 @@ function readDuties(value: unknown): OverloadDuty[] {
     const duty = requireObject(`overloadDuties[${index}]`, entry, 'Pass { label, currentPu, durationMinutes }.');
     if (typeof duty.label !== 'string' || duty.label === '') {
       throw new SolverDomainError({
-        code: 'MISSING_QUANTITY',
+        code: 'missing-quantity',
         quantity: `overloadDuties[${index}].label`,
         value: null,
         allowedRange: 'a name',

@@ -159,7 +159,7 @@ export function seriesCompensationDesign(options: {
   const line = readTwoPort('line', record.line);
   if (line.kind !== 'line-section') {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'line.kind',
       value: line.kind,
       allowedRange: "'line-section'",
@@ -226,7 +226,7 @@ export function seriesCompensationDesign(options: {
     if (firstReaching < 0) {
       const best = largestTransfer(scan, transferWith, maxDegree / steps);
       throw new SolverDomainError({
-        code: 'TRANSFER_LIMIT_EXCEEDED',
+        code: 'transfer-limit-exceeded',
         quantity: 'targetTransferMw',
         value: targetTransferMw,
         allowedRange: `(0, ${forMessage(best.transferMw)}] MW at an angle of at most ${angleLimitDeg} deg with at most ${maxDegree * 100} % compensation (the largest transfer, at ${(best.degree * 100).toFixed(1)} %)`,

@@ -154,7 +154,7 @@ export function corridorFault(options: {
   const faultNode = passive === null ? null : faultNodeOf(corridor, state, passive, place);
   if (passive === null || faultNode === null) {
     throw new SolverDomainError({
-      code: 'NO_OPERATING_POINT',
+      code: 'no-operating-point',
       quantity: 'case',
       value: state.label,
       allowedRange: 'a case in which the fault point is connected to a system',
@@ -169,7 +169,7 @@ export function corridorFault(options: {
     const column = impedanceColumn(passive, faultNode, 1);
     if (column === null) {
       throw new SolverDomainError({
-        code: 'DEGENERATE_NETWORK',
+        code: 'degenerate-network',
         quantity: 'at',
         value: place.description,
         allowedRange: 'a bus with a path to a source',
@@ -217,7 +217,7 @@ export function corridorFault(options: {
     }
     if (iterations >= ITERATION_LIMIT) {
       throw new SolverDomainError({
-        code: 'NO_CONVERGENCE',
+        code: 'no-convergence',
         quantity: 'varistor equivalents',
         value: iterations,
         allowedRange: `settled within ${ITERATION_LIMIT} iterations`,
@@ -268,7 +268,7 @@ function readFaultPlace(corridor: Corridor, state: CaseState, value: unknown): R
     const bus = corridor.buses.find((candidate) => candidate.name === place.bus);
     if (!bus) {
       throw new SolverDomainError({
-        code: 'OUT_OF_RANGE',
+        code: 'out-of-range',
         quantity: 'at.bus',
         value: String(place.bus),
         allowedRange: `one of ${corridor.buses.map((candidate) => `'${candidate.name}'`).join(', ')}`,
@@ -280,7 +280,7 @@ function readFaultPlace(corridor: Corridor, state: CaseState, value: unknown): R
   const section = corridor.sections.find((candidate) => candidate.name === place.section);
   if (!section) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'at.section',
       value: String(place.section),
       allowedRange: `one of ${corridor.sections.map((candidate) => `'${candidate.name}'`).join(', ')}`,
@@ -296,7 +296,7 @@ function readFaultPlace(corridor: Corridor, state: CaseState, value: unknown): R
   const circuits = state.circuitsInService[section.index] as number;
   if (circuits !== 1) {
     throw new SolverDomainError({
-      code: 'INCONSISTENT_QUANTITIES',
+      code: 'inconsistent-quantities',
       quantity: 'at.section',
       value: section.name,
       allowedRange: 'a section with exactly one circuit in service in the case',
@@ -356,7 +356,7 @@ function readProtectiveLevels(value: unknown, names: Set<string>): Map<string, n
     Object.entries(record).map(([name, level]) => {
       if (!names.has(name)) {
         throw new SolverDomainError({
-          code: 'OUT_OF_RANGE',
+          code: 'out-of-range',
           quantity: `protectiveLevelsKvPeak.${name}`,
           value: name,
           allowedRange: names.size === 0 ? 'no series segments in this corridor' : `one of ${[...names].map((known) => `'${known}'`).join(', ')}`,

@@ -104,7 +104,7 @@ export function shuntReactorForNoLoad(options: {
   const busHeld = record.sendingBusVoltageKv !== undefined;
   if (busHeld === (record.sendingVoltageKv !== undefined)) {
     throw new SolverDomainError({
-      code: busHeld ? 'INCONSISTENT_QUANTITIES' : 'MISSING_QUANTITY',
+      code: busHeld ? 'inconsistent-quantities' : 'missing-quantity',
       quantity: 'sendingVoltageKv / sendingBusVoltageKv',
       value: busHeld ? 'both given' : null,
       allowedRange: 'exactly one of the two',
@@ -147,7 +147,7 @@ export function shuntReactorForNoLoad(options: {
     for (let doubling = 0; receivingVoltageKv(upper) > targetReceivingVoltageKv; doubling += 1) {
       if (doubling > 60) {
         throw new SolverDomainError({
-          code: 'TARGET_UNREACHABLE',
+          code: 'target-unreachable',
           quantity: 'targetReceivingVoltageKv',
           value: targetReceivingVoltageKv,
           allowedRange: `above what shunt reactors can reach on this network`,
@@ -284,7 +284,7 @@ export function shuntCapacitorForLoadVoltage(options: {
     const upper = roots.find(onUpperBranch);
     if (upper === undefined) {
       throw new SolverDomainError({
-        code: 'TARGET_UNREACHABLE',
+        code: 'target-unreachable',
         quantity: 'targetReceivingVoltageKv',
         value: targetReceivingVoltageKv,
         allowedRange: `voltages a receiving-end capacitor can hold on the upper branch of the P-V curve with Vs = ${sendingVoltageKv} kV for this load`,
@@ -385,7 +385,7 @@ export function svcCharacteristicCorners(options: SvcCharacteristicOptions): Svc
   const slopeReactancePu = slopePercent / 100;
   if (slopeReactancePu * inductive >= 1) {
     throw new SolverDomainError({
-      code: 'INCONSISTENT_QUANTITIES',
+      code: 'inconsistent-quantities',
       quantity: 'slopePercent × bMaxInductivePu / 100',
       value: slopeReactancePu * inductive,
       allowedRange: '[0, 1), otherwise the slope never meets the inductive limit',
@@ -487,7 +487,7 @@ export function svcRange(options: {
     const output = outputAt(busV);
     if (output === null || !Number.isFinite(characteristicGap(busV)) || Math.abs(characteristicGap(busV)) > 1e-6 * referenceV) {
       throw new SolverDomainError({
-        code: 'NO_OPERATING_POINT',
+        code: 'no-operating-point',
         quantity: `loadCases[${index}] ('${label}')`,
         value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
         allowedRange: `loads for which some SVC output holds the bus near ${referenceVoltageKv} kV`,

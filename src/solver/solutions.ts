@@ -84,7 +84,7 @@ export function requireSeriesPath(abcd: AbcdMatrix, network: TwoPort): void {
   requireInductiveSeriesPath(network);
   if (abcd.B.abs() < 1e-9) {
     throw new SolverDomainError({
-      code: 'DEGENERATE_NETWORK',
+      code: 'degenerate-network',
       quantity: `B of '${labelOf(network)}'`,
       value: abcd.B.abs(),
       allowedRange: '|B| > 1e-9 ohm',
@@ -121,7 +121,7 @@ function buildOperatingPoint(
 function requireUsableA(abcd: AbcdMatrix, network: TwoPort): void {
   if (abcd.A.abs() < 1e-6) {
     throw new SolverDomainError({
-      code: 'DEGENERATE_NETWORK',
+      code: 'degenerate-network',
       quantity: `|A| of '${labelOf(network)}'`,
       value: abcd.A.abs(),
       allowedRange: '|A| >= 1e-6',
@@ -260,7 +260,7 @@ export function deliveredReactiveVa(abcd: AbcdMatrix, sendingLineV: number, busV
 export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load: Complex): SolverDomainError {
   const multiple = noseLoadMultiple(abcd, kvToV(sendingVoltageKv), load);
   return new SolverDomainError({
-    code: 'NO_OPERATING_POINT',
+    code: 'no-operating-point',
     quantity: 'load',
     value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
     allowedRange: `up to P = ${forMessage(wToMw(multiple * load.re))} MW, Q = ${forMessage(varToMvar(multiple * load.im))} Mvar at this power factor (the nose of the P-V curve at Vs = ${sendingVoltageKv} kV)`,
@@ -323,7 +323,7 @@ export function solveFixedSendingVoltage(options: {
   }
   if (!(mismatch <= toleranceMva * 1e6) || !(magnitude > 0)) {
     throw new SolverDomainError({
-      code: 'NO_CONVERGENCE',
+      code: 'no-convergence',
       quantity: 'power mismatch at the receiving bus',
       value: vaToMva(mismatch),
       allowedRange: `[0, ${toleranceMva}] MVA within ${maxIterations} iterations`,

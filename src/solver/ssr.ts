@@ -53,7 +53,7 @@ export function ssrScreening(options: {
   const complementHz = frequencyHz - electricalResonanceHz;
   if (!(complementHz > 0)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: 'capacitorReactanceOhm / totalReactanceOhm',
       value: capacitorReactanceOhm / totalReactanceOhm,
       allowedRange: '(0, 1)',

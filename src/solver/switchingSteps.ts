@@ -73,7 +73,7 @@ export function switchingSteps(options: {
           const unit = allUnits.find((candidate) => candidate.name === name);
           if (!unit) {
             throw new SolverDomainError({
-              code: 'OUT_OF_RANGE',
+              code: 'out-of-range',
               quantity: `units[${index}]`,
               value: String(name),
               allowedRange:

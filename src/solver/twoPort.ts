@@ -148,7 +148,7 @@ export function readTwoPort(quantity: string, value: unknown): TwoPort {
   const record = requireObject(quantity, value, TWO_PORT_HINT);
   if (typeof record.kind !== 'string' || !ELEMENT_KINDS.has(record.kind)) {
     throw new SolverDomainError({
-      code: 'OUT_OF_RANGE',
+      code: 'out-of-range',
       quantity: `${quantity}.kind`,
       value: record.kind === undefined ? null : String(record.kind),
       allowedRange: [...ELEMENT_KINDS].map((kind) => `'${kind}'`).join(', '),
@@ -205,7 +205,7 @@ function requireProductOfElements(network: CascadeTwoPort, tolerance: number): v
     const deviation = stored[key].sub(product[key]).abs();
     if (!(deviation <= tolerance * Math.max(product[key].abs(), stored[key].abs(), key === 'A' || key === 'D' ? 1 : 0) + Number.MIN_VALUE)) {
       throw new SolverDomainError({
-        code: 'RECIPROCITY_VIOLATED',
+        code: 'reciprocity-violated',
         quantity: `${key} of the cascade '${labelOf(network)}'`,
         value: `${stored[key].re} + j${stored[key].im}`,
         allowedRange: `${product[key].re} + j${product[key].im} ± ${tolerance} relative`,
@@ -242,7 +242,7 @@ export function checkReciprocity(options: { network: TwoPort; tolerance?: number
     const { deviation, determinant } = determinantDeviation(abcdOf(candidate.twoPort));
     if (!(deviation <= tolerance)) {
       throw new SolverDomainError({
-        code: 'RECIPROCITY_VIOLATED',
+        code: 'reciprocity-violated',
         quantity: `AD - BC of ${candidate.where}`,
         value: `${determinant.re} + j${determinant.im}`,
         allowedRange: `1 ± ${tolerance}`,

@@ -91,7 +91,7 @@ function solveFaultCurrentA(sourcePhaseV: number, loop: Complex, xcOhm: number, 
     lowA = currentA;
   }
   throw new SolverDomainError({
-    code: 'OUT_OF_RANGE',
+    code: 'out-of-range',
     quantity: 'fault current / protective-level current',
     value: `> ${MAXIMUM_RATIO_PU}`,
     allowedRange: `[0, ${MAXIMUM_RATIO_PU}]`,

@@ -124,6 +124,9 @@ function readOneInput(reader: FieldReader, name: string, node: YamlNode | null, 
       message: `${where} = ${given.text} ${rangeProblem}`,
       at: problemAt(valueNode),
       hint: 'correct the value, or widen min/max if the study really covers it',
+      quantity: name,
+      expected: allowedRange(spec),
+      actual: given.text,
     });
     return undefined;
   }
@@ -156,8 +159,12 @@ function quantityFrom(
   }
 }
 
+function allowedRange(spec: InputSpec): string {
+  return `${spec.min ? describe(spec.min) : '-inf'} to ${spec.max ? describe(spec.max) : '+inf'}`;
+}
+
 function outOfRange(spec: InputSpec, quantity: ParsedQuantity): string | undefined {
-  const range = `allowed ${spec.min ? describe(spec.min) : '-inf'} to ${spec.max ? describe(spec.max) : '+inf'}`;
+  const range = `allowed ${allowedRange(spec)}`;
   if (spec.min && quantity.si < spec.min.si) return `is below its minimum (${range})`;
   if (spec.max && quantity.si > spec.max.si) return `is above its maximum (${range})`;
   return undefined;
@@ -215,7 +222,14 @@ export function effectiveInputs(specs: readonly InputSpec[], overrides: readonly
     }
     const rangeProblem = outOfRange(spec, parsed);
     if (rangeProblem) {
-      diagnostics.push({ code: 'override-out-of-range', message: `${where} ${rangeProblem}`, hint: 'choose a value inside the declared range' });
+      diagnostics.push({
+        code: 'override-out-of-range',
+        message: `${where} ${rangeProblem}`,
+        hint: 'choose a value inside the declared range',
+        quantity: spec.name,
+        expected: allowedRange(spec),
+        actual: describe(parsed),
+      });
       continue;
     }
     overridden.set(spec.name, parsed);

@@ -44,6 +44,9 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
       message: `the study date "${date}" is not a calendar date written YYYY-MM-DD`,
       at: place.at(nodeOf(root, 'date')),
       hint: 'write e.g. "date: 2026-11-20"; the report shows this date, never the day it was run',
+      quantity: 'date',
+      expected: 'a calendar date, YYYY-MM-DD',
+      actual: date,
     });
   }
   const engineer = readPerson(reader, root, 'engineer', true);

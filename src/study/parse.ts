@@ -1,7 +1,7 @@
 // Parse stage: study source text -> Study (front matter, inputs, calculation blocks, inline values), or located diagnostics.
 import type { Token } from 'markdown-it';
 import { LineCounter, parseDocument, isMap, type Document } from 'yaml';
-import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
 import { createMarkdown, INLINE_VALUE_TOKEN } from './markdown.ts';
 import { readInputs } from './inputs.ts';
 import { readMeta } from './meta.ts';
@@ -46,7 +46,9 @@ export function parseStudy(file: string, source: string): Study {
       const offset = node?.range?.[0];
       if (offset === undefined) return { file, line: fallbackLine };
       const { line, col } = lineCounter.linePos(offset);
-      return { file, line: line + yamlFirstLine - 1, column: col };
+      // The end of the node's value (not of a comment after it): a caret can span a scalar.
+      const end = lineCounter.linePos(node?.range?.[1] ?? offset);
+      return { file, line: line + yamlFirstLine - 1, column: col, endLine: end.line + yamlFirstLine - 1, endColumn: end.col };
     },
   };
   for (const error of document.errors) {
@@ -56,7 +58,6 @@ export function parseStudy(file: string, source: string): Study {
       code: 'front-matter-yaml',
       message: `the front matter is not valid YAML: ${error.message.split('\n')[0]}`,
       at: { file, line: studyLine, column: col },
-      excerpt: excerptAround(source, studyLine, col),
       hint: 'check indentation and quoting; a value with a colon needs quotes',
     });
   }
@@ -79,7 +80,7 @@ export function parseStudy(file: string, source: string): Study {
   const body = lines.slice(closing + 1).join('\n');
   const md = createMarkdown();
   const bodyTokens = md.parse(body, {});
-  const { blocks, inlines } = collectBlocksAndInlines(file, source, lines, bodyTokens, bodyFirstLine, diagnostics);
+  const { blocks, inlines } = collectBlocksAndInlines(file, lines, bodyTokens, bodyFirstLine, diagnostics);
 
   if (diagnostics.length > 0 || !meta) throw new StudyFailure(diagnostics);
   return {
@@ -97,7 +98,6 @@ export function parseStudy(file: string, source: string): Study {
 
 function collectBlocksAndInlines(
   file: string,
-  source: string,
   lines: string[],
   tokens: Token[],
   bodyFirstLine: number,
@@ -116,7 +116,7 @@ function collectBlocksAndInlines(
       const fenceLine = token.map[0] + bodyFirstLine;
       const [language, ...words] = token.info.trim().split(/\s+/);
       if (language !== CALC_LANGUAGE) continue;
-      checkFenceClosed(file, source, lines, token, fenceLine, bodyFirstLine, diagnostics);
+      checkFenceClosed(file, lines, token, fenceLine, bodyFirstLine, diagnostics);
       const options = { hideCode: false, noRun: false };
       for (const word of words) {
         const key = BLOCK_OPTION_WORDS[word as keyof typeof BLOCK_OPTION_WORDS];
@@ -126,7 +126,6 @@ function collectBlocksAndInlines(
             code: 'block-option-unknown',
             message: `unknown calculation block option "${word}"`,
             at: { file, line: fenceLine, column: 1 },
-            excerpt: excerptAround(source, fenceLine),
             hint: `the options after \`ts\` are: ${Object.keys(BLOCK_OPTION_WORDS).join(', ')}`,
           });
         }
@@ -140,7 +139,7 @@ function collectBlocksAndInlines(
       let lineInParagraph = 0;
       for (const child of token.children) {
         if (child.type === 'image') {
-          refuseImageSource(file, source, lines, child, paragraphLine, diagnostics);
+          refuseImageSource(file, lines, child, paragraphLine, diagnostics);
           continue;
         }
         if (child.type !== INLINE_VALUE_TOKEN) continue;
@@ -159,7 +158,6 @@ function collectBlocksAndInlines(
             code: 'inline-empty',
             message: 'an inline value {{ }} has no expression',
             at,
-            excerpt: excerptAround(source, line, column),
             hint: 'write the expression to show between the braces, e.g. {{ chargingMvar }}',
           });
           continue;
@@ -175,7 +173,7 @@ function collectBlocksAndInlines(
 /** An image a report may show is carried in the study (a data: address); anything else would be loaded when the report is opened. */
 const CARRIED_IMAGE = /^data:image\/(png|jpeg|gif|webp);/i;
 
-function refuseImageSource(file: string, source: string, lines: string[], image: Token, paragraphLine: number, diagnostics: Diagnostic[]): void {
+function refuseImageSource(file: string, lines: string[], image: Token, paragraphLine: number, diagnostics: Diagnostic[]): void {
   const address = String(image.attrGet('src') ?? '');
   if (CARRIED_IMAGE.test(address)) return;
   // markdown-it percent-encodes the address; as written it may sit on a later line of the paragraph, or in a reference definition.
@@ -191,7 +189,6 @@ function refuseImageSource(file: string, source: string, lines: string[], image:
     code: 'markdown-image-source',
     message: `the image "${address}" would be loaded from outside the report when it is opened`,
     at: { file, line, column: index === undefined ? 1 : columnIn(index) + 1 },
-    excerpt: excerptAround(source, line),
     hint: 'a report is self-contained: embed the image as a data: address (data:image/png;base64,…), or draw it with chart()',
   });
 }
@@ -205,15 +202,7 @@ function readableAddress(address: string): string {
 }
 
 /** markdown-it lets an unclosed fence run to the end of the document; a study must not. */
-function checkFenceClosed(
-  file: string,
-  source: string,
-  lines: string[],
-  token: Token,
-  fenceLine: number,
-  bodyFirstLine: number,
-  diagnostics: Diagnostic[],
-): void {
+function checkFenceClosed(file: string, lines: string[], token: Token, fenceLine: number, bodyFirstLine: number, diagnostics: Diagnostic[]): void {
   const lastLine = lines[(token.map as [number, number])[1] + bodyFirstLine - 2] ?? '';
   const marker = token.markup;
   if (!lastLine.trim().startsWith(marker) || (token.map as [number, number])[1] - (token.map as [number, number])[0] < 2) {
@@ -221,7 +210,6 @@ function checkFenceClosed(
       code: 'fence-unclosed',
       message: `the calculation block opened at line ${fenceLine} is never closed`,
       at: { file, line: fenceLine, column: 1 },
-      excerpt: excerptAround(source, fenceLine),
       hint: `end the block with a line holding only ${marker}`,
     });
   }

@@ -1,6 +1,6 @@
 // Reading typed fields out of a YAML mapping, each problem a located diagnostic rather than a throw.
 import { isMap, isScalar, type YAMLMap, type Node as YamlNode, type Pair, type Scalar } from 'yaml';
-import type { Diagnostic, SourceLocation } from '../diagnostics/diagnostic.ts';
+import { type Diagnostic, type SourceLocation, plainValue } from '../diagnostics/diagnostic.ts';
 
 /** Where a YAML node sits in the study file. */
 export interface YamlPlace {
@@ -107,6 +107,9 @@ export function readNumber(
       message: `"${key}" in ${where} is ${JSON.stringify(value ?? null)}; it must be ${range.integer ? 'a whole number' : 'a number'} from ${range.min} to ${range.max}`,
       at: reader.place.at(node),
       hint: `write e.g. "${key}: ${range.min}"`,
+      quantity: key,
+      expected: `${range.integer ? 'a whole number' : 'a number'} from ${range.min} to ${range.max}`,
+      actual: plainValue(value ?? null),
     });
     return undefined;
   }

@@ -99,16 +99,16 @@ describe('voltageProfileChart', () => {
 
   it('refuses two cases with the same label', () => {
     const twice = [cases[0], cases[0]].filter((series) => series !== undefined);
-    expectInputError(() => voltageProfileChart({ cases: twice }), 'CHART_INPUT_OUT_OF_RANGE', 'cases[1].label');
+    expectInputError(() => voltageProfileChart({ cases: twice }), 'chart-input-out-of-range', 'cases[1].label');
   });
 
   it('refuses a voltage that is not a number', () => {
     const broken = [{ label: 'broken', points: [{ distanceKm: 0, voltagePu: Number.NaN }] }];
-    expectInputError(() => voltageProfileChart({ cases: broken }), 'CHART_INPUT_NOT_FINITE', 'cases[0].points[0].voltagePu');
+    expectInputError(() => voltageProfileChart({ cases: broken }), 'chart-input-not-finite', 'cases[0].points[0].voltagePu');
   });
 
   it('refuses a band whose minimum is not below its maximum', () => {
-    expectInputError(() => voltageProfileChart({ cases, bandPu: { min: 1.05, max: 0.95 } }), 'CHART_INPUT_OUT_OF_RANGE', 'bandPu.min');
+    expectInputError(() => voltageProfileChart({ cases, bandPu: { min: 1.05, max: 0.95 } }), 'chart-input-out-of-range', 'bandPu.min');
   });
 });
 
@@ -184,7 +184,7 @@ describe('powerAngleChart', () => {
     expectError(
       SolverDomainError,
       () => powerAngleChart({ ...input, operatingPoint: { angleDeg: 90, pMw: 1300 } }),
-      'OUT_OF_RANGE',
+      'out-of-range',
       'operatingPowerMw',
     );
   });
@@ -229,7 +229,7 @@ describe('svcCharacteristicChart', () => {
     expectError(
       SolverDomainError,
       () => svcCharacteristicChart({ ...input, slopePercent: 50, bMaxInductivePu: 2 }),
-      'INCONSISTENT_QUANTITIES',
+      'inconsistent-quantities',
       'slopePercent × bMaxInductivePu / 100',
     );
   });
@@ -271,6 +271,6 @@ describe('loadabilityChart', () => {
   });
 
   it('refuses an empty point list', () => {
-    expectInputError(() => loadabilityChart({ points: [] }), 'CHART_INPUT_EMPTY', 'points.length');
+    expectInputError(() => loadabilityChart({ points: [] }), 'chart-input-empty', 'points.length');
   });
 });

@@ -52,7 +52,6 @@ describe('running calculation blocks', () => {
     expect(problem?.message).toBe('boom at four');
     // V8 places an error where it is constructed: the `new` of `new Error`, column 11 here.
     expect(problem?.at).toEqual({ file: 'test.study.md', line: lineOf(source, 'boom at four'), column: 11 });
-    expect(problem?.excerpt).toContain('boom at four');
   });
 
   it('never shows kvarbook internals in a located error', async () => {

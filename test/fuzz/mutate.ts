@@ -2,6 +2,7 @@
 import fc from 'fast-check';
 import type { Diagnostic } from '../../src/diagnostics/diagnostic.ts';
 import { StudyFailure } from '../../src/diagnostics/diagnostic.ts';
+import { isDiagnosticCode } from '../../src/diagnostics/codes.ts';
 import { effectiveInputs } from '../../src/study/inputs.ts';
 import { parseStudy } from '../../src/study/parse.ts';
 import { transpileBlocks, transpileInlines } from '../../src/execute/transpile.ts';
@@ -147,9 +148,9 @@ const STACK_FRAME = /\n\s+at \S|node:internal|node_modules\/|\/src\/[a-z]+\//;
 
 /** Why a diagnostic is not one a study author can act on, or undefined when it is. */
 export function diagnosticFlaw(diagnostic: Diagnostic, source: string): string | undefined {
-  if (typeof diagnostic.code !== 'string' || diagnostic.code === '' || diagnostic.code === 'internal') return `code "${diagnostic.code}"`;
+  if (typeof diagnostic.code !== 'string' || !isDiagnosticCode(diagnostic.code) || diagnostic.code === 'internal') return `code "${diagnostic.code}"`;
   if (typeof diagnostic.message !== 'string' || diagnostic.message.trim() === '') return 'no message';
-  for (const text of [diagnostic.message, diagnostic.hint ?? '', diagnostic.excerpt ?? '']) {
+  for (const text of [diagnostic.message, diagnostic.hint ?? '']) {
     if (STACK_FRAME.test(text)) return `internal detail in "${text.slice(0, 200)}"`;
   }
   // Every problem a study run finds lies in the study, so every one must say where.

@@ -81,13 +81,13 @@ describe('canonicalJson', () => {
     ['-Infinity', Number.NEGATIVE_INFINITY],
   ])('refuses %s and names where it was', (_label, value) => {
     const error = sealErrorOf(() => canonicalJson({ results: [{ value }] }));
-    expect(error.code).toBe('not-canonical-json');
+    expect(error.code).toBe('seal-not-canonical-json');
     expect(error.quantity).toBe('$.results[0].value');
   });
 
   it('refuses an undefined member instead of silently dropping it', () => {
     const error = sealErrorOf(() => canonicalJson({ unit: undefined }));
-    expect(error.code).toBe('not-canonical-json');
+    expect(error.code).toBe('seal-not-canonical-json');
     expect(error.quantity).toBe('$.unit');
   });
 
@@ -96,7 +96,7 @@ describe('canonicalJson', () => {
   });
 
   it('refuses class instances such as dates, whose toJSON would hide what is signed', () => {
-    expect(sealErrorOf(() => canonicalJson({ when: new Date(0) })).code).toBe('not-canonical-json');
+    expect(sealErrorOf(() => canonicalJson({ when: new Date(0) })).code).toBe('seal-not-canonical-json');
   });
 
   it.each([
@@ -104,12 +104,12 @@ describe('canonicalJson', () => {
     ['a function', () => 1],
     ['a symbol', Symbol('x')],
   ])('refuses %s', (_label, value) => {
-    expect(sealErrorOf(() => canonicalJson({ value })).code).toBe('not-canonical-json');
+    expect(sealErrorOf(() => canonicalJson({ value })).code).toBe('seal-not-canonical-json');
   });
 
   // RFC 8785 §3.2.2.2 requires I-JSON input; I-JSON (RFC 7493 §2.1) forbids unpaired surrogates.
   it('refuses a string holding a lone surrogate', () => {
-    expect(sealErrorOf(() => canonicalJson({ name: 'line \ud800' })).code).toBe('not-canonical-json');
+    expect(sealErrorOf(() => canonicalJson({ name: 'line \ud800' })).code).toBe('seal-not-canonical-json');
   });
 
   it('accepts a surrogate pair, which is one well-formed character', () => {

@@ -83,7 +83,7 @@ describe('signCheckRecord and verifyCheckRecord', () => {
     const content = verifiedContent();
     content.steps[1]!.passed = false;
     const error = sealErrorOf(() => signCheckRecord(content, checker.privateKey, checker.identity));
-    expect(error.code).toBe('invalid-check-record');
+    expect(error.code).toBe('seal-invalid-check-record');
     expect(error.message).toMatch(/report body/);
   });
 

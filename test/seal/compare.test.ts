@@ -115,7 +115,7 @@ describe('compareResults', () => {
 
   it.each([-1e-9, Number.NaN, Number.POSITIVE_INFINITY])('refuses a default tolerance of %s', (defaultRelativeTolerance) => {
     const error = sealErrorOf(() => compareResults(sealed, rerunOf(sealed), { defaultRelativeTolerance }));
-    expect(error.code).toBe('invalid-tolerance');
+    expect(error.code).toBe('seal-invalid-tolerance');
     expect(error.quantity).toBe('defaultRelativeTolerance');
   });
 });

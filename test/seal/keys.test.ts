@@ -28,14 +28,14 @@ describe('createSigningKey', () => {
 
   it.each(['', 'short', 'x'.repeat(MIN_PASSPHRASE_CHARACTERS - 1)])('refuses the passphrase %j as too short', (passphrase) => {
     const error = sealErrorOf(() => createSigningKey({ ...signerDetails, passphrase }));
-    expect(error.code).toBe('passphrase-too-short');
+    expect(error.code).toBe('seal-passphrase-too-short');
     expect(error.value).toBe([...passphrase].length);
     expect(error.hint).not.toBe('');
   });
 
   it('refuses an empty licence number', () => {
     const error = sealErrorOf(() => createSigningKey({ ...signerDetails, licence: '  ', passphrase: ENGINEER_PASSPHRASE }));
-    expect(error.code).toBe('invalid-identity-field');
+    expect(error.code).toBe('seal-invalid-identity-field');
     expect(error.quantity).toBe('licence');
   });
 
@@ -51,7 +51,7 @@ describe('unlockSigningKey', () => {
   it('refuses a wrong passphrase with the code wrong-passphrase', () => {
     const signer = makeSigner('Ilse Marrow', 'PE-40217');
     const error = sealErrorOf(() => unlockSigningKey(signer.encryptedPrivateKeyPem, 'copper kestrel under a tin noon'));
-    expect(error.code).toBe('wrong-passphrase');
+    expect(error.code).toBe('seal-wrong-passphrase');
     expect(error.message).toMatch(/passphrase/);
   });
 
@@ -70,12 +70,12 @@ describe('unlockSigningKey', () => {
       }
     }
     expect(paddingPassingPassphrase).toBeDefined();
-    expect(sealErrorOf(() => unlockSigningKey(signer.encryptedPrivateKeyPem, paddingPassingPassphrase!)).code).toBe('wrong-passphrase');
+    expect(sealErrorOf(() => unlockSigningKey(signer.encryptedPrivateKeyPem, paddingPassingPassphrase!)).code).toBe('seal-wrong-passphrase');
   });
 
   it('refuses an empty passphrase as wrong', () => {
     const signer = makeSigner('Ilse Marrow', 'PE-40217');
-    expect(sealErrorOf(() => unlockSigningKey(signer.encryptedPrivateKeyPem, '')).code).toBe('wrong-passphrase');
+    expect(sealErrorOf(() => unlockSigningKey(signer.encryptedPrivateKeyPem, '')).code).toBe('seal-wrong-passphrase');
   });
 
   it('still unlocks a PBKDF2 key file as earlier kvarbook versions wrote it', () => {
@@ -84,7 +84,7 @@ describe('unlockSigningKey', () => {
     expect(keyFileDer(pbkdf2Pem).includes(Buffer.from('06092a864886f70d01050c', 'hex'))).toBe(true);
     const unlocked = unlockSigningKey(pbkdf2Pem, ENGINEER_PASSPHRASE);
     expect(unlocked.export({ format: 'jwk' })).toEqual(signer.privateKey.export({ format: 'jwk' }));
-    expect(sealErrorOf(() => unlockSigningKey(pbkdf2Pem, 'not the passphrase at all')).code).toBe('wrong-passphrase');
+    expect(sealErrorOf(() => unlockSigningKey(pbkdf2Pem, 'not the passphrase at all')).code).toBe('seal-wrong-passphrase');
   });
 
   it('writes standard PKCS #8 that OpenSSL itself decrypts (PBES2 with scrypt, RFC 7914 §7)', () => {
@@ -105,13 +105,13 @@ describe('unlockSigningKey', () => {
       .match(/.{1,64}/g)!
       .join('\n')}\n-----END ENCRYPTED PRIVATE KEY-----\n`;
     const error = sealErrorOf(() => unlockSigningKey(pem, ENGINEER_PASSPHRASE));
-    expect(error.code).toBe('malformed-key');
+    expect(error.code).toBe('seal-malformed-key');
     expect(error.message).toContain('r=127');
   });
 
   it('refuses text that is not an encrypted private key as malformed-key', () => {
     const signer = makeSigner('Ilse Marrow', 'PE-40217');
-    expect(sealErrorOf(() => unlockSigningKey(signer.identity.publicKeyPem, ENGINEER_PASSPHRASE)).code).toBe('malformed-key');
+    expect(sealErrorOf(() => unlockSigningKey(signer.identity.publicKeyPem, ENGINEER_PASSPHRASE)).code).toBe('seal-malformed-key');
   });
 });
 

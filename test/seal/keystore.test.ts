@@ -42,7 +42,7 @@ describe('saveKey', () => {
     const signer = makeSigner('Ilse Marrow', 'PE-40217');
     const { keyPath } = saveKey(dir, signer);
     writeFileSync(keyPath, 'the engineer’s only copy');
-    expect(sealErrorOf(() => saveKey(dir, signer)).code).toBe('key-exists');
+    expect(sealErrorOf(() => saveKey(dir, signer)).code).toBe('seal-key-exists');
     expect(readFileSync(keyPath, 'utf8')).toBe('the engineer’s only copy');
   });
 
@@ -84,11 +84,11 @@ describe('finding stored keys', () => {
   it('reports an unknown fingerprint as key-not-found', () => {
     const dir = freshTempDir('unknown');
     saveKey(dir, makeSigner('Ilse Marrow', 'PE-40217'));
-    expect(sealErrorOf(() => loadKeyByFingerprint(dir, '0000:1111')).code).toBe('key-not-found');
+    expect(sealErrorOf(() => loadKeyByFingerprint(dir, '0000:1111')).code).toBe('seal-key-not-found');
   });
 
   it('reports an empty folder as having no default key', () => {
-    expect(sealErrorOf(() => loadDefaultKey(freshTempDir('empty'))).code).toBe('no-default-key');
+    expect(sealErrorOf(() => loadDefaultKey(freshTempDir('empty'))).code).toBe('seal-no-default-key');
   });
 
   it('lists every saved key', () => {
@@ -117,7 +117,7 @@ describe('unlockStoredKey', () => {
     const stranger = makeSigner('Tomas Reede', 'PE-51130');
     const { keyPath } = saveKey(dir, signer);
     writeFileSync(keyPath, stranger.encryptedPrivateKeyPem);
-    expect(sealErrorOf(() => unlockStoredKey(loadDefaultKey(dir), ENGINEER_PASSPHRASE)).code).toBe('key-identity-mismatch');
+    expect(sealErrorOf(() => unlockStoredKey(loadDefaultKey(dir), ENGINEER_PASSPHRASE)).code).toBe('seal-key-identity-mismatch');
   });
 });
 

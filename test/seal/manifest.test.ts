@@ -104,7 +104,7 @@ describe('signManifest and verifyEnvelope', () => {
 
   it('refuses to sign with a key that is not the identity’s', () => {
     const error = sealErrorOf(() => signManifest(buildManifest(sampleSubject()), stranger.privateKey, engineer.identity));
-    expect(error.code).toBe('key-identity-mismatch');
+    expect(error.code).toBe('seal-key-identity-mismatch');
   });
 
   it.each<[string, unknown]>([
@@ -186,7 +186,7 @@ describe('buildManifest', () => {
     const subject = sampleSubject();
     subject.results[0]!.value = Number.NaN;
     const error = sealErrorOf(() => buildManifest(subject));
-    expect(error.code).toBe('invalid-seal-subject');
+    expect(error.code).toBe('seal-invalid-seal-subject');
     expect(error.quantity).toBe('subject.results[0].value');
   });
 

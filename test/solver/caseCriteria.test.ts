@@ -114,7 +114,7 @@ describe('design criteria over a case table', () => {
 
   test('refuses settings for a case the table does not have', () => {
     expect(() => corridorCaseCriteria({ table, bandPu: { min: 0.9, max: 1.05 }, cases: { Peak: { bankRating: 'emergency' } } })).toThrow(
-      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'cases.Peak' }),
+      expect.objectContaining({ code: 'out-of-range', quantity: 'cases.Peak' }),
     );
   });
 });

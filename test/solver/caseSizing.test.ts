@@ -259,7 +259,7 @@ describe('reactor sizing across operating cases', () => {
         bandPu: { min: 0.95, max: 1.05 },
         stepLimitPercent: 12,
       }),
-    ).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'buses[0]', allowedRange: "one of 'Harlow Gate', 'Osric Fell'" }));
+    ).toThrow(expect.objectContaining({ code: 'out-of-range', quantity: 'buses[0]', allowedRange: "one of 'Harlow Gate', 'Osric Fell'" }));
   });
 
   test('refuses a band whose top is below its bottom', () => {
@@ -273,6 +273,6 @@ describe('reactor sizing across operating cases', () => {
         bandPu: { min: 1.05, max: 0.95 },
         stepLimitPercent: 12,
       }),
-    ).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'bandPu.max' }));
+    ).toThrow(expect.objectContaining({ code: 'out-of-range', quantity: 'bandPu.max' }));
   });
 });

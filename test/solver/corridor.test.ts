@@ -41,7 +41,7 @@ describe('corridor data validation', () => {
     const data = corridor();
     data.buses[2]!.reactors![0]!.qMvar = -80;
     const error = errorOf(() => solveCorridorCase({ corridor: data, case: load }));
-    expect(error.code).toBe('OUT_OF_RANGE');
+    expect(error.code).toBe('out-of-range');
     expect(error.quantity).toBe('corridor.buses[2].reactors[0].qMvar');
   });
 
@@ -56,7 +56,7 @@ describe('corridor data validation', () => {
   test('refuses a section that skips a bus', () => {
     const data = corridor();
     data.sections[1]!.from = 'Ashgrove';
-    expect(errorOf(() => solveCorridorCase({ corridor: data, case: load })).code).toBe('INCONSISTENT_QUANTITIES');
+    expect(errorOf(() => solveCorridorCase({ corridor: data, case: load })).code).toBe('inconsistent-quantities');
   });
 
   test('refuses fewer sections than pairs of buses (a bank on a missing section)', () => {
@@ -82,7 +82,7 @@ describe('corridor data validation', () => {
   test('refuses a system with both an EMF and a held voltage', () => {
     const data = corridor();
     data.sendingSystem.heldVoltageKv = 400;
-    expect(errorOf(() => solveCorridorCase({ corridor: data, case: load })).code).toBe('INCONSISTENT_QUANTITIES');
+    expect(errorOf(() => solveCorridorCase({ corridor: data, case: load })).code).toBe('inconsistent-quantities');
   });
 
   test('refuses a series segment in an unknown position', () => {
@@ -141,7 +141,7 @@ describe('case data validation: conflicting voltage controls', () => {
         case: { label: 'x', loading: { kind: 'transfer', pMw: 300 }, voltageControl: [{ bus: 'Ashgrove', voltageKv: 400 }] },
       }),
     );
-    expect(error.code).toBe('INCONSISTENT_QUANTITIES');
+    expect(error.code).toBe('inconsistent-quantities');
     expect(error.quantity).toBe('case.voltageControl[0].bus');
   });
 

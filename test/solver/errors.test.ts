@@ -18,7 +18,7 @@ describe('SolverDomainError', () => {
   test('reads on its own for a negative length', () => {
     const error = caught(() => lineModel({ ...perKm, lengthKm: -5 }));
     expect(error.message).toMatch(/^lengthKm = -5 is outside the allowed range \(0, 5000\] km\. /);
-    expect(error).toMatchObject({ code: 'OUT_OF_RANGE', quantity: 'lengthKm', value: -5, allowedRange: '(0, 5000] km' });
+    expect(error).toMatchObject({ code: 'out-of-range', quantity: 'lengthKm', value: -5, allowedRange: '(0, 5000] km' });
     expect(error.hint.length).toBeGreaterThan(0);
   });
 
@@ -28,27 +28,27 @@ describe('SolverDomainError', () => {
 
   test('reports a missing quantity as MISSING_QUANTITY', () => {
     const options = { frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, shuntSusceptanceUsPerKm: 3.6, lengthKm: 100 };
-    expect(caught(() => lineModel(options as never)).code).toBe('MISSING_QUANTITY');
+    expect(caught(() => lineModel(options as never)).code).toBe('missing-quantity');
   });
 
   test('reports NaN and Infinity inputs as NOT_A_FINITE_NUMBER', () => {
-    expect(caught(() => lineModel({ ...perKm, lengthKm: Number.NaN })).code).toBe('NOT_A_FINITE_NUMBER');
-    expect(caught(() => lineModel({ ...perKm, lengthKm: Number.POSITIVE_INFINITY })).code).toBe('NOT_A_FINITE_NUMBER');
+    expect(caught(() => lineModel({ ...perKm, lengthKm: Number.NaN })).code).toBe('not-a-finite-number');
+    expect(caught(() => lineModel({ ...perKm, lengthKm: Number.POSITIVE_INFINITY })).code).toBe('not-a-finite-number');
   });
 
   test('flags inconsistent reactance and inductance', () => {
-    expect(caught(() => lineModel({ ...perKm, seriesInductanceMhPerKm: 2, lengthKm: 100 })).code).toBe('INCONSISTENT_QUANTITIES');
+    expect(caught(() => lineModel({ ...perKm, seriesInductanceMhPerKm: 2, lengthKm: 100 })).code).toBe('inconsistent-quantities');
   });
 
   test('survives JSON with its fields', () => {
     const error = caught(() => lineModel({ ...perKm, lengthKm: -5 }));
-    expect(JSON.parse(JSON.stringify(error))).toMatchObject({ name: 'SolverDomainError', code: 'OUT_OF_RANGE', quantity: 'lengthKm', value: -5 });
+    expect(JSON.parse(JSON.stringify(error))).toMatchObject({ name: 'SolverDomainError', code: 'out-of-range', quantity: 'lengthKm', value: -5 });
   });
 
   test('reports a load beyond the nose as NO_OPERATING_POINT', () => {
     const line = lineModel({ ...perKm, lengthKm: 300 });
     expect(caught(() => solveFixedSendingVoltage({ network: line, sendingVoltageKv: 400, load: { pMw: 50000, qMvar: 0 } })).code).toBe(
-      'NO_OPERATING_POINT',
+      'no-operating-point',
     );
   });
 

@@ -73,10 +73,10 @@ describe('series capacitor segment ratings from the case table', () => {
 
   test('refuses an emergency case the table does not have, and a segment it does not have', () => {
     expect(() => seriesBankRatings({ table, segment: 'SC-G', emergencyCases: ['N-1'] })).toThrow(
-      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'emergencyCases[0]' }),
+      expect.objectContaining({ code: 'out-of-range', quantity: 'emergencyCases[0]' }),
     );
     expect(() => seriesBankRatings({ table, segment: 'SC-X' })).toThrow(
-      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'segment', allowedRange: "one of 'SC-G'" }),
+      expect.objectContaining({ code: 'out-of-range', quantity: 'segment', allowedRange: "one of 'SC-G'" }),
     );
   });
 });

@@ -124,7 +124,7 @@ describe('faults on a corridor case', () => {
 
   test('refuses a fault bus the corridor does not have, naming the buses it has', () => {
     expect(() => corridorFault({ corridor: corridorWith(), case: radialCase, at: { bus: 'Quil End' } })).toThrow(
-      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'at.bus', allowedRange: "one of 'Tarrow', 'Quill End'" }),
+      expect.objectContaining({ code: 'out-of-range', quantity: 'at.bus', allowedRange: "one of 'Tarrow', 'Quill End'" }),
     );
   });
 
@@ -136,7 +136,7 @@ describe('faults on a corridor case', () => {
         at: { bus: 'Quill End' },
         protectiveLevelsKvPeak: { SC2: 150 },
       }),
-    ).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'protectiveLevelsKvPeak.SC2', allowedRange: "one of 'SC1'" }));
+    ).toThrow(expect.objectContaining({ code: 'out-of-range', quantity: 'protectiveLevelsKvPeak.SC2', allowedRange: "one of 'SC1'" }));
   });
 
   test('inside a radial line, draws the feeder and the line up to the fault in parallel with the open rest of the line', () => {
@@ -171,7 +171,7 @@ describe('faults on a corridor case', () => {
     const corridor = corridorWith();
     const double = { ...corridor, sections: corridor.sections.map((section) => ({ ...section, circuits: 2 as const })) };
     expect(() => corridorFault({ corridor: double, case: radialCase, at: { section: 'Tarrow - Quill End', distanceKm: 100 } })).toThrow(
-      expect.objectContaining({ code: 'INCONSISTENT_QUANTITIES', quantity: 'at.section' }),
+      expect.objectContaining({ code: 'inconsistent-quantities', quantity: 'at.section' }),
     );
   });
 });

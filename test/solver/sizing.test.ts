@@ -173,7 +173,7 @@ describe('shuntCapacitorForLoadVoltage', () => {
           });
         } catch (error) {
           // Heavy, low power factor loads: the only banks reaching 765 kV put it on the lower branch (see the next describe).
-          expect((error as SolverDomainError).code).toBe('TARGET_UNREACHABLE');
+          expect((error as SolverDomainError).code).toBe('target-unreachable');
           expect((error as Error).message).toMatch(/lower branch/);
           return;
         }
@@ -258,7 +258,7 @@ describe('shuntCapacitorForLoadVoltage near the nose', () => {
               ratedVoltageKv: 400,
             });
           } catch (error) {
-            expect((error as SolverDomainError).code).toBe('TARGET_UNREACHABLE');
+            expect((error as SolverDomainError).code).toBe('target-unreachable');
             return;
           }
           const solved = solveFixedSendingVoltage({ network: sizing.compensatedNetwork, sendingVoltageKv: 400, load: { pMw, qMvar } });

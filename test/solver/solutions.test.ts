@@ -79,7 +79,7 @@ describe('solveFixedSendingVoltage', () => {
         try {
           result = solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load });
         } catch (error) {
-          expect((error as SolverDomainError).code).toBe('NO_OPERATING_POINT');
+          expect((error as SolverDomainError).code).toBe('no-operating-point');
           return;
         }
         const check = solveReceivingLoad({ network: lossy, receivingVoltageKv: result.receivingEnd.voltageKv, load });

@@ -100,7 +100,7 @@ describe('checkReciprocity', () => {
     try {
       checkReciprocity({ network });
     } catch (error) {
-      expect((error as SolverDomainError).code).toBe('RECIPROCITY_VIOLATED');
+      expect((error as SolverDomainError).code).toBe('reciprocity-violated');
     }
   });
 

@@ -48,7 +48,7 @@ export function runSource(source: string, options: { overrides?: InputOverride[]
 }
 
 /** The diagnostics a failing run produced; fails the test if the run succeeded or threw something else. */
-export async function diagnosticsOf(run: Promise<unknown> | (() => unknown)): Promise<Diagnostic[]> {
+export async function diagnosticsOf(run: Promise<unknown> | (() => unknown)): Promise<readonly Diagnostic[]> {
   try {
     await (typeof run === 'function' ? run() : run);
   } catch (error) {

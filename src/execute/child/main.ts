@@ -8,6 +8,7 @@ import * as solverModule from '../../solver/index.ts';
 import * as chartModule from '../../blocks/charts.ts';
 import { BlockApiError, Figure, InputValue, checkedText, createBlockApi } from '../../blocks/blockApi.ts';
 import { lockDown } from './lockDown.ts';
+import { Problem } from '../../diagnostics/diagnostic.ts';
 import { freezeDeep, hardenContext } from './harden.ts';
 import { ChartInputError } from '../../report/chart/errors.ts';
 import { UnitProblem } from '../../study/units.ts';
@@ -38,10 +39,20 @@ function report(error: unknown): BlockErrorReport {
       message: typeof shaped.message === 'string' ? shaped.message : String(error),
       ...(typeof shaped.code === 'string' ? { code: shaped.code } : {}),
       ...(typeof shaped.hint === 'string' ? { hint: shaped.hint } : {}),
+      ...(error instanceof Problem ? valueFields(error) : {}),
       positions: positionsIn(typeof shaped.stack === 'string' ? shaped.stack : undefined),
     };
   }
   return { name: 'Thrown value', message: `the block threw ${String(error)} (not an Error)`, positions: [] };
+}
+
+/** The value at fault of one of kvarbook's own problems (solver, chart builders, block API), for the diagnostic. */
+function valueFields(problem: Problem): Pick<BlockErrorReport, 'quantity' | 'expected' | 'actual'> {
+  return {
+    ...(problem.quantity !== undefined ? { quantity: problem.quantity } : {}),
+    ...(problem.expected !== undefined ? { expected: problem.expected } : {}),
+    ...(problem.actual !== undefined ? { actual: problem.actual } : {}),
+  };
 }
 
 function createContext(inputs: InputData[]): vm.Context {
@@ -78,7 +89,7 @@ function declare(target: vm.Context, blockIndex: number, declarations: Declarati
       set: (value: unknown) => {
         if (entry.locked) {
           throw new BlockApiError(
-            'constant-reassigned',
+            'block-constant-reassigned',
             `"${name}" is a constant declared in an earlier block and cannot be reassigned`,
             'declare a new name, or use let in the block that declares it',
           );
@@ -117,7 +128,7 @@ function inlineText(value: unknown): string {
   if (typeof value === 'number') {
     if (!Number.isFinite(value))
       throw new BlockApiError(
-        'non-finite',
+        'block-non-finite',
         `the inline value is ${value}, not a finite number`,
         'a report never shows NaN or Infinity: check the calculation above it',
       );

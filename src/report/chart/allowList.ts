@@ -348,7 +348,7 @@ const topRule: Rule = object('a chart', () => ({
 const HINT = 'Report charts use inline rows, marks, encodings of fields and field filters; compute anything else in the calculation block.';
 
 function refuse(path: string, value: unknown, allowed: string, problem = 'The chart uses a Vega-Lite feature reports do not draw'): never {
-  throw new ChartSpecError('CHART_SPEC_NOT_ALLOWED', problem, { quantity: path || '(spec)', value: describeValue(value), allowed, hint: HINT });
+  throw new ChartSpecError('chart-spec-not-allowed', problem, { quantity: path || '(spec)', value: describeValue(value), allowed, hint: HINT });
 }
 
 const typeName = (value: unknown) => (value === null ? 'null' : Array.isArray(value) ? 'array' : typeof value);

@@ -1,12 +1,9 @@
 // Typed errors for chart rendering (bad Vega-Lite specs) and chart builders (bad engineering inputs).
 
-/** Stable codes a caller can branch on; the message is for people. */
-export type ChartSpecErrorCode =
-  | 'CHART_SPEC_NOT_OBJECT'
-  | 'CHART_SPEC_INVALID'
-  | 'CHART_DATA_NOT_INLINE'
-  | 'CHART_SPEC_NOT_ALLOWED'
-  | 'CHART_RENDER_FAILED';
+import type { CodesStartingWith } from '../../diagnostics/codes.ts';
+import { Problem } from '../../diagnostics/diagnostic.ts';
+
+export type ChartSpecErrorCode = CodesStartingWith<'chart-spec-'> | 'chart-data-not-inline' | 'chart-render-failed';
 
 export interface ChartSpecErrorDetails {
   /** Where in the spec the problem is, as a dotted path (e.g. `layer.1.data.url`); `(spec)` for the whole spec. */
@@ -19,42 +16,32 @@ export interface ChartSpecErrorDetails {
 }
 
 /** A Vega-Lite spec that cannot be turned into a chart: malformed, external data, or rejected by Vega. */
-export class ChartSpecError extends Error {
+export class ChartSpecError extends Problem {
   override readonly name = 'ChartSpecError';
-  readonly code: ChartSpecErrorCode;
-  readonly quantity: string;
-  readonly value: string;
-  readonly allowed: string;
-  readonly hint: string;
+  declare readonly code: ChartSpecErrorCode;
 
   constructor(code: ChartSpecErrorCode, problem: string, details: ChartSpecErrorDetails) {
-    super(`${problem} (at ${details.quantity}: ${details.value}; allowed: ${details.allowed}). ${details.hint}`);
-    this.code = code;
-    this.quantity = details.quantity;
-    this.value = details.value;
-    this.allowed = details.allowed;
-    this.hint = details.hint;
+    const message = `${problem} (at ${details.quantity}: ${details.value}; allowed: ${details.allowed})`;
+    super(
+      { code, message, hint: details.hint, quantity: details.quantity, expected: details.allowed, actual: details.value },
+      { message: `${message}. ${details.hint}` },
+    );
   }
 }
 
-export type ChartInputErrorCode = 'CHART_INPUT_OUT_OF_RANGE' | 'CHART_INPUT_EMPTY' | 'CHART_INPUT_NOT_FINITE';
+export type ChartInputErrorCode = CodesStartingWith<'chart-input-'>;
 
 /** An engineering input to a chart builder that cannot be drawn meaningfully. */
-export class ChartInputError extends Error {
+export class ChartInputError extends Problem {
   override readonly name = 'ChartInputError';
-  readonly code: ChartInputErrorCode;
-  readonly quantity: string;
-  readonly value: number | string;
-  readonly allowed: string;
-  readonly hint: string;
+  declare readonly code: ChartInputErrorCode;
 
   constructor(code: ChartInputErrorCode, details: { quantity: string; value: number | string; allowed: string; hint: string }) {
-    super(`${details.quantity} = ${String(details.value)} is not usable for the chart (allowed: ${details.allowed}). ${details.hint}`);
-    this.code = code;
-    this.quantity = details.quantity;
-    this.value = details.value;
-    this.allowed = details.allowed;
-    this.hint = details.hint;
+    const message = `${details.quantity} = ${String(details.value)} is not usable for the chart (allowed: ${details.allowed})`;
+    super(
+      { code, message, hint: details.hint, quantity: details.quantity, expected: details.allowed, actual: details.value },
+      { message: `${message}. ${details.hint}` },
+    );
   }
 }
 

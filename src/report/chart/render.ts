@@ -62,7 +62,7 @@ async function renderNow(spec: unknown, options: RenderChartOptions): Promise<st
       logLevel: 2,
     });
   } catch (error) {
-    throw new ChartSpecError('CHART_SPEC_INVALID', 'Vega could not parse the compiled chart', {
+    throw new ChartSpecError('chart-spec-invalid', 'Vega could not parse the compiled chart', {
       quantity: '(spec)',
       value: messageOf(error),
       allowed: 'a Vega-Lite spec whose expressions and encodings Vega accepts',
@@ -73,7 +73,7 @@ async function renderNow(spec: unknown, options: RenderChartOptions): Promise<st
     resetSVGDefIds();
     const svg = await view.toSVG();
     if (problems.length > 0) {
-      throw new ChartSpecError('CHART_RENDER_FAILED', 'Vega reported problems while rendering the chart', {
+      throw new ChartSpecError('chart-render-failed', 'Vega reported problems while rendering the chart', {
         quantity: '(spec)',
         value: problems.join(' | '),
         allowed: 'a spec that renders without Vega errors or warnings',
@@ -83,7 +83,7 @@ async function renderNow(spec: unknown, options: RenderChartOptions): Promise<st
     return svg;
   } catch (error) {
     if (error instanceof ChartSpecError) throw error;
-    throw new ChartSpecError('CHART_RENDER_FAILED', 'Vega failed while rendering the chart', {
+    throw new ChartSpecError('chart-render-failed', 'Vega failed while rendering the chart', {
       quantity: '(spec)',
       value: messageOf(error),
       allowed: 'a spec that renders without Vega errors',
@@ -96,7 +96,7 @@ async function renderNow(spec: unknown, options: RenderChartOptions): Promise<st
 
 function prepareSpec(spec: unknown, options: RenderChartOptions): Record<string, unknown> {
   if (spec === null || typeof spec !== 'object' || Array.isArray(spec)) {
-    throw new ChartSpecError('CHART_SPEC_NOT_OBJECT', 'A chart spec must be a Vega-Lite object', {
+    throw new ChartSpecError('chart-spec-not-object', 'A chart spec must be a Vega-Lite object', {
       quantity: '(spec)',
       value: describeValue(spec),
       allowed: 'a plain object such as { data, mark, encoding }',
@@ -109,7 +109,7 @@ function prepareSpec(spec: unknown, options: RenderChartOptions): Record<string,
     // that a spec coming from study code might smuggle in.
     copy = JSON.parse(JSON.stringify(spec)) as Record<string, unknown>;
   } catch (error) {
-    throw new ChartSpecError('CHART_SPEC_INVALID', 'A chart spec must be plain JSON data', {
+    throw new ChartSpecError('chart-spec-invalid', 'A chart spec must be plain JSON data', {
       quantity: '(spec)',
       value: messageOf(error),
       allowed: 'JSON-serialisable objects, arrays, strings, numbers, booleans and null',
@@ -125,7 +125,7 @@ function prepareSpec(spec: unknown, options: RenderChartOptions): Record<string,
   ] as const) {
     if (value === undefined) continue;
     if (!Number.isFinite(value) || value <= 0) {
-      throw new ChartSpecError('CHART_SPEC_INVALID', `The requested chart ${key} is not a positive number`, {
+      throw new ChartSpecError('chart-spec-invalid', `The requested chart ${key} is not a positive number`, {
         quantity: `options.${key}Px`,
         value: describeValue(value),
         allowed: 'a finite number of pixels greater than 0',
@@ -146,7 +146,7 @@ function compileToVega(vegaLiteSpec: Record<string, unknown>): VegaSpec {
       logger: collectingLogger(warnings),
     }).spec;
   } catch (error) {
-    throw new ChartSpecError('CHART_SPEC_INVALID', 'Vega-Lite rejected the chart spec', {
+    throw new ChartSpecError('chart-spec-invalid', 'Vega-Lite rejected the chart spec', {
       quantity: '(spec)',
       value: messageOf(error),
       allowed: 'a Vega-Lite spec with a mark (or layer/concat/facet) and valid encodings',
@@ -156,7 +156,7 @@ function compileToVega(vegaLiteSpec: Record<string, unknown>): VegaSpec {
   if (warnings.length > 0) {
     // Vega-Lite silently drops what it cannot use and only warns; in a sealed report a silently
     // dropped encoding would misstate the result, so warnings are treated as errors.
-    throw new ChartSpecError('CHART_SPEC_INVALID', 'Vega-Lite could not use part of the chart spec', {
+    throw new ChartSpecError('chart-spec-invalid', 'Vega-Lite could not use part of the chart spec', {
       quantity: '(spec)',
       value: warnings.join(' | '),
       allowed: 'a spec that Vega-Lite compiles without warnings',
@@ -189,7 +189,7 @@ function rejectUnknownMarksAndTypes(node: unknown, path: string): void {
     const markType = mark !== null && typeof mark === 'object' ? (mark as Record<string, unknown>).type : mark;
     const markPath = joinPath(path, typeof mark === 'object' ? 'mark.type' : 'mark');
     if (typeof markType !== 'string' || !knownMarks.has(markType)) {
-      throw new ChartSpecError('CHART_SPEC_INVALID', 'Unknown mark type', {
+      throw new ChartSpecError('chart-spec-invalid', 'Unknown mark type', {
         quantity: markPath,
         value: describeValue(markType),
         allowed: [...knownMarks].join(', '),
@@ -202,7 +202,7 @@ function rejectUnknownMarksAndTypes(node: unknown, path: string): void {
     for (const [channel, definitions] of Object.entries(encoding)) {
       for (const [definition, definitionPath] of objectsAt(definitions, joinPath(path, `encoding.${channel}`))) {
         if ('type' in definition && (typeof definition.type !== 'string' || !knownFieldTypes.has(definition.type))) {
-          throw new ChartSpecError('CHART_SPEC_INVALID', 'Unknown field type in an encoding', {
+          throw new ChartSpecError('chart-spec-invalid', 'Unknown field type in an encoding', {
             quantity: `${definitionPath}.type`,
             value: describeValue(definition.type),
             allowed: [...knownFieldTypes].join(', '),
@@ -230,7 +230,7 @@ function rejectExternalData(node: unknown, path: string): void {
     if (key === 'data') {
       for (const [source, sourcePath] of objectsAt(child, childPath)) {
         if ('url' in source) {
-          throw new ChartSpecError('CHART_DATA_NOT_INLINE', 'Chart data must be inline, not loaded from a URL or file', {
+          throw new ChartSpecError('chart-data-not-inline', 'Chart data must be inline, not loaded from a URL or file', {
             quantity: `${sourcePath}.url`,
             value: describeValue(source.url),
             allowed: 'inline data: { values: [...] } or a named dataset in top-level "datasets"',
@@ -257,7 +257,7 @@ function joinPath(path: string, key: string): string {
 
 function refusal(what: string): Promise<never> {
   return Promise.reject(
-    new ChartSpecError('CHART_DATA_NOT_INLINE', 'Charts may not load anything from outside the spec', {
+    new ChartSpecError('chart-data-not-inline', 'Charts may not load anything from outside the spec', {
       quantity: 'loader',
       value: describeValue(what),
       allowed: 'inline data values only',

@@ -113,7 +113,7 @@ function textOf(object: PDFObject | undefined): string | undefined {
 }
 
 function readError(quantity: string, problem: string): PdfError {
-  return new PdfError('PDF_READ_FAILED', 'Attachments could not be read from the PDF', {
+  return new PdfError('pdf-read-failed', 'Attachments could not be read from the PDF', {
     quantity,
     value: problem,
     allowed: 'a PDF whose /EmbeddedFiles name tree follows PDF 1.7 §7.9.6 and §7.11.4',
@@ -122,7 +122,7 @@ function readError(quantity: string, problem: string): PdfError {
 }
 
 function budgetError(budget: DecodeBudget): PdfError {
-  return new PdfError('PDF_READ_FAILED', 'The PDF asks for more decompression than a report needs; reading stopped', {
+  return new PdfError('pdf-read-failed', 'The PDF asks for more decompression than a report needs; reading stopped', {
     quantity: budget.exceededIn ?? budget.part,
     value: `more than ${budget.limitBytes / 1024 / 1024} MiB decompressed`,
     allowed: `at most ${budget.limitBytes / 1024 / 1024} MiB decompressed from one PDF`,

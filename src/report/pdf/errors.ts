@@ -1,21 +1,13 @@
 // Typed error for everything that can go wrong while finding Chromium, printing, stamping or reading a PDF.
 
-export type PdfErrorCode =
-  | 'PDF_CHROMIUM_NOT_FOUND'
-  | 'PDF_INVALID_OPTION'
-  | 'PDF_BROWSER_LAUNCH_FAILED'
-  | 'PDF_BROWSER_TIMEOUT'
-  | 'PDF_PRINT_FAILED'
-  | 'PDF_READ_FAILED';
+import type { CodesStartingWith } from '../../diagnostics/codes.ts';
+import { Problem } from '../../diagnostics/diagnostic.ts';
 
-export class PdfError extends Error {
+export type PdfErrorCode = CodesStartingWith<'pdf-'>;
+
+export class PdfError extends Problem {
   override readonly name = 'PdfError';
-  readonly code: PdfErrorCode;
-  /** The option or part of the PDF concerned. */
-  readonly quantity: string;
-  readonly value: string;
-  readonly allowed: string;
-  readonly hint: string;
+  declare readonly code: PdfErrorCode;
 
   constructor(
     code: PdfErrorCode,
@@ -23,12 +15,11 @@ export class PdfError extends Error {
     details: { quantity: string; value: string; allowed: string; hint: string },
     options?: { cause?: unknown },
   ) {
-    super(`${problem} (${details.quantity}: ${details.value}; expected ${details.allowed}). ${details.hint}`, options);
-    this.code = code;
-    this.quantity = details.quantity;
-    this.value = details.value;
-    this.allowed = details.allowed;
-    this.hint = details.hint;
+    const message = `${problem} (${details.quantity}: ${details.value}; expected ${details.allowed})`;
+    super(
+      { code, message, hint: details.hint, quantity: details.quantity, expected: details.allowed, actual: details.value },
+      { message: `${message}. ${details.hint}`, ...options },
+    );
   }
 }
 

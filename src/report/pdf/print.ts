@@ -53,7 +53,7 @@ export async function printReportPdf(options: PrintReportOptions): Promise<Uint8
   const deadline = new Promise<never>((_, reject) => {
     timer = setTimeout(() => {
       reject(
-        new PdfError('PDF_BROWSER_TIMEOUT', 'Chromium did not finish printing in time and was killed', {
+        new PdfError('pdf-browser-timeout', 'Chromium did not finish printing in time and was killed', {
           quantity: 'timeoutMs',
           value: String(timeoutMs),
           allowed: 'printing to finish within the timeout',
@@ -106,7 +106,7 @@ async function printWithChromium(
     browser = await session.launching;
   } catch (error) {
     throw new PdfError(
-      'PDF_BROWSER_LAUNCH_FAILED',
+      'pdf-browser-launch-failed',
       'Chromium could not be started',
       {
         quantity: 'chromiumPath',
@@ -144,7 +144,7 @@ async function printWithChromium(
   } catch (error) {
     if (error instanceof PdfError) throw error;
     throw new PdfError(
-      'PDF_PRINT_FAILED',
+      'pdf-print-failed',
       'Chromium failed while printing the report',
       { quantity: 'html', value: `${options.html.length} characters`, allowed: 'printable HTML', hint: firstLine(messageOf(error)) },
       { cause: error },
@@ -213,7 +213,7 @@ async function shutDown(browser: Browser | undefined): Promise<void> {
 function checkOptions(options: PrintReportOptions): number {
   const timeoutMs = options.timeoutMs ?? defaultTimeoutMs;
   if (!Number.isFinite(timeoutMs) || timeoutMs <= 0) {
-    throw new PdfError('PDF_INVALID_OPTION', 'The print timeout must be a positive number of milliseconds', {
+    throw new PdfError('pdf-invalid-option', 'The print timeout must be a positive number of milliseconds', {
       quantity: 'timeoutMs',
       value: String(timeoutMs),
       allowed: 'a finite number greater than 0',
@@ -221,7 +221,7 @@ function checkOptions(options: PrintReportOptions): number {
     });
   }
   if (Number.isNaN(options.fixedDate.getTime())) {
-    throw new PdfError('PDF_INVALID_OPTION', 'The report date is not a valid date', {
+    throw new PdfError('pdf-invalid-option', 'The report date is not a valid date', {
       quantity: 'fixedDate',
       value: String(options.fixedDate),
       allowed: 'a valid Date, taken from the study date',
@@ -229,7 +229,7 @@ function checkOptions(options: PrintReportOptions): number {
     });
   }
   if (options.paper !== 'A4' && options.paper !== 'Letter') {
-    throw new PdfError('PDF_INVALID_OPTION', 'Unknown paper size', {
+    throw new PdfError('pdf-invalid-option', 'Unknown paper size', {
       quantity: 'paper',
       value: String(options.paper),
       allowed: '"A4" or "Letter"',

@@ -92,19 +92,19 @@ describe('renderChartSvg', () => {
 
   it('rejects a spec that is not an object', async () => {
     const error = await specError('{"mark":"line"}');
-    expect(error.code).toBe('CHART_SPEC_NOT_OBJECT');
+    expect(error.code).toBe('chart-spec-not-object');
   });
 
   it('rejects an unknown mark type and says where it is', async () => {
     const error = await specError({ layer: [simpleLine, { ...simpleLine, mark: 'curvy' }] });
-    expect(error.code).toBe('CHART_SPEC_INVALID');
+    expect(error.code).toBe('chart-spec-invalid');
     expect(error.quantity).toBe('layer.1.mark');
     expect(error.message).toContain('"curvy"');
   });
 
   it('rejects an unknown field type and says which encoding has it', async () => {
     const error = await specError({ ...simpleLine, encoding: { ...simpleLine.encoding, x: { field: 'distanceKm', type: 'number' } } });
-    expect(error.code).toBe('CHART_SPEC_INVALID');
+    expect(error.code).toBe('chart-spec-invalid');
     expect(error.quantity).toBe('encoding.x.type');
   });
 
@@ -119,7 +119,7 @@ describe('renderChartSvg', () => {
     ['a parameter', { params: [{ name: 'p', expr: '1 + 1' }] }, 'params'],
   ])('refuses %s: reports draw no Vega expressions of a study', async (_what, change, path) => {
     const error = await specError({ ...simpleLine, ...change });
-    expect(error.code).toBe('CHART_SPEC_NOT_ALLOWED');
+    expect(error.code).toBe('chart-spec-not-allowed');
     expect(error.quantity).toBe(path);
   });
 
@@ -129,19 +129,19 @@ describe('renderChartSvg', () => {
       mark: 'rule',
       encoding: { ...simpleLine.encoding, text: { field: 'distanceKm', type: 'nominal' } },
     });
-    expect(error.code).toBe('CHART_SPEC_INVALID');
+    expect(error.code).toBe('chart-spec-invalid');
     expect(error.message).toContain('text dropped');
   });
 
   it('refuses data loaded from a URL', async () => {
     const error = await specError({ ...simpleLine, data: { url: 'https://example.invalid/profile.csv' } });
-    expect(error.code).toBe('CHART_DATA_NOT_INLINE');
+    expect(error.code).toBe('chart-data-not-inline');
     expect(error.quantity).toBe('data.url');
   });
 
   it('refuses file data hidden in a nested layer', async () => {
     const error = await specError({ layer: [simpleLine, { ...simpleLine, data: { url: 'file:///etc/passwd' } }] });
-    expect(error.code).toBe('CHART_DATA_NOT_INLINE');
+    expect(error.code).toBe('chart-data-not-inline');
     expect(error.quantity).toBe('layer.1.data.url');
   });
 
@@ -151,7 +151,7 @@ describe('renderChartSvg', () => {
       transform: [{ lookup: 'distanceKm', from: { data: { url: 'towers.json' }, key: 'km', fields: ['tower'] } }],
     };
     const error = await specError(spec);
-    expect(error.code).toBe('CHART_DATA_NOT_INLINE');
+    expect(error.code).toBe('chart-data-not-inline');
     expect(error.quantity).toBe('transform.0.from.data.url');
   });
 });

@@ -47,9 +47,9 @@ describe('readPdf within a decompression budget', () => {
 
   it('stops at the budget and names the attachment that asked for more', async () => {
     const error = await readError(readPdf(await pdfWithRawAttachment('zeros.bin', deflateSync(Buffer.alloc(32 * MEBIBYTE))), 8 * MEBIBYTE));
-    expect(error.code).toBe('PDF_READ_FAILED');
+    expect(error.code).toBe('pdf-read-failed');
     expect(error.quantity).toBe('EmbeddedFiles/zeros.bin');
-    expect(error.value).toBe('more than 8 MiB decompressed');
+    expect(error.actual).toBe('more than 8 MiB decompressed');
   });
 
   it('counts every attachment of one PDF against the same budget', async () => {

@@ -212,21 +212,21 @@ describe('printReportPdf', () => {
   it('kills a browser that hangs past the timeout and says so', async () => {
     const hanging = '<body><p>loop</p><script>for (;;) {}</script></body>';
     const error = await printError(printReportPdf(options(hanging, { timeoutMs: 3000 })));
-    expect(error.code).toBe('PDF_BROWSER_TIMEOUT');
+    expect(error.code).toBe('pdf-browser-timeout');
     expect(markedProcessCount()).toBe(0);
     expect(readdirSync(profileParent)).toEqual([]);
   });
 
   it('reports a Chromium that cannot start, without leaving anything behind', async () => {
     const error = await printError(printReportPdf(options(shortReport, { chromiumPath: join(scratch, 'no-such-chromium') })));
-    expect(error.code).toBe('PDF_BROWSER_LAUNCH_FAILED');
+    expect(error.code).toBe('pdf-browser-launch-failed');
     expect(error.message).toContain('apt-get install -y chromium');
     expect(readdirSync(profileParent)).toEqual([]);
   });
 
   it('refuses an invalid report date before starting Chromium', async () => {
     const error = await printError(printReportPdf(options(shortReport, { fixedDate: new Date('not a date') })));
-    expect(error.code).toBe('PDF_INVALID_OPTION');
+    expect(error.code).toBe('pdf-invalid-option');
     expect(error.quantity).toBe('fixedDate');
   });
 });
@@ -240,6 +240,6 @@ describe('readPdfAttachments', () => {
 
   it('rejects bytes that are not a PDF', async () => {
     const error = await printError(readPdfAttachments(new TextEncoder().encode('plain text')));
-    expect(error.code).toBe('PDF_READ_FAILED');
+    expect(error.code).toBe('pdf-read-failed');
   });
 });
