@@ -209,11 +209,11 @@ describe('stabilityMarginPercent', () => {
     expect(stabilityMarginPercent(1200, 1200 * Math.sin(Math.PI / 6))).toBeCloseTo(50, 12);
   });
 
-  test('refuses an operating point above Pmax with OUT_OF_RANGE', () => {
-    expect(() => stabilityMarginPercent(1200, 1300)).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'operatingPowerMw' }));
+  test('refuses an operating point above Pmax with out-of-range', () => {
+    expect(() => stabilityMarginPercent(1200, 1300)).toThrow(expect.objectContaining({ code: 'out-of-range', quantity: 'operatingPowerMw' }));
   });
 
-  test('refuses a Pmax that is not above 0 MW with OUT_OF_RANGE', () => {
-    expect(() => stabilityMarginPercent(0, -10)).toThrow(expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'maxPowerMw' }));
+  test('refuses a Pmax that is not above 0 MW with out-of-range', () => {
+    expect(() => stabilityMarginPercent(0, -10)).toThrow(expect.objectContaining({ code: 'out-of-range', quantity: 'maxPowerMw' }));
   });
 });

@@ -377,15 +377,15 @@ describe('svcCharacteristicCorners', () => {
     }
   });
 
-  test('refuses a slope that never meets the inductive limit with INCONSISTENT_QUANTITIES', () => {
+  test('refuses a slope that never meets the inductive limit with inconsistent-quantities', () => {
     expect(() => svcCharacteristicCorners({ ...input, slopePercent: 50, bMaxInductivePu: 2 })).toThrow(
-      expect.objectContaining({ code: 'INCONSISTENT_QUANTITIES', quantity: 'slopePercent × bMaxInductivePu / 100' }),
+      expect.objectContaining({ code: 'inconsistent-quantities', quantity: 'slopePercent × bMaxInductivePu / 100' }),
     );
   });
 
-  test('refuses a slope of 100 % or more with OUT_OF_RANGE', () => {
+  test('refuses a slope of 100 % or more with out-of-range', () => {
     expect(() => svcCharacteristicCorners({ ...input, slopePercent: 100 })).toThrow(
-      expect.objectContaining({ code: 'OUT_OF_RANGE', quantity: 'slopePercent' }),
+      expect.objectContaining({ code: 'out-of-range', quantity: 'slopePercent' }),
     );
   });
 });
