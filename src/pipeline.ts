@@ -22,6 +22,8 @@ export interface RunRequest {
   ceilings?: RunLimits;
   /** Facts from the edge: versions and the lock-file hash, so this stage reads no files of its own. */
   environment: { kvarbookVersion: string; nodeVersion: string; lockfileSha256: string };
+  /** The report's stylesheet (templates/report.css), read at the edge like the environment. */
+  stylesheet: string;
   hooks?: ExecutionHooks;
 }
 
@@ -64,7 +66,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
   const charts = await renderCharts(run);
   // 7. Render the report and the results document, within the size a report may have.
-  const report = renderReportParts(run, charts);
+  const report = renderReportParts(run, charts, request.stylesheet);
   requireReportSize(run, report);
   return { run, report, results: resultsDocument(run) };
 }

@@ -13,7 +13,7 @@ import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
-import { installationFacts } from './environment.ts';
+import { installationFacts, reportStylesheet } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
@@ -76,6 +76,7 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         typecheck: true,
         ...(ceilings ? { ceilings } : {}),
         environment: request.environment,
+        stylesheet: reportStylesheet(),
       });
     } catch (error) {
       if (error instanceof StudyFailure)

@@ -8,7 +8,7 @@ import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { buildManifest, serializeEnvelope, signManifest, verifyEnvelope } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedReport.ts';
-import { installationFacts } from './environment.ts';
+import { installationFacts, reportStylesheet } from './environment.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
@@ -42,6 +42,7 @@ export async function produceStudy(
     typecheck: options.typecheck,
     ...(options.ceilings ? { ceilings: options.ceilings } : {}),
     environment: installationFacts(),
+    stylesheet: reportStylesheet(),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),
     },

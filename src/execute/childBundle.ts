@@ -2,10 +2,8 @@
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { buildSync } from 'esbuild';
-
-export const KVARBOOK_ROOT = fileURLToPath(new URL('../../', import.meta.url));
+import { KVARBOOK_ROOT } from '../installation.ts';
 
 /** Bundle the child (pure JS, no TypeScript loader: it must run under Node's permission model) and return its path. */
 export function childBundlePath(): string {

@@ -3,7 +3,7 @@ import { dirname, join, resolve, sep } from 'node:path';
 import type ts from 'typescript';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
-import { KVARBOOK_ROOT } from './childBundle.ts';
+import { KVARBOOK_ROOT } from '../installation.ts';
 import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
 import { HOST_STAGE_LIMITS } from './limits.ts';
 
