@@ -3,7 +3,7 @@ import type { Diagnostic } from './diagnostics/diagnostic.ts';
 import { StudyFailure, excerptAround } from './diagnostics/diagnostic.ts';
 import { parseStudy } from './study/parse.ts';
 import { type InputOverride, effectiveInputs } from './study/inputs.ts';
-import { transpileBlocks, transpileInlines } from './execute/transpile.ts';
+import { releaseTranspiler, transpileBlocks, transpileInlines } from './execute/transpile.ts';
 import { typecheckStudy } from './execute/typecheck.ts';
 import { type ExecutionHooks, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
@@ -11,6 +11,7 @@ import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from 
 import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
 import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from './execute/limits.ts';
 import type { RunLimits } from './study/model.ts';
+import { partModule } from './installation.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -42,8 +43,14 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   // 2. Inputs: front matter values with command-line overrides, unit- and range-checked.
   const inputs = effectiveInputs(study.inputs, request.overrides);
   // 3. Transpile every block and inline value; declarations found for the shared scope.
-  const blocks = transpileBlocks(study);
-  const inlines = transpileInlines(study);
+  let blocks: ReturnType<typeof transpileBlocks>;
+  let inlines: ReturnType<typeof transpileInlines>;
+  try {
+    blocks = transpileBlocks(study);
+    inlines = transpileInlines(study);
+  } finally {
+    releaseTranspiler();
+  }
   // 4. Type-check against the block API, unless the author skipped it while drafting.
   if (request.typecheck) await typecheckStudy(study);
   // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
@@ -97,7 +104,7 @@ async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
   const problems: Diagnostic[] = [];
   const chartRecords = recordsOf(run, 'chart');
   if (chartRecords.length === 0) return rendered;
-  const renderer = openLimitedWorker(new URL('./report/chart/render.ts', import.meta.url), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
+  const renderer = openLimitedWorker(partModule('chartWorker'), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
   try {
     for (const record of chartRecords) {
       const at = record.at ?? { file: run.study.file, line: 1 };

@@ -3,7 +3,7 @@ import { dirname, join, resolve, sep } from 'node:path';
 import type ts from 'typescript';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
-import { KVARBOOK_ROOT } from '../installation.ts';
+import { KVARBOOK_ROOT, partModule } from '../installation.ts';
 import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
 import { HOST_STAGE_LIMITS } from './limits.ts';
 
@@ -56,7 +56,7 @@ function preamble(study: CheckedStudy): string {
  */
 export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck): Promise<void> {
   const checked: CheckedStudy = { file: study.file, source: study.source, inputs: study.inputs, blocks: study.blocks, inlines: study.inlines };
-  const worker = openLimitedWorker(new URL(import.meta.url), 'typecheckDiagnostics', limits);
+  const worker = openLimitedWorker(partModule('typecheckWorker'), 'typecheckDiagnostics', limits);
   let diagnostics: Diagnostic[];
   try {
     diagnostics = (await worker.call(checked)) as Diagnostic[];
