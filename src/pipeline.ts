@@ -4,7 +4,7 @@ import { StudyFailure, excerptAround } from './diagnostics/diagnostic.ts';
 import { parseStudy } from './study/parse.ts';
 import { type InputOverride, effectiveInputs } from './study/inputs.ts';
 import { releaseTranspiler, transpileBlocks, transpileInlines } from './execute/transpile.ts';
-import { typecheckStudy } from './execute/typecheck.ts';
+import { type TypecheckCache, typecheckStudy } from './execute/typecheck.ts';
 import { type ExecutionHooks, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
@@ -25,6 +25,8 @@ export interface RunRequest {
   environment: { kvarbookVersion: string; nodeVersion: string; lockfileSha256: string };
   /** The report's stylesheet (templates/report.css), read at the edge like the environment. */
   stylesheet: string;
+  /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
+  typecheckCache?: TypecheckCache;
   hooks?: ExecutionHooks;
 }
 
@@ -52,7 +54,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
     releaseTranspiler();
   }
   // 4. Type-check against the block API, unless the author skipped it while drafting.
-  if (request.typecheck) await typecheckStudy(study);
+  if (request.typecheck) await typecheckStudy(study, undefined, request.typecheckCache);
   // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
   const outcome = await executeStudy(study, inputs, blocks, inlines, { ...(request.hooks ? { hooks: request.hooks } : {}), granted });

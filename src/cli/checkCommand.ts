@@ -14,6 +14,7 @@ import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '.
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
 import { installationFacts, reportStylesheet } from './environment.ts';
+import { typecheckCache } from './typecheckCache.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
@@ -77,6 +78,7 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         ...(ceilings ? { ceilings } : {}),
         environment: request.environment,
         stylesheet: reportStylesheet(),
+        typecheckCache: typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion),
       });
     } catch (error) {
       if (error instanceof StudyFailure)

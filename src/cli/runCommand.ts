@@ -9,6 +9,8 @@ import { buildManifest, serializeEnvelope, signManifest, verifyEnvelope } from '
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedReport.ts';
 import { installationFacts, reportStylesheet } from './environment.ts';
+import { launchEnvironment } from './launchEnvironment.ts';
+import { typecheckCache } from './typecheckCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
@@ -35,14 +37,16 @@ export async function produceStudy(
   terminal: Terminal,
 ): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
+  const environment = installationFacts();
   return runStudy({
     file: studyPath,
     source,
     overrides: parseOverrideArguments(options.set),
     typecheck: options.typecheck,
     ...(options.ceilings ? { ceilings: options.ceilings } : {}),
-    environment: installationFacts(),
+    environment,
     stylesheet: reportStylesheet(),
+    typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),
     },

@@ -6,9 +6,24 @@ import type { Study } from '../study/model.ts';
 import { KVARBOOK_ROOT, partModule } from '../installation.ts';
 import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
 import { HOST_STAGE_LIMITS } from './limits.ts';
+import { sha256Hex } from '../seal/digest.ts';
 
 /** What the type check reads of a study: plain data, so that it can be handed to the worker that runs the compiler. */
 export type CheckedStudy = Pick<Study, 'file' | 'source' | 'inputs' | 'blocks' | 'inlines'>;
+
+/** Outcomes of earlier checks, by a key that names exactly what was checked; kept by the edge. */
+export interface TypecheckCache {
+  read(studyKey: string): Diagnostic[] | undefined;
+  write(studyKey: string, diagnostics: Diagnostic[]): void;
+}
+
+/**
+ * What the check sees of a study, hashed: the same key means the same check, whose outcome can be reused. The file's
+ * name is not part of it (a checker re-runs a sealed study from a scratch folder); a reused problem is placed in this file.
+ */
+export function checkedStudyKey(study: CheckedStudy): string {
+  return sha256Hex(JSON.stringify([study.source, study.inputs, study.blocks, study.inlines]));
+}
 
 const VIRTUAL_FILE = join(KVARBOOK_ROOT, '.kvarbook-study-check.ts');
 
@@ -54,8 +69,15 @@ function preamble(study: CheckedStudy): string {
  * The compiler runs in a limited worker: a study's types can make it work for a long time (deeply recursive or
  * combinatorial types), and that work must end at a deadline and a heap limit without taking the host with it.
  */
-export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck): Promise<void> {
+export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck, cache?: TypecheckCache): Promise<void> {
   const checked: CheckedStudy = { file: study.file, source: study.source, inputs: study.inputs, blocks: study.blocks, inlines: study.inlines };
+  const key = cache ? checkedStudyKey(checked) : '';
+  const known = cache?.read(key);
+  if (known) {
+    if (known.length > 0)
+      throw new StudyFailure(known.map((problem) => (problem.at ? { ...problem, at: { ...problem.at, file: study.file } } : problem)));
+    return;
+  }
   const worker = openLimitedWorker(partModule('typecheckWorker'), 'typecheckDiagnostics', limits);
   let diagnostics: Diagnostic[];
   try {
@@ -76,6 +98,7 @@ export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_S
   } finally {
     await worker.close();
   }
+  cache?.write(key, diagnostics);
   if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
 }
 
