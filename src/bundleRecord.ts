@@ -1,6 +1,6 @@
 // Which files a bundle was built from, each by content hash: a bundle is current while every one of them is unchanged.
-import { existsSync, mkdirSync, readFileSync, renameSync, writeFileSync } from 'node:fs';
-import { dirname } from 'node:path';
+import { existsSync, mkdirSync, readFileSync, readdirSync, renameSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
 import type { Metafile } from 'esbuild';
 import { installedPath } from './installation.ts';
 import { sha256Hex } from './seal/digest.ts';
@@ -44,4 +44,12 @@ export function writeAtomically(path: string, contents: string): void {
   const temporary = `${path}.${process.pid}.tmp`;
   writeFileSync(temporary, contents);
   renameSync(temporary, path);
+}
+
+/** Every file under a folder of the installation, as installation-relative paths in a fixed order. */
+export function installationFiles(folder: string): string[] {
+  return readdirSync(installedPath(folder), { recursive: true, withFileTypes: true })
+    .filter((entry) => entry.isFile())
+    .map((entry) => join(entry.parentPath, entry.name).slice(installedPath('.').length).split('\\').join('/'))
+    .sort();
 }

@@ -26,6 +26,9 @@ export const BUNDLE_PARTS = {
 
 export type BundlePart = keyof typeof BUNDLE_PARTS;
 
+/** The block API's flat declarations, which the type check reads; written by the build. */
+export const BLOCK_API_DECLARATIONS = `${BUNDLE_FOLDER}/block-api.d.ts`;
+
 /** A file of the installation, by its path inside it (`templates/report.css`). */
 export function installedPath(relativePath: string): string {
   return join(KVARBOOK_ROOT, relativePath);

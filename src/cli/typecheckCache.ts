@@ -1,12 +1,12 @@
 // The type check's outcomes kept between runs in a per-user cache folder that may be deleted at any time (resolved at the edge).
 import { createHash } from 'node:crypto';
-import { mkdirSync, readdirSync, readFileSync, statSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { homedir } from 'node:os';
-import { join, relative, sep } from 'node:path';
-import { writeAtomically } from '../bundleRecord.ts';
+import { join } from 'node:path';
+import { installationFiles, writeAtomically } from '../bundleRecord.ts';
 import type { Diagnostic } from '../diagnostics/diagnostic.ts';
 import type { TypecheckCache } from '../execute/typecheck.ts';
-import { BUNDLE_FOLDER, KVARBOOK_ROOT, RUNS_FROM_SOURCE, installedPath } from '../installation.ts';
+import { BUNDLE_FOLDER, RUNS_FROM_SOURCE, installedPath } from '../installation.ts';
 import { sha256Hex } from '../seal/digest.ts';
 
 /** KVARBOOK_CACHE, else $XDG_CACHE_HOME/kvarbook, else ~/.cache/kvarbook: never inside a study's folder. */
@@ -26,14 +26,7 @@ function checkerIdentity(kvarbookVersion: string): string {
 
 function sourceTreeSha256(): string {
   const hash = createHash('sha256');
-  const visit = (folder: string) => {
-    for (const name of readdirSync(folder).sort()) {
-      const path = join(folder, name);
-      if (statSync(path).isDirectory()) visit(path);
-      else hash.update(`${relative(KVARBOOK_ROOT, path).split(sep).join('/')}\n`).update(readFileSync(path));
-    }
-  };
-  visit(installedPath('src'));
+  for (const path of installationFiles('src')) hash.update(`${path}\n`).update(readFileSync(installedPath(path)));
   return hash.digest('hex');
 }
 

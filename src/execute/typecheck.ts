@@ -3,7 +3,7 @@ import { dirname, join, resolve, sep } from 'node:path';
 import type ts from 'typescript';
 import { type Diagnostic, StudyFailure, excerptAround } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
-import { KVARBOOK_ROOT, partModule } from '../installation.ts';
+import { BLOCK_API_DECLARATIONS, KVARBOOK_ROOT, installedPath, partModule } from '../installation.ts';
 import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
 import { HOST_STAGE_LIMITS } from './limits.ts';
 import { sha256Hex } from '../seal/digest.ts';
@@ -53,14 +53,17 @@ function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
   };
 }
 
-/** The block API's globals from blockGlobals.d.ts, and this study's inputs added to them. */
+/** The block API's flat declarations, built from blockGlobals.d.ts by scripts/build.ts: the only file of kvarbook the check reads. */
+const DECLARATIONS = installedPath(BLOCK_API_DECLARATIONS);
+
+/** The block API's globals from the flat declarations, and this study's inputs added to them. */
 function preamble(study: CheckedStudy): string {
-  const globals = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/blockGlobals.d.ts'));
-  const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/child/blockApi.ts'));
+  const declarations = JSON.stringify(DECLARATIONS);
   const inputFields = study.inputs.map((input) => `    readonly ${input.name}: InputValue;`).join('\n');
   return [
-    `/// <reference path=${globals} />`,
-    `import type { InputValue } from ${api};`,
+    `/// <reference path=${declarations} />`,
+    `import type { Api } from ${declarations};`,
+    'type InputValue = Api.InputValue;',
     `declare global {\n  interface KvarbookStudyInputs {\n${inputFields}\n  }\n}`,
   ].join('\n');
 }
@@ -249,24 +252,21 @@ function moduleRefusals(
 }
 
 /**
- * A compiler host that sees only the study (in memory), TypeScript's own library files and the block API's
- * declarations inside kvarbook: every other path on the checker's machine does not exist for it.
+ * A compiler host that sees only the study (in memory), TypeScript's own library files and the block API's flat
+ * declarations: every other path on the checker's machine does not exist for it.
  */
 function confinedHost(typescript: typeof ts, options: ts.CompilerOptions, studyFile: ts.SourceFile): ts.CompilerHost {
   const host = typescript.createCompilerHost(options, true);
   const libraryFolder = resolve(dirname(typescript.getDefaultLibFilePath(options))) + sep;
-  const sourceFolder = resolve(KVARBOOK_ROOT, 'src') + sep;
-  const dependencyFolder = resolve(KVARBOOK_ROOT, 'node_modules') + sep;
+  const declarations = resolve(DECLARATIONS);
+  const declarationsFolder = dirname(declarations) + sep;
   const visible = (fileName: string): boolean => {
     const path = resolve(fileName);
-    if (path === VIRTUAL_FILE) return true;
-    if (path.startsWith(libraryFolder) || path.startsWith(sourceFolder)) return true;
-    // Dependencies of the block API's types (units, chart themes): their declarations and package manifests only.
-    return path.startsWith(dependencyFolder) && !path.includes(`${sep}.cache${sep}`) && /(\.d\.[cm]?ts|[\\/]package\.json)$/.test(path);
+    return path === VIRTUAL_FILE || path === declarations || path.startsWith(libraryFolder);
   };
   const folderVisible = (folder: string): boolean => {
     const path = resolve(folder) + sep;
-    return [libraryFolder, sourceFolder, dependencyFolder].some((allowed) => path.startsWith(allowed) || allowed.startsWith(path));
+    return [libraryFolder, declarationsFolder].some((allowed) => path.startsWith(allowed) || allowed.startsWith(path));
   };
   const { readFile, fileExists, getSourceFile, directoryExists, getDirectories, realpath } = host;
   host.readFile = (fileName) => (resolve(fileName) === VIRTUAL_FILE ? studyFile.text : visible(fileName) ? readFile.call(host, fileName) : undefined);
