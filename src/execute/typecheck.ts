@@ -22,7 +22,8 @@ export interface TypecheckCache {
  * name is not part of it (a checker re-runs a sealed study from a scratch folder); a reused problem is placed in this file.
  */
 export function checkedStudyKey(study: CheckedStudy): string {
-  return sha256Hex(JSON.stringify([study.source, study.inputs, study.blocks, study.inlines]));
+  // Inputs and inline values carry their location, file name included: the name is left out wherever it is.
+  return sha256Hex(JSON.stringify([study.source, study.inputs, study.blocks, study.inlines], (key, value) => (key === 'file' ? undefined : value)));
 }
 
 const VIRTUAL_FILE = join(KVARBOOK_ROOT, '.kvarbook-study-check.ts');

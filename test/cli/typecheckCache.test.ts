@@ -26,6 +26,12 @@ describe('the type check cache', () => {
     expect(run().status).toBe(0);
     expect(entries()).toEqual(first);
     expect(readdirSync(studyFolder)).toEqual(['cached.study.md']);
+    // The same study under another name and folder (as a checker re-runs it from a scratch folder) is the same check.
+    const elsewhere = join(scratch, 'elsewhere', 'renamed.study.md');
+    mkdirSync(join(scratch, 'elsewhere'));
+    writeFileSync(elsewhere, studyText({ body: STUDY_BODY('380') }));
+    expect(kvarbook(['run', elsewhere, '--out', join(scratch, 'out-elsewhere')], scratch, { KVARBOOK_CACHE: cache }).status).toBe(0);
+    expect(entries()).toEqual(first);
   });
 
   it('checks a changed study anew, and gives a cached failure as the first run gave it', { timeout: 120_000 }, () => {
