@@ -8,5 +8,7 @@ export default defineConfig({
     testTimeout: 60_000,
     hookTimeout: 60_000,
     pool: 'forks',
+    // The CLI tests run bin/kvarbook.mjs, which runs the bundle: rebuilt first when a source changed.
+    globalSetup: ['test/support/freshBundle.ts'],
   },
 });

@@ -9,6 +9,7 @@ import { typecheckStudy } from '../src/execute/typecheck.ts';
 import { executeStudy } from '../src/execute/session.ts';
 import { renderReportParts } from '../src/report/html.ts';
 import type { StudyRun } from '../src/report/studyRun.ts';
+import { reportStylesheet } from '../src/cli/environment.ts';
 
 /** Study sizes measured, smallest first; each is twice the one before, so a linear stage doubles its time. */
 const SIZES = [1_000, 2_000, 4_000, 8_000];
@@ -81,7 +82,7 @@ export async function measureStages(size: number, folder: string): Promise<Stage
       isolation: 'bench',
     },
   };
-  const [, renderMs] = await timed(() => renderReportParts(run, new Map()));
+  const [, renderMs] = await timed(() => renderReportParts(run, new Map(), reportStylesheet()));
   return { size, parseMs, transpileMs, inlinesMs, typecheckMs, executeMs, renderMs };
 }
 

@@ -3,14 +3,15 @@ import type { Diagnostic } from './diagnostics/diagnostic.ts';
 import { StudyFailure } from './diagnostics/diagnostic.ts';
 import { parseStudy } from './study/parse.ts';
 import { type InputOverride, effectiveInputs } from './study/inputs.ts';
-import { transpileBlocks, transpileInlines } from './execute/transpile.ts';
-import { typecheckStudy } from './execute/typecheck.ts';
+import { releaseTranspiler, transpileBlocks, transpileInlines } from './execute/transpile.ts';
+import { type TypecheckCache, typecheckStudy } from './execute/typecheck.ts';
 import { type ExecutionHooks, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
 import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
 import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from './execute/limits.ts';
 import type { RunLimits } from './study/model.ts';
+import { partModule } from './installation.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -22,6 +23,10 @@ export interface RunRequest {
   ceilings?: RunLimits;
   /** Facts from the edge: versions and the lock-file hash, so this stage reads no files of its own. */
   environment: { kvarbookVersion: string; nodeVersion: string; lockfileSha256: string };
+  /** The report's stylesheet (templates/report.css), read at the edge like the environment. */
+  stylesheet: string;
+  /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
+  typecheckCache?: TypecheckCache;
   hooks?: ExecutionHooks;
 }
 
@@ -40,10 +45,16 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   // 2. Inputs: front matter values with command-line overrides, unit- and range-checked.
   const inputs = effectiveInputs(study.inputs, request.overrides);
   // 3. Transpile every block and inline value; declarations found for the shared scope.
-  const blocks = transpileBlocks(study);
-  const inlines = transpileInlines(study);
+  let blocks: ReturnType<typeof transpileBlocks>;
+  let inlines: ReturnType<typeof transpileInlines>;
+  try {
+    blocks = transpileBlocks(study);
+    inlines = transpileInlines(study);
+  } finally {
+    releaseTranspiler();
+  }
   // 4. Type-check against the block API, unless the author skipped it while drafting.
-  if (request.typecheck) await typecheckStudy(study);
+  if (request.typecheck) await typecheckStudy(study, undefined, request.typecheckCache);
   // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
   const outcome = await executeStudy(study, inputs, blocks, inlines, { ...(request.hooks ? { hooks: request.hooks } : {}), granted });
@@ -64,7 +75,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
   const charts = await renderCharts(run);
   // 7. Render the report and the results document, within the size a report may have.
-  const report = renderReportParts(run, charts);
+  const report = renderReportParts(run, charts, request.stylesheet);
   requireReportSize(run, report);
   return { run, report, results: resultsDocument(run) };
 }
@@ -94,7 +105,7 @@ async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
   const problems: Diagnostic[] = [];
   const chartRecords = recordsOf(run, 'chart');
   if (chartRecords.length === 0) return rendered;
-  const renderer = openLimitedWorker(new URL('./report/chart/render.ts', import.meta.url), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
+  const renderer = openLimitedWorker(partModule('chartWorker'), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
   try {
     for (const record of chartRecords) {
       const at = record.at ?? { file: run.study.file, line: 1 };

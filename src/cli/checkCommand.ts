@@ -13,7 +13,8 @@ import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
-import { installationFacts } from './environment.ts';
+import { installationFacts, reportStylesheet } from './environment.ts';
+import { typecheckCache } from './typecheckCache.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
@@ -75,6 +76,8 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         typecheck: true,
         ...(ceilings ? { ceilings } : {}),
         environment: request.environment,
+        stylesheet: reportStylesheet(),
+        typecheckCache: typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion),
       });
     } catch (error) {
       if (error instanceof StudyFailure)

@@ -1,7 +1,6 @@
-// Facts about this installation that a report records: versions and the lock-file hash (read once, at the edge).
+// What a run takes from this installation, read at the edge: the facts a report records (versions, the lock-file hash) and its stylesheet.
 import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
-import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
+import { installedPath } from '../installation.ts';
 import { sha256Hex } from '../seal/digest.ts';
 
 export interface InstallationFacts {
@@ -11,11 +10,16 @@ export interface InstallationFacts {
 }
 
 export function installationFacts(): InstallationFacts {
-  const manifest = JSON.parse(readFileSync(join(KVARBOOK_ROOT, 'package.json'), 'utf8')) as { version: string };
-  const lockfile = readFileSync(join(KVARBOOK_ROOT, 'package-lock.json'));
+  const manifest = JSON.parse(readFileSync(installedPath('package.json'), 'utf8')) as { version: string };
+  const lockfile = readFileSync(installedPath('package-lock.json'));
   return {
     kvarbookVersion: manifest.version,
     nodeVersion: process.version,
     lockfileSha256: sha256Hex(lockfile),
   };
+}
+
+/** The look of every report; the render stage is handed it rather than reading a file of its own. */
+export function reportStylesheet(): string {
+  return readFileSync(installedPath('templates/report.css'), 'utf8');
 }

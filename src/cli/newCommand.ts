@@ -2,7 +2,7 @@
 import { copyFileSync, constants, existsSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
-import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
+import { KVARBOOK_ROOT } from '../installation.ts';
 import type { Terminal } from './terminal.ts';
 
 const TEMPLATE_SUFFIX = '.study.md';

@@ -8,7 +8,9 @@ import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { buildManifest, serializeEnvelope, signManifest, verifyEnvelope } from '../seal/manifest.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedReport.ts';
-import { installationFacts } from './environment.ts';
+import { installationFacts, reportStylesheet } from './environment.ts';
+import { launchEnvironment } from './launchEnvironment.ts';
+import { typecheckCache } from './typecheckCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
@@ -31,13 +33,16 @@ export interface RunOptions {
 async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
   terminal.studyText(studyPath, source);
+  const environment = installationFacts();
   return runStudy({
     file: studyPath,
     source,
     overrides: parseOverrideArguments(options.set),
     typecheck: options.typecheck,
     ...(options.ceilings ? { ceilings: options.ceilings } : {}),
-    environment: installationFacts(),
+    environment,
+    stylesheet: reportStylesheet(),
+    typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),
     },

@@ -1,5 +1,6 @@
 // Host-side work on study data (drawing charts, the type check) in a worker thread that a heap limit and a deadline bound.
 import { Worker } from 'node:worker_threads';
+import { RUNS_FROM_SOURCE, partModule } from '../installation.ts';
 
 export interface WorkerLimits {
   /** Old-generation heap of the worker; the worker ends when it needs more. */
@@ -38,14 +39,14 @@ export interface LimitedWorker {
 
 /** Loading the worker's own modules is not study work; it gets a deadline of its own. */
 const START_SECONDS = 60;
-const ENTRY = new URL('./limitedWorkerEntry.mjs', import.meta.url);
+const ENTRY = partModule('workerEntry');
 
 type Reply = { ready: true } | { id: number; ok: true; value: unknown } | { id: number; ok: false; error: PlainError };
 
-/** Starts a worker that answers each call with `exportName` of the module at `moduleUrl`. */
+/** Starts a worker that answers each call with `exportName` of the module at `moduleUrl` (a TypeScript source only when kvarbook runs from its sources). */
 export function openLimitedWorker(moduleUrl: URL, exportName: string, limits: WorkerLimits): LimitedWorker {
   const worker = new Worker(ENTRY, {
-    workerData: { moduleUrl: moduleUrl.href, exportName },
+    workerData: { moduleUrl: moduleUrl.href, exportName, fromSource: RUNS_FROM_SOURCE },
     resourceLimits: { maxOldGenerationSizeMb: limits.heapMb, maxYoungGenerationSizeMb: Math.min(64, Math.max(8, limits.heapMb / 8)), stackSizeMb: 4 },
     // The worker needs no variable of the checker's; what it prints is never shown.
     env: {},

@@ -1,8 +1,10 @@
-// The first code of a limited worker: loads TypeScript support, then answers each call with one export of one module.
+// The first code of a limited worker: loads TypeScript support when kvarbook runs from its sources, then answers each call with one export of one module.
 import { parentPort, workerData } from 'node:worker_threads';
-import { register } from 'tsx/esm/api';
 
-register();
+if (workerData.fromSource) {
+  const { register } = await import('tsx/esm/api');
+  register();
+}
 const handler = (await import(workerData.moduleUrl))[workerData.exportName];
 
 /** An error as plain data: its name, message and own text or number fields (a ChartSpecError's path and hint). */

@@ -1,5 +1,5 @@
 // TypeScript blocks to scripts the child can run in one shared scope: esbuild strips types, acorn finds declarations.
-import { transformSync, type Message } from 'esbuild';
+import { transformSync, stop, type Message } from 'esbuild';
 import { parse, type Node as AcornNode, type Pattern, type Program } from 'acorn';
 import { TraceMap, originalPositionFor } from '@jridgewell/trace-mapping';
 import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
@@ -356,4 +356,9 @@ export function studyPositionOf(block: TranspiledBlock, scriptLine: number, scri
   const original = originalPositionFor(block.traceMap, { line: scriptLine, column: column0 });
   if (original.line === null) return { line: block.block.firstCodeLine + Math.max(0, scriptLine - 1), column: 1 };
   return { line: original.line + block.block.firstCodeLine - 1, column: (original.column ?? 0) + 1 };
+}
+
+/** esbuild's synchronous calls keep a worker and its service process (about 100 MB) until stopped; a run stops them once it has transpiled. */
+export function releaseTranspiler(): void {
+  void stop();
 }

@@ -3,12 +3,28 @@ import { dirname, join, resolve, sep } from 'node:path';
 import type ts from 'typescript';
 import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { Study } from '../study/model.ts';
-import { KVARBOOK_ROOT } from './childBundle.ts';
+import { BLOCK_API_DECLARATIONS, KVARBOOK_ROOT, installedPath, partModule } from '../installation.ts';
 import { type WorkerLimits, WorkerLimitError, openLimitedWorker } from './limitedWorker.ts';
 import { HOST_STAGE_LIMITS } from './limits.ts';
+import { sha256Hex } from '../seal/digest.ts';
 
 /** What the type check reads of a study: plain data, so that it can be handed to the worker that runs the compiler. */
 export type CheckedStudy = Pick<Study, 'file' | 'source' | 'inputs' | 'blocks' | 'inlines'>;
+
+/** Outcomes of earlier checks, by a key that names exactly what was checked; kept by the edge. */
+export interface TypecheckCache {
+  read(studyKey: string): Diagnostic[] | undefined;
+  write(studyKey: string, diagnostics: Diagnostic[]): void;
+}
+
+/**
+ * What the check sees of a study, hashed: the same key means the same check, whose outcome can be reused. The file's
+ * name is not part of it (a checker re-runs a sealed study from a scratch folder); a reused problem is placed in this file.
+ */
+export function checkedStudyKey(study: CheckedStudy): string {
+  // Inputs and inline values carry their location, file name included: the name is left out wherever it is.
+  return sha256Hex(JSON.stringify([study.source, study.inputs, study.blocks, study.inlines], (key, value) => (key === 'file' ? undefined : value)));
+}
 
 const VIRTUAL_FILE = join(KVARBOOK_ROOT, '.kvarbook-study-check.ts');
 
@@ -38,14 +54,17 @@ function compilerOptions(typescript: typeof ts): ts.CompilerOptions {
   };
 }
 
-/** The block API's globals from blockGlobals.d.ts, and this study's inputs added to them. */
+/** The block API's flat declarations, built from blockGlobals.d.ts by scripts/build.ts: the only file of kvarbook the check reads. */
+const DECLARATIONS = installedPath(BLOCK_API_DECLARATIONS);
+
+/** The block API's globals from the flat declarations, and this study's inputs added to them. */
 function preamble(study: CheckedStudy): string {
-  const globals = JSON.stringify(join(KVARBOOK_ROOT, 'src/execute/blockGlobals.d.ts'));
-  const api = JSON.stringify(join(KVARBOOK_ROOT, 'src/blocks/blockApi.ts'));
+  const declarations = JSON.stringify(DECLARATIONS);
   const inputFields = study.inputs.map((input) => `    readonly ${input.name}: InputValue;`).join('\n');
   return [
-    `/// <reference path=${globals} />`,
-    `import type { InputValue } from ${api};`,
+    `/// <reference path=${declarations} />`,
+    `import type { Api } from ${declarations};`,
+    'type InputValue = Api.InputValue;',
     `declare global {\n  interface KvarbookStudyInputs {\n${inputFields}\n  }\n}`,
   ].join('\n');
 }
@@ -54,9 +73,16 @@ function preamble(study: CheckedStudy): string {
  * The compiler runs in a limited worker: a study's types can make it work for a long time (deeply recursive or
  * combinatorial types), and that work must end at a deadline and a heap limit without taking the host with it.
  */
-export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck): Promise<void> {
+export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_STAGE_LIMITS.typecheck, cache?: TypecheckCache): Promise<void> {
   const checked: CheckedStudy = { file: study.file, source: study.source, inputs: study.inputs, blocks: study.blocks, inlines: study.inlines };
-  const worker = openLimitedWorker(new URL(import.meta.url), 'typecheckDiagnostics', limits);
+  const key = cache ? checkedStudyKey(checked) : '';
+  const known = cache?.read(key);
+  if (known) {
+    if (known.length > 0)
+      throw new StudyFailure(known.map((problem) => (problem.at ? { ...problem, at: { ...problem.at, file: study.file } } : problem)));
+    return;
+  }
+  const worker = openLimitedWorker(partModule('typecheckWorker'), 'typecheckDiagnostics', limits);
   let diagnostics: Diagnostic[];
   try {
     diagnostics = (await worker.call(checked)) as Diagnostic[];
@@ -75,6 +101,7 @@ export async function typecheckStudy(study: Study, limits: WorkerLimits = HOST_S
   } finally {
     await worker.close();
   }
+  cache?.write(key, diagnostics);
   if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
 }
 
@@ -223,24 +250,21 @@ function moduleRefusals(
 }
 
 /**
- * A compiler host that sees only the study (in memory), TypeScript's own library files and the block API's
- * declarations inside kvarbook: every other path on the checker's machine does not exist for it.
+ * A compiler host that sees only the study (in memory), TypeScript's own library files and the block API's flat
+ * declarations: every other path on the checker's machine does not exist for it.
  */
 function confinedHost(typescript: typeof ts, options: ts.CompilerOptions, studyFile: ts.SourceFile): ts.CompilerHost {
   const host = typescript.createCompilerHost(options, true);
   const libraryFolder = resolve(dirname(typescript.getDefaultLibFilePath(options))) + sep;
-  const sourceFolder = resolve(KVARBOOK_ROOT, 'src') + sep;
-  const dependencyFolder = resolve(KVARBOOK_ROOT, 'node_modules') + sep;
+  const declarations = resolve(DECLARATIONS);
+  const declarationsFolder = dirname(declarations) + sep;
   const visible = (fileName: string): boolean => {
     const path = resolve(fileName);
-    if (path === VIRTUAL_FILE) return true;
-    if (path.startsWith(libraryFolder) || path.startsWith(sourceFolder)) return true;
-    // Dependencies of the block API's types (units, chart themes): their declarations and package manifests only.
-    return path.startsWith(dependencyFolder) && !path.includes(`${sep}.cache${sep}`) && /(\.d\.[cm]?ts|[\\/]package\.json)$/.test(path);
+    return path === VIRTUAL_FILE || path === declarations || path.startsWith(libraryFolder);
   };
   const folderVisible = (folder: string): boolean => {
     const path = resolve(folder) + sep;
-    return [libraryFolder, sourceFolder, dependencyFolder].some((allowed) => path.startsWith(allowed) || allowed.startsWith(path));
+    return [libraryFolder, declarationsFolder].some((allowed) => path.startsWith(allowed) || allowed.startsWith(path));
   };
   const { readFile, fileExists, getSourceFile, directoryExists, getDirectories, realpath } = host;
   host.readFile = (fileName) => (resolve(fileName) === VIRTUAL_FILE ? studyFile.text : visible(fileName) ? readFile.call(host, fileName) : undefined);

@@ -1,12 +1,9 @@
 // Render stage: a finished run to one self-contained HTML report (inline CSS and SVG, no scripts, no fetches).
-import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import type { Token } from 'markdown-it';
 import { createMarkdown, INLINE_VALUE_TOKEN } from '../study/markdown.ts';
 import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
 import type { CriterionRecord, TableRecord } from '../execute/records.ts';
-import { KVARBOOK_ROOT } from '../execute/childBundle.ts';
 import { formatLimits, formatNumber, formatQuantity, formatStated } from '../blocks/format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
@@ -34,10 +31,6 @@ const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'u
 
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
-
-function stylesheet(): string {
-  return readFileSync(join(KVARBOOK_ROOT, 'templates/report.css'), 'utf8');
-}
 
 function where(at: SourceLocation | undefined): string {
   if (!at) return '';
@@ -353,8 +346,8 @@ ${overridden.length ? `<div><dt>Variant</dt><dd class="overridden">inputs overri
 </header>`;
 }
 
-/** The report in two parts around the seal slot; `assembleReport` joins them with or without a seal. */
-export function renderReportParts(run: StudyRun, charts: RenderedCharts): ReportParts {
+/** The report in two parts around the seal slot; `assembleReport` joins them with or without a seal. `stylesheet` is the report's look, read at the edge. */
+export function renderReportParts(run: StudyRun, charts: RenderedCharts, stylesheet: string): ReportParts {
   const criteria = recordsOf(run, 'criterion');
   const failed = criteria.filter((criterion) => !criterion.passed).length;
   const counters: Counters = { table: 0, figure: 0 };
@@ -388,7 +381,7 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts): Report
 <meta name="kvarbook-revision" content="${meta.revision}">
 <title>${escapeHtml(meta.title)} (${escapeHtml(meta.id)} rev ${meta.revision})</title>
 <style>
-${stylesheet()}</style>
+${stylesheet}</style>
 </head>
 <body>
 ${titleBlock(run, failed, criteria.length)}

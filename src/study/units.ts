@@ -1,7 +1,8 @@
 // Physical quantities with units: one mathjs instance that knows the units of the trade (var, pu), dimension checks.
-import { create, all, type Unit } from 'mathjs';
+import { create, createUnitDependencies, unitDependencies, type Unit } from 'mathjs';
 
-const math = create(all!, {});
+// Only units: the instance is made of the unit factories and what they depend on, so a bundle carries no more of mathjs.
+const math = create({ ...unitDependencies, ...createUnitDependencies }, {});
 // Reactive power is written in var/kvar/Mvar in the trade; dimensionally it is a volt-ampere.
 math.createUnit('var', { definition: '1 VA', prefixes: 'short', aliases: ['VAr'] });
 // A per-unit value has no fixed base, so pu is its own dimension: it cannot silently become kV.

@@ -7,7 +7,7 @@ import { effectiveInputs } from '../../src/study/inputs.ts';
 import { parseStudy } from '../../src/study/parse.ts';
 import { transpileBlocks, transpileInlines } from '../../src/execute/transpile.ts';
 import { type RunProduct, runStudy } from '../../src/pipeline.ts';
-import { TEST_ENVIRONMENT } from '../support/studies.ts';
+import { TEST_ENVIRONMENT, TEST_STYLESHEET } from '../support/studies.ts';
 import { saysNonFinite } from '../../src/execute/outputText.ts';
 import { SEED_STUDIES } from './seedStudies.ts';
 
@@ -205,7 +205,7 @@ function computedTexts(product: RunProduct): string[] {
 
 /** The whole pipeline on a mutant; a success that wrote NaN or Infinity anywhere in its output is a finding. */
 export async function fullStages(file: string, source: string): Promise<RunProduct> {
-  const product = await runStudy({ file, source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+  const product = await runStudy({ file, source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT, stylesheet: TEST_STYLESHEET });
   const written = computedTexts(product).find(saysNonFinite);
   if (written !== undefined) throw new Error(`the run succeeded but its output says ${JSON.stringify(written.slice(0, 200))}`);
   return product;

@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { runStudy } from '../../src/pipeline.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
 import { resultsJsonText } from '../../src/cli/reportFiles.ts';
+import { reportStylesheet } from '../../src/cli/environment.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const STUDIES = ['studies/caldera-bay-400kv.study.md', 'templates/blank.study.md', 'templates/shunt-reactor.study.md'];
@@ -21,6 +22,7 @@ describe.each(STUDIES)('%s', (study) => {
       overrides: [],
       typecheck: true,
       environment: ENVIRONMENT,
+      stylesheet: reportStylesheet(),
     });
     await expect(assembleReport(product.report, UNSEALED_NOTICE)).toMatchFileSnapshot(`./expected/${name}.html`);
     await expect(resultsJsonText(product)).toMatchFileSnapshot(`./expected/${name}.results.json`);

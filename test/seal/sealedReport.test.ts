@@ -8,7 +8,7 @@ import { reportBodySha256, sealSubject, sealedReportHtml } from '../../src/seal/
 import { embeddedStudySource } from '../../src/report/embed.ts';
 import type { RunProduct } from '../../src/pipeline.ts';
 import { runStudy } from '../../src/pipeline.ts';
-import { TEST_ENVIRONMENT, runSource, studyText } from '../support/studies.ts';
+import { TEST_ENVIRONMENT, TEST_STYLESHEET, runSource, studyText } from '../support/studies.ts';
 import { TEST_KEY_SCRYPT } from './fixtures.ts';
 
 const PASSPHRASE = 'a long test passphrase';
@@ -43,7 +43,14 @@ function request(overrides: Partial<CheckRequest> = {}, trusted: PublicIdentity[
     defaultRelativeTolerance: 1e-9,
     environment: TEST_ENVIRONMENT,
     rerun: (rerun) =>
-      runStudy({ file: rerun.studyFile, source: rerun.source, overrides: rerun.overrides, typecheck: true, environment: rerun.environment }),
+      runStudy({
+        file: rerun.studyFile,
+        source: rerun.source,
+        overrides: rerun.overrides,
+        typecheck: true,
+        environment: rerun.environment,
+        stylesheet: TEST_STYLESHEET,
+      }),
     ...overrides,
   };
 }

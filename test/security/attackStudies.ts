@@ -4,7 +4,7 @@ import { join, relative } from 'node:path';
 import type { Diagnostic } from '../../src/diagnostics/diagnostic.ts';
 import { runStudy, type RunProduct } from '../../src/pipeline.ts';
 import { scratchFolder } from '../support/cli.ts';
-import { TEST_ENVIRONMENT, diagnosticsOf, studyText } from '../support/studies.ts';
+import { TEST_ENVIRONMENT, TEST_STYLESHEET, diagnosticsOf, studyText } from '../support/studies.ts';
 
 export const CANARY_TEXT = 'checker secret: must never be read, changed or removed by a study\n';
 
@@ -49,7 +49,7 @@ export function attackStudy(machine: CheckerMachine, code: string, frontMatter =
 }
 
 export function runAttack(machine: CheckerMachine, source: string): Promise<RunProduct> {
-  return runStudy({ file: machine.studyPath, source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+  return runStudy({ file: machine.studyPath, source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT, stylesheet: TEST_STYLESHEET });
 }
 
 /** Runs the study, expects it to fail, and returns its first diagnostic. */

@@ -10,7 +10,7 @@ import { parseStudy } from '../../src/study/parse.ts';
 import { runStudy } from '../../src/pipeline.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
 import { kvarbook, scratchFolder } from '../support/cli.ts';
-import { TEST_ENVIRONMENT, diagnosticsOf, lineOf, studyText } from '../support/studies.ts';
+import { TEST_ENVIRONMENT, TEST_STYLESHEET, diagnosticsOf, lineOf, studyText } from '../support/studies.ts';
 
 const fence = (code: string) => `\`\`\`ts\n${code}\n\`\`\``;
 const GREEDY = 'limits: { blockSeconds: 3600, studySeconds: 36000, heapMb: 16384 }';
@@ -25,6 +25,7 @@ describe("the checker's ceilings bound what a study asks for", () => {
         overrides: [],
         typecheck: false,
         environment: TEST_ENVIRONMENT,
+        stylesheet: TEST_STYLESHEET,
         ceilings: { ...DEFAULT_CEILINGS, blockSeconds: 1 },
       }),
     );
@@ -46,6 +47,7 @@ describe("the checker's ceilings bound what a study asks for", () => {
         overrides: [],
         typecheck: false,
         environment: TEST_ENVIRONMENT,
+        stylesheet: TEST_STYLESHEET,
         ceilings: { ...DEFAULT_CEILINGS, heapMb: 64, blockSeconds: 30 },
       }),
     );
@@ -55,13 +57,27 @@ describe("the checker's ceilings bound what a study asks for", () => {
 
   it('applies default ceilings when the caller names none', async () => {
     const source = studyText({ frontMatter: GREEDY, body: fence("result('one', 1);") });
-    const product = await runStudy({ file: 'greedy.study.md', source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+    const product = await runStudy({
+      file: 'greedy.study.md',
+      source,
+      overrides: [],
+      typecheck: false,
+      environment: TEST_ENVIRONMENT,
+      stylesheet: TEST_STYLESHEET,
+    });
     expect(product.run.provenance.limits).toEqual(DEFAULT_CEILINGS);
   });
 
   it('states in the report that the ceilings capped what the study asked for', async () => {
     const source = studyText({ frontMatter: GREEDY, body: fence("result('one', 1);") });
-    const product = await runStudy({ file: 'greedy.study.md', source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+    const product = await runStudy({
+      file: 'greedy.study.md',
+      source,
+      overrides: [],
+      typecheck: false,
+      environment: TEST_ENVIRONMENT,
+      stylesheet: TEST_STYLESHEET,
+    });
     const html = assembleReport(product.report, UNSEALED_NOTICE);
     expect(html.slice(html.indexOf('id="provenance"'))).toContain(
       `${DEFAULT_CEILINGS.blockSeconds} s per block, ${DEFAULT_CEILINGS.studySeconds} s per study, ${DEFAULT_CEILINGS.heapMb} MB heap (capped by the ceilings of the run: the study asks 3600 s per block, 36000 s per study, 16384 MB heap)`,
@@ -70,7 +86,14 @@ describe("the checker's ceilings bound what a study asks for", () => {
 
   it('leaves a study within the ceilings as it asked, and says nothing of ceilings', async () => {
     const source = studyText({ frontMatter: 'limits: { blockSeconds: 5, studySeconds: 30, heapMb: 256 }', body: fence("result('one', 1);") });
-    const product = await runStudy({ file: 'modest.study.md', source, overrides: [], typecheck: false, environment: TEST_ENVIRONMENT });
+    const product = await runStudy({
+      file: 'modest.study.md',
+      source,
+      overrides: [],
+      typecheck: false,
+      environment: TEST_ENVIRONMENT,
+      stylesheet: TEST_STYLESHEET,
+    });
     expect(product.run.provenance.limits).toEqual({ blockSeconds: 5, studySeconds: 30, heapMb: 256 });
     expect(product.report.body).not.toContain('capped');
   });

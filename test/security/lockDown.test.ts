@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { buildSync } from 'esbuild';
 import { describe, expect, it } from 'vitest';
-import { KVARBOOK_ROOT } from '../../src/execute/childBundle.ts';
+import { KVARBOOK_ROOT } from '../../src/installation.ts';
 import { childEnvironment, childExecArguments } from '../../src/execute/session.ts';
 import { DENIAL_MARK } from '../../src/execute/child/lockDown.ts';
 

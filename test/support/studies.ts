@@ -3,8 +3,11 @@ import type { Diagnostic } from '../../src/diagnostics/diagnostic.ts';
 import { StudyFailure } from '../../src/diagnostics/diagnostic.ts';
 import { runStudy, type RunProduct } from '../../src/pipeline.ts';
 import type { InputOverride } from '../../src/study/inputs.ts';
+import { reportStylesheet } from '../../src/cli/environment.ts';
 
 export const TEST_ENVIRONMENT = { kvarbookVersion: '0.0.0-test', nodeVersion: 'v20-test', lockfileSha256: '0'.repeat(64) };
+/** The installation's report stylesheet, as the edge reads it for a run. */
+export const TEST_STYLESHEET = reportStylesheet();
 
 export interface StudyParts {
   /** Extra front-matter lines (YAML), added after the required keys. */
@@ -44,6 +47,7 @@ export function runSource(source: string, options: { overrides?: InputOverride[]
     overrides: options.overrides ?? [],
     typecheck: options.typecheck ?? false,
     environment: TEST_ENVIRONMENT,
+    stylesheet: TEST_STYLESHEET,
   });
 }
 
