@@ -1,3 +1,4 @@
+// Running blocks and inline values in the calculation process (src/execute/session.ts): order, shared scope, located errors, limits.
 import { describe, expect, it } from 'vitest';
 import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 
@@ -83,69 +84,6 @@ describe('running calculation blocks', () => {
   });
 });
 
-describe('figures a block records', () => {
-  it('refuses a NaN result, naming it', async () => {
-    const source = studyText({ body: fence('result("broken ratio", 0 / 0);') });
-    const [problem] = await diagnosticsOf(runSource(source));
-    expect(problem?.code).toBe('block-non-finite');
-    expect(problem?.message).toContain('broken ratio');
-    expect(problem?.at?.line).toBe(lineOf(source, 'broken ratio'));
-  });
-
-  it('refuses an infinite criterion value', async () => {
-    const source = studyText({ body: fence('criterion("margin", 1 / 0, { min: 0 });') });
-    const [problem] = await diagnosticsOf(runSource(source));
-    expect(problem?.code).toBe('block-non-finite');
-  });
-
-  it('refuses a duplicate result name', async () => {
-    const source = studyText({ body: fence('result("Vr", 1);\nresult("Vr", 2);') });
-    const [problem] = await diagnosticsOf(runSource(source));
-    expect(problem?.code).toBe('block-result-duplicate');
-    expect(problem?.at?.line).toBe(lineOf(source, 'result("Vr", 2)'));
-  });
-
-  it('refuses a NaN table cell, naming the row and column', async () => {
-    const source = studyText({ body: fence('table([{ caseName: "light", vrPu: NaN }], { caption: "Cases" });') });
-    const [problem] = await diagnosticsOf(runSource(source));
-    expect(problem?.message).toContain('row 1');
-    expect(problem?.message).toContain('vrPu');
-  });
-
-  it('records a criterion as met or not met against its limits', async () => {
-    const source = studyText({
-      body: fence('criterion("inside", 1.02, { min: 0.95, max: 1.05, unit: "pu" });\ncriterion("above", 1.09, { max: 1.05, unit: "pu" });'),
-    });
-    const product = await runSource(source);
-    expect(product.results.criteria.map((c) => [c.name, c.passed])).toEqual([
-      ['inside', true],
-      ['above', false],
-    ]);
-  });
-
-  it('reads an input in the unit the block asks for', async () => {
-    const source = studyText({
-      inputs: '  nominalVoltage: 400 kV',
-      body: fence('result("volts", inputs.nominalVoltage.in("V"));\nresult("si", inputs.nominalVoltage.si);'),
-    });
-    const product = await runSource(source);
-    expect(product.results.results.map((r) => r.value)).toEqual([400_000, 400_000]);
-  });
-
-  it('refuses to read an input in a unit of another dimension', async () => {
-    const source = studyText({ inputs: '  nominalVoltage: 400 kV', body: fence('inputs.nominalVoltage.in("km");') });
-    const [problem] = await diagnosticsOf(runSource(source));
-    expect(problem?.message).toContain('nominalVoltage');
-  });
-
-  it('records cautions from blocks after the standing ones', async () => {
-    const source = studyText({ body: fence('caution("Energise the reactor before closing the line breaker.");') });
-    const cautions = (await runSource(source)).results.cautions;
-    expect(cautions.at(-1)).toMatchObject({ text: 'Energise the reactor before closing the line breaker.', standing: false });
-    expect(cautions.filter((c) => c.standing).length).toBeGreaterThanOrEqual(3);
-  });
-});
-
 describe('inline values', () => {
   it('splices a value computed by the blocks above into the prose, with its unit', async () => {
     const source = studyText({
@@ -166,56 +104,5 @@ describe('inline values', () => {
     const source = studyText({ body: `${fence('const zero = 0;')}\n\nRatio {{ zero / zero }}.` });
     const [problem] = await diagnosticsOf(runSource(source));
     expect(problem?.message).toContain('NaN');
-  });
-});
-
-describe('type checking', () => {
-  it('locates a type error at its study line and column', async () => {
-    const source = studyText({ body: fence('const lengthKm: number = "three hundred";') });
-    const [problem] = await diagnosticsOf(runSource(source, { typecheck: true }));
-    expect(problem?.code).toBe('type-2322');
-    expect(problem?.at).toEqual({ file: 'test.study.md', line: lineOf(source, 'three hundred'), column: 7 });
-  });
-
-  it('knows the declared inputs and nothing else', async () => {
-    const source = studyText({ inputs: '  lineLength: 320 km', body: fence('const a = inputs.lineLength.in("km");\nconst b = inputs.lineLenght;') });
-    const [problem] = await diagnosticsOf(runSource(source, { typecheck: true }));
-    expect(problem?.at?.line).toBe(lineOf(source, 'lineLenght'));
-  });
-
-  it('accepts a well-typed study', async () => {
-    const source = studyText({
-      inputs: '  lineLength: 320 km',
-      body: fence('const a = inputs.lineLength.in("km");\nresult("a", a, { unit: "km" });'),
-    });
-    expect((await runSource(source, { typecheck: true })).results.results).toHaveLength(1);
-  });
-});
-
-describe('inline values under the type check', () => {
-  it('strips the types of every inline value and shows each one', async () => {
-    const source = studyText({
-      body: `${fence("const lengthKm = 380;\nconst names = ['a', 'b'];")}\n\nLength {{ lengthKm as number }} km, {{ names.length }} names, {{ \`\${lengthKm}\` }}.`,
-    });
-    expect([...(await runSource(source)).run.outcome.inlineTexts.values()]).toEqual(['380.0', '2.000', '380']);
-  });
-
-  it('refuses an inline value that does not parse, at its line and column', async () => {
-    const source = studyText({ body: `${fence('const a = 1;')}\n\nGood {{ a }}, broken {{ a + }}.` });
-    const [problem] = await diagnosticsOf(runSource(source));
-    const line = lineOf(source, 'broken {{');
-    expect(problem).toMatchObject({ code: 'inline-syntax', at: { line, column: source.split('\n')[line - 1]!.indexOf('{{ a +') + 1 } });
-  });
-
-  it('refuses an inline value that closes its own parenthesis and goes on', async () => {
-    const source = studyText({ body: `${fence('const a = 1;')}\n\nShown {{ a); (globalThis as any).marker = (2 }}.` });
-    const [problem] = await diagnosticsOf(runSource(source));
-    expect(problem).toMatchObject({ code: 'inline-syntax', at: { line: lineOf(source, 'Shown {{') } });
-    expect(problem?.message).toContain('not a single expression');
-  });
-
-  it('keeps a line comment inside an inline value from swallowing the rest', async () => {
-    const source = studyText({ body: `${fence('const a = 1;')}\n\nValue {{ a // the count }} and {{ a + 1 }}.` });
-    expect([...(await runSource(source)).run.outcome.inlineTexts.values()]).toEqual(['1.000', '2.000']);
   });
 });
