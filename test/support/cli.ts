@@ -3,6 +3,9 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
+// esbuild starts its service processes in the working folder it found when it was loaded, and they live until this process
+// exits: loaded here, before any in-process run changes folder, so that none is left behind in a study's folder.
+import 'esbuild';
 import { afterAll } from 'vitest';
 
 export const KVARBOOK_BIN = resolve(import.meta.dirname, '../../bin/kvarbook.mjs');
@@ -54,11 +57,11 @@ export async function kvarbookInProcess(args: string[], cwd: string, env: NodeJS
       stream.write = original;
     };
   };
+  const { main } = await import('../../src/cli/main.ts');
   const previousFolder = process.cwd();
   const restoreOut = capture(process.stdout, 'stdout');
   const restoreErr = capture(process.stderr, 'stderr');
   try {
-    const { main } = await import('../../src/cli/main.ts');
     process.chdir(cwd);
     const status = await main(args, { ...process.env, ...env });
     return { status, ...written };
