@@ -1,7 +1,7 @@
 import { existsSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { kvarbook, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { lineOf, studyText } from '../support/studies.ts';
 import { templateNames } from '../../src/cli/newCommand.ts';
 
@@ -33,10 +33,11 @@ describe('kvarbook on the command line', () => {
     expect(results.inputs[0]).toMatchObject({ name: 'lineLength', source: 'overridden' });
   });
 
-  it('exits 1 with a located message and no internal stack when a block fails, leaving the earlier report intact', () => {
+  it('exits 1 with a located message and no internal stack when a block fails, leaving the earlier report intact', async () => {
     const folder = scratchFolder();
     writeFileSync(join(folder, 'line.study.md'), goodStudy);
-    expect(kvarbook(['run', 'line.study.md', '--no-typecheck'], folder).status).toBe(0);
+    // The earlier report, by the command line in this process; the failing run is a process of its own.
+    expect((await kvarbookInProcess(['run', 'line.study.md', '--no-typecheck'], folder)).status).toBe(0);
     const before = readFileSync(join(folder, 'build/TEST-1-r1.html'));
     const broken = goodStudy.replace('result("length"', 'throw new Error("deliberate"); result("length"');
     writeFileSync(join(folder, 'line.study.md'), broken);
@@ -77,10 +78,11 @@ describe('kvarbook on the command line', () => {
     expect(readFileSync(join(folder, 'mine.study.md'), 'utf8')).toBe('my work');
   });
 
-  it.each(templateNames())('runs the study the %s template makes, type-checked', (template) => {
+  // The template is the subject here, not the process: the command line in this process.
+  it.each(templateNames())('runs the study the %s template makes, type-checked', async (template) => {
     const folder = scratchFolder();
-    kvarbook(['new', template, 'mine.study.md'], folder);
-    const run = kvarbook(['run', 'mine.study.md'], folder);
+    expect((await kvarbookInProcess(['new', template, 'mine.study.md'], folder)).status).toBe(0);
+    const run = await kvarbookInProcess(['run', 'mine.study.md'], folder);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
   });

@@ -1,38 +1,40 @@
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdirSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { kvarbook, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { studyText } from '../support/studies.ts';
 import { readPdfAttachments } from '../../src/report/pdf/index.ts';
+import { PASSPHRASE, newSigner, sealWorkspace, type SealWorkspace } from '../security/sealWorkspace.ts';
 
-const PASSPHRASE = 'a long enough passphrase';
 const study = studyText({
   inputs: '  lineLength: 320 km',
   body: '# Charging\n\n```ts\nconst chargingMvar = 0.4 * inputs.lineLength.in("km");\nresult("Charging", chargingMvar, { unit: "Mvar" });\n```\n\nThe line charges {{ chargingMvar }} Mvar.\n',
 });
 
-/** One engineer with a key, and a checker's trust folder holding the engineer's identity. */
-function workspace() {
-  const folder = scratchFolder('kvarbook-seal-');
-  const env = { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE };
-  writeFileSync(join(folder, 'line.study.md'), study);
-  expect(kvarbook(['key', 'new', '--name', 'Test Engineer', '--licence', 'T-0', '--jurisdiction', 'Testland'], folder, env).status).toBe(0);
-  mkdirSync(join(folder, 'home', 'trusted'), { recursive: true });
-  expect(kvarbook(['key', 'show', '--out', join(folder, 'home', 'trusted', 'engineer.json')], folder, env).status).toBe(0);
-  return { folder, env };
+/**
+ * The command line in this process (src/cli's main, as the executable calls it). The sealing run and the first check
+ * below are whole processes, so the passphrase and home folder are read from the environment the executable keeps.
+ */
+const cli = kvarbookInProcess;
+
+/** One engineer with a key (made cheaply: `key new` itself is run in the counter-signing test), a trust folder with the engineer's identity, and the study. */
+function workspace(): SealWorkspace {
+  const space = sealWorkspace('kvarbook-seal-');
+  writeFileSync(join(space.folder, 'line.study.md'), study);
+  return space;
 }
 
 describe('sealing and checking from the command line', () => {
-  let space: ReturnType<typeof workspace>;
-  beforeAll(() => {
+  let space: SealWorkspace;
+  beforeAll(async () => {
     space = workspace();
     const sealed = kvarbook(['run', 'line.study.md', '--seal', '--pdf'], space.folder, space.env);
     expect(sealed.stderr).toBe('');
     expect(sealed.status).toBe(0);
   });
 
-  it('writes the sealed report, its seal file and a PDF, and the check verifies them', () => {
+  it('writes the sealed report, its seal file and a PDF, and the check verifies them', async () => {
     expect(readdirSync(join(space.folder, 'build')).sort()).toEqual([
       '.kvarbook',
       'TEST-1-r1.html',
@@ -45,8 +47,8 @@ describe('sealing and checking from the command line', () => {
     expect(check.status).toBe(0);
   });
 
-  it('verifies from the PDF alone', () => {
-    const check = kvarbook(['check', 'build/TEST-1-r1.pdf', '--json'], space.folder, space.env);
+  it('verifies from the PDF alone', async () => {
+    const check = await cli(['check', 'build/TEST-1-r1.pdf', '--json'], space.folder, space.env);
     expect(JSON.parse(check.stdout).verdict).toBe('verified');
     expect(check.status).toBe(0);
   });
@@ -62,74 +64,76 @@ describe('sealing and checking from the command line', () => {
     expect(Buffer.from(seal!.content).equals(readFileSync(join(space.folder, 'build/TEST-1-r1.seal.json')))).toBe(true);
   });
 
-  it('refuses to overwrite the sealed report, and leaves it as it was', () => {
+  it('refuses to overwrite the sealed report, and leaves it as it was', async () => {
     const before = readFileSync(join(space.folder, 'build/TEST-1-r1.html'));
-    const again = kvarbook(['run', 'line.study.md'], space.folder, space.env);
+    const again = await cli(['run', 'line.study.md'], space.folder, space.env);
     expect(again.status).toBe(1);
     expect(again.stderr).toContain('sealed report');
     expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
   });
 
-  it('fails the check, exit 1, when a figure in the report is edited', () => {
+  it('fails the check, exit 1, when a figure in the report is edited', async () => {
     const html = readFileSync(join(space.folder, 'build/TEST-1-r1.html'), 'utf8');
     writeFileSync(join(space.folder, 'edited.html'), html.replace('<dd>128.0 Mvar</dd>', '<dd>118.0 Mvar</dd>'));
-    const check = kvarbook(['check', 'edited.html'], space.folder, space.env);
+    const check = await cli(['check', 'edited.html'], space.folder, space.env);
     expect(check.status).toBe(1);
     expect(check.stdout).toContain('report unchanged   FAIL');
   });
 
-  it('fails the check against an edited copy of the study source', () => {
+  it('fails the check against an edited copy of the study source', async () => {
     writeFileSync(join(space.folder, 'edited.study.md'), study.replace('0.4 *', '0.41 *'));
-    const check = kvarbook(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md'], space.folder, space.env);
+    const check = await cli(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md'], space.folder, space.env);
     expect(check.status).toBe(1);
     expect(check.stdout).toContain('study source       FAIL');
   });
 
-  it('fails the check when the signer is not trusted', () => {
-    const check = kvarbook(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
+  it('fails the check when the signer is not trusted', async () => {
+    const check = await cli(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
     expect(check.status).toBe(1);
     expect(check.stdout).toContain('NOT in the trust folder');
   });
 
-  it('refuses to counter-sign with the key that sealed the report', () => {
-    const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign'], space.folder, space.env);
+  it('refuses to counter-sign with the key that sealed the report', async () => {
+    const signed = await cli(['check', 'build/TEST-1-r1.html', '--sign'], space.folder, space.env);
     expect(signed.status).toBe(1);
     expect(signed.stderr).toContain('check-own-seal');
     expect(existsSync(join(space.folder, 'build/TEST-1-r1.check.json'))).toBe(false);
   });
 
-  it("counter-signs a verified report with the checker's key: a check record and a report showing both signatures", () => {
+  it("counter-signs a verified report with the checker's key: a check record and a report showing both signatures", async () => {
     const checkerKeys = join(space.folder, 'checker-keys');
     expect(
-      kvarbook(
-        ['key', 'new', '--name', 'Second Checker', '--licence', 'C-2', '--jurisdiction', 'Testland', '--keys', checkerKeys],
-        space.folder,
-        space.env,
+      (
+        await cli(
+          ['key', 'new', '--name', 'Second Checker', '--licence', 'C-2', '--jurisdiction', 'Testland', '--keys', checkerKeys],
+          space.folder,
+          space.env,
+        )
       ).status,
     ).toBe(0);
     expect(
-      kvarbook(['key', 'show', '--keys', checkerKeys, '--out', join(space.folder, 'home', 'trusted', 'checker.json')], space.folder, space.env)
+      (await cli(['key', 'show', '--keys', checkerKeys, '--out', join(space.folder, 'home', 'trusted', 'checker.json')], space.folder, space.env))
         .status,
     ).toBe(0);
-    const signed = kvarbook(['check', 'build/TEST-1-r1.html', '--sign', '--keys', checkerKeys], space.folder, space.env);
+    const signed = await cli(['check', 'build/TEST-1-r1.html', '--sign', '--keys', checkerKeys], space.folder, space.env);
     expect(signed.status).toBe(0);
     const checked = readFileSync(join(space.folder, 'build/TEST-1-r1.checked.html'), 'utf8');
     expect(checked).toContain('<strong>Sealed</strong> by Test Engineer');
     expect(checked).toContain('<strong>Checked</strong> by Second Checker');
-    const recheck = kvarbook(['check', 'build/TEST-1-r1.checked.html'], space.folder, space.env);
+    const recheck = await cli(['check', 'build/TEST-1-r1.checked.html'], space.folder, space.env);
     expect(recheck.stdout).toContain('counter-signatures');
     expect(recheck.status).toBe(0);
   });
 
-  it('moves the sealed set aside, never deleting it, when asked to replace it', () => {
-    const replaced = kvarbook(['run', 'line.study.md', '--seal', '--replace-sealed'], space.folder, space.env);
+  it('moves the sealed set aside, never deleting it, when asked to replace it', async () => {
+    const replaced = await cli(['run', 'line.study.md', '--seal', '--replace-sealed'], space.folder, space.env);
     expect(replaced.status).toBe(0);
     const superseded = readdirSync(join(space.folder, 'build', 'superseded'));
     expect(superseded).toHaveLength(1);
     expect(readdirSync(join(space.folder, 'build', 'superseded', superseded[0]!))).toContain('TEST-1-r1.seal.json');
   });
 
-  it('never writes private key material into any output file', () => {
+  it('never writes private key material into any output file', async () => {
     const keysFolder = join(space.folder, 'home', 'keys');
     const keyFile = readdirSync(keysFolder).find((name) => name.endsWith('.key.pem'))!;
     const pemLines = readFileSync(join(keysFolder, keyFile), 'utf8')
@@ -147,20 +151,20 @@ describe('sealing and checking from the command line', () => {
 });
 
 describe('keys', () => {
-  it('refuses to seal with a wrong passphrase, and writes nothing', () => {
+  it('refuses to seal with a wrong passphrase, and writes nothing', async () => {
     const { folder, env } = workspace();
-    const run = kvarbook(['run', 'line.study.md', '--seal'], folder, { ...env, KVARBOOK_PASSPHRASE: 'not the right passphrase' });
+    const run = await cli(['run', 'line.study.md', '--seal'], folder, { ...env, KVARBOOK_PASSPHRASE: 'not the right passphrase' });
     expect(run.status).toBe(1);
     expect(run.stderr).toContain('wrong-passphrase');
     expect(existsSync(join(folder, 'build'))).toBe(false);
   });
 
-  it('refuses to seal with the key of someone other than the engineer the study names', () => {
+  it('refuses to seal with the key of someone other than the engineer the study names', async () => {
     const folder = scratchFolder('kvarbook-seal-');
     const env = { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE };
     writeFileSync(join(folder, 'line.study.md'), study);
-    kvarbook(['key', 'new', '--name', 'Other Person', '--licence', 'O-9', '--jurisdiction', 'Testland'], folder, env);
-    const run = kvarbook(['run', 'line.study.md', '--seal'], folder, env);
+    newSigner('Other Person', 'O-9', 'Testland', undefined, join(folder, 'home', 'keys'));
+    const run = await cli(['run', 'line.study.md', '--seal'], folder, env);
     expect(run.status).toBe(1);
     expect(run.stderr).toContain('seal-not-the-engineer');
   });

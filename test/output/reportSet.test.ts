@@ -1,15 +1,15 @@
-import { existsSync, mkdtempSync, readFileSync, readdirSync, symlinkSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readFileSync, readdirSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { StudyFailure } from '../../src/diagnostics/diagnostic.ts';
 import { PendingSet, currentSet, openReportFolder, type ReportFolder } from '../../src/output/reportSet.ts';
+import { scratchFolder } from '../support/cli.ts';
 
 const notSealed = async () => false;
 
 async function folder(): Promise<ReportFolder> {
   const report: ReportFolder = {
-    out: join(mkdtempSync(join(tmpdir(), 'kvarbook-set-')), 'build'),
+    out: join(scratchFolder('kvarbook-set-'), 'build'),
     base: 'A-r1',
     names: ['A-r1.html', 'A-r1.json', 'A-r1.pdf'],
   };
@@ -55,7 +55,7 @@ describe('report sets', () => {
 
   it('refuses a link at a report name that kvarbook did not make', async () => {
     const report = await folder();
-    const elsewhere = join(mkdtempSync(join(tmpdir(), 'kvarbook-set-elsewhere-')), 'target');
+    const elsewhere = join(scratchFolder('kvarbook-set-elsewhere-'), 'target');
     writeFileSync(elsewhere, 'not a report');
     symlinkSync(elsewhere, join(report.out, 'A-r1.html'));
     expect(() => currentSet(report)).toThrow(StudyFailure);

@@ -3,7 +3,7 @@ import { cpSync, existsSync, mkdirSync, readFileSync, readdirSync, readlinkSync,
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { KVARBOOK_BIN, kvarbook, scratchFolder } from '../support/cli.ts';
+import { KVARBOOK_BIN, kvarbook, kvarbookInProcess, scratchFolder, scratchPath } from '../support/cli.ts';
 import { minimalStudy } from '../fuzz/seedStudies.ts';
 import { sealWorkspace } from './sealWorkspace.ts';
 
@@ -46,13 +46,20 @@ function temporaries(folder: string): string[] {
   return existsSync(build) ? (readdirSync(build, { recursive: true }) as string[]).filter((name) => name.endsWith('.tmp')) : [];
 }
 
-/** Processes started from this folder (their working directory): the calculation process, esbuild, Chromium. */
+/** The parent of a process, from /proc/<pid>/stat (the field after the parenthesised command name). */
+const parentOf = (pid: string) => Number(readFileSync(`/proc/${pid}/stat`, 'latin1').split(') ')[1]!.split(' ')[1]);
+
+/**
+ * Processes started from this folder (their working directory): the calculation process, esbuild, Chromium. Children of
+ * this test process are left out: the in-process runs that wrote the earlier sets share one esbuild service, which lives
+ * as long as this process does, in the folder of the first of them; a killed run's helpers are never this process's.
+ */
 function helpersIn(folder: string): string[] {
   const found: string[] = [];
   for (const entry of readdirSync('/proc')) {
     if (!/^\d+$/.test(entry)) continue;
     try {
-      if (readlinkSync(`/proc/${entry}/cwd`) === folder)
+      if (readlinkSync(`/proc/${entry}/cwd`) === folder && parentOf(entry) !== process.pid)
         found.push(readFileSync(`/proc/${entry}/cmdline`, 'latin1').split('\0').slice(0, 2).join(' '));
     } catch {
       // Gone while we looked, or a zombie waiting for its parent: neither runs.
@@ -85,6 +92,12 @@ function timed(args: string[], folder: string, env: NodeJS.ProcessEnv = {}): num
   return Date.now() - started;
 }
 
+/** The earlier set a killed run would replace, written by the command line in this process: only the runs killed, timed or recovering are processes. */
+async function earlierSet(args: string[], folder: string, env: NodeJS.ProcessEnv = {}): Promise<void> {
+  const run = await kvarbookInProcess(args, folder, env);
+  expect(run.status, run.stderr).toBe(0);
+}
+
 /** Seeded moments across the whole run, the switch at its end included. */
 const killMoments = (count: number, fullRunMs: number) =>
   fc.sample(fc.integer({ min: 0, max: fullRunMs + 200 }), { seed: KILL_SEED, numRuns: count });
@@ -93,7 +106,7 @@ describe('killing kvarbook while it writes a report', () => {
   it(`shows the earlier set or the new one, never a mix, after each of ${KILLS.plain} kills of a plain run`, async () => {
     const folder = scratchFolder('kvarbook-kill-');
     writeFileSync(join(folder, 'line.study.md'), minimalStudy);
-    timed([...RUN_ARGUMENTS, '--set', 'lineLength=100km'], folder);
+    await earlierSet([...RUN_ARGUMENTS, '--set', 'lineLength=100km'], folder);
     const old = visible(folder);
     const reference = scratchFolder('kvarbook-kill-reference-');
     writeFileSync(join(reference, 'line.study.md'), minimalStudy);
@@ -118,13 +131,13 @@ describe('killing kvarbook while it writes a report', () => {
     writeFileSync(join(reference, 'line.study.md'), minimalStudy);
     const fullRunMs = timed([...RUN_ARGUMENTS, '--pdf'], reference);
     const fresh = visible(reference);
-    timed([...RUN_ARGUMENTS, '--pdf', '--set', 'lineLength=100km'], template);
+    await earlierSet([...RUN_ARGUMENTS, '--pdf', '--set', 'lineLength=100km'], template);
     const old = visible(template);
     expect(old.has('TEST-1-r1.pdf') && fresh.has('TEST-1-r1.pdf')).toBe(true);
 
     const profiles = scratchFolder('kvarbook-kill-pdf-profiles-');
     for (const [index, delayMs] of killMoments(KILLS.pdf, fullRunMs).entries()) {
-      const folder = `${template}-${index}`;
+      const folder = scratchPath(`${template}-${index}`);
       cpSync(template, folder, { recursive: true, verbatimSymlinks: true });
       await runAndKillAfter(folder, [...RUN_ARGUMENTS, '--pdf'], { TMPDIR: profiles }, delayMs);
       expect(whichSet(visible(folder), { old, fresh }), `the set shown after a kill at ${delayMs} ms`).toBeDefined();
@@ -144,16 +157,16 @@ describe('killing kvarbook while it writes a report', () => {
   it(`shows the unsealed set or the sealed one, whole, after each of ${KILLS.seal} kills of run --seal`, async () => {
     const space = sealWorkspace('kvarbook-kill-seal-');
     writeFileSync(join(space.folder, 'line.study.md'), minimalStudy);
-    timed(['run', 'line.study.md', '--set', 'lineLength=100km'], space.folder, space.env);
+    await earlierSet(['run', 'line.study.md', '--set', 'lineLength=100km'], space.folder, space.env);
     const old = visible(space.folder);
     // Ed25519 signatures are deterministic: the same key seals the same run to the same bytes.
-    const reference = `${space.folder}-reference`;
+    const reference = scratchPath(`${space.folder}-reference`);
     cpSync(space.folder, reference, { recursive: true, verbatimSymlinks: true });
     const fullRunMs = timed(['run', 'line.study.md', '--seal'], reference, space.env);
     const sealed = visible(reference);
     expect(sealed.has('TEST-1-r1.seal.json')).toBe(true);
     for (const [index, delayMs] of killMoments(KILLS.seal, fullRunMs).entries()) {
-      const folder = `${space.folder}-${index}`;
+      const folder = scratchPath(`${space.folder}-${index}`);
       cpSync(space.folder, folder, { recursive: true, verbatimSymlinks: true });
       await runAndKillAfter(folder, ['run', 'line.study.md', '--seal'], space.env, delayMs);
       expect(whichSet(visible(folder), { old, sealed }), `the set shown after a kill at ${delayMs} ms`).toBeDefined();
@@ -165,9 +178,9 @@ describe('killing kvarbook while it writes a report', () => {
     const space = sealWorkspace('kvarbook-kill-replace-');
     writeFileSync(join(space.folder, 'line.study.md'), minimalStudy);
     const replace = ['run', 'line.study.md', '--seal', '--pdf', '--replace-sealed'];
-    timed(['run', 'line.study.md', '--seal', '--pdf', '--set', 'lineLength=100km'], space.folder, space.env);
+    await earlierSet(['run', 'line.study.md', '--seal', '--pdf', '--set', 'lineLength=100km'], space.folder, space.env);
     const sealedA = visible(space.folder);
-    const reference = `${space.folder}-reference`;
+    const reference = scratchPath(`${space.folder}-reference`);
     cpSync(space.folder, reference, { recursive: true, verbatimSymlinks: true });
     const fullRunMs = timed(replace, reference, space.env);
     const sealedB = visible(reference);
@@ -175,7 +188,7 @@ describe('killing kvarbook while it writes a report', () => {
     expect(sealedB.size).toBe(4);
 
     for (const [index, delayMs] of killMoments(KILLS.replace, fullRunMs).entries()) {
-      const folder = `${space.folder}-${index}`;
+      const folder = scratchPath(`${space.folder}-${index}`);
       cpSync(space.folder, folder, { recursive: true, verbatimSymlinks: true });
       await runAndKillAfter(folder, replace, space.env, delayMs);
       expect(whichSet(visible(folder), { sealedA, sealedB }), `the set shown after a kill at ${delayMs} ms`).toBeDefined();
@@ -202,10 +215,10 @@ describe('killing kvarbook while it writes a report', () => {
     expect(temporaries(last)).toEqual([]);
   }, 360_000);
 
-  it('removes a set left unfinished by a run that no longer exists, and keeps one a running writer is still writing', () => {
+  it('removes a set left unfinished by a run that no longer exists, and keeps one a running writer is still writing', async () => {
     const folder = scratchFolder('kvarbook-kill-');
     writeFileSync(join(folder, 'line.study.md'), minimalStudy);
-    timed(RUN_ARGUMENTS, folder);
+    await earlierSet(RUN_ARGUMENTS, folder);
     const sets = join(folder, 'build', '.kvarbook', 'sets');
     const finished = spawnSync(process.execPath, ['-e', '0']).pid!;
     const stale = `.TEST-1-r1.${finished}.k1ll3d.tmp`;

@@ -2,7 +2,7 @@ import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { MAX_STUDY_BYTES } from '../../src/cli/readStudy.ts';
-import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { type CliOutcome, kvarbook, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { lineOf, studyText } from '../support/studies.ts';
 
 const fence = (code: string) => `\`\`\`ts\n${code}\n\`\`\``;
@@ -126,27 +126,46 @@ const CASES: MalformedCase[] = [
   },
 ];
 
+/**
+ * The cases run as a process of their own as well, one for each way a refusal reaches the edge: the parser, the
+ * calculation process, the file system. The others run the same command line in this process (src/cli's main), which
+ * prints and picks the exit code exactly as the executable does, without its seconds of start-up.
+ */
+const AS_PROCESS = new Set(['a study without front matter', 'a non-finite result', 'a study file that does not exist']);
+
+function expectLocatedRefusal(testCase: MalformedCase, source: string | undefined, { status, stderr }: CliOutcome): void {
+  expect(status).toBe(1);
+  expect(stderr).toContain(`[${testCase.code}`);
+  expect(stderr).toMatch(/error: \S.*\[/);
+  expect(stderr).toContain('hint: ');
+  expect(stderr).not.toMatch(/\n\s+at |kvarbook failed unexpectedly|\[internal\]/);
+  const line = testCase.lineOf && source ? lineOf(source, testCase.lineOf) : testCase.line;
+  if (line !== undefined) {
+    const file = (testCase.args ?? ['run', STUDY])[1];
+    expect(stderr).toContain(testCase.withColumn ? `${file}:${line}:` : `${file}:${line}`);
+    if (testCase.withColumn) expect(stderr).toMatch(new RegExp(`${file!.replace('.', '\\.')}:${line}:\\d+: error`));
+  }
+}
+
 describe('a malformed study on the command line', () => {
   it('is larger than the study size limit in the 50 MB case', () => {
     expect(50 * 1024 * 1024).toBeGreaterThan(MAX_STUDY_BYTES);
   });
 
   for (const testCase of CASES) {
-    it(`gets a located error with a hint and exit code 1, never a stack trace: ${testCase.what}`, () => {
+    it(`gets a located error with a hint and exit code 1, never a stack trace: ${testCase.what}`, async () => {
       const folder = scratchFolder('kvarbook-malformed-');
       const source = testCase.make(folder);
-      const { status, stderr } = kvarbook(testCase.args ?? ['run', STUDY, '--no-typecheck'], folder);
-      expect(status).toBe(1);
-      expect(stderr).toContain(`[${testCase.code}`);
-      expect(stderr).toMatch(/error: \S.*\[/);
-      expect(stderr).toContain('hint: ');
-      expect(stderr).not.toMatch(/\n\s+at |kvarbook failed unexpectedly|\[internal\]/);
-      const line = testCase.lineOf && source ? lineOf(source, testCase.lineOf) : testCase.line;
-      if (line !== undefined) {
-        const file = (testCase.args ?? ['run', STUDY])[1];
-        expect(stderr).toContain(testCase.withColumn ? `${file}:${line}:` : `${file}:${line}`);
-        if (testCase.withColumn) expect(stderr).toMatch(new RegExp(`${file!.replace('.', '\\.')}:${line}:\\d+: error`));
-      }
+      const args = testCase.args ?? ['run', STUDY, '--no-typecheck'];
+      expectLocatedRefusal(testCase, source, await kvarbookInProcess(args, folder));
+    });
+  }
+
+  for (const testCase of CASES.filter((each) => AS_PROCESS.has(each.what))) {
+    it(`exits 1 from a process of its own with the same located error, never a stack trace: ${testCase.what}`, () => {
+      const folder = scratchFolder('kvarbook-malformed-');
+      const source = testCase.make(folder);
+      expectLocatedRefusal(testCase, source, kvarbook(testCase.args ?? ['run', STUDY, '--no-typecheck'], folder));
     });
   }
 });

@@ -81,7 +81,8 @@ describe('the content security policy in a browser', () => {
     try {
       const page = await browser.newPage();
       await page.setContent(html, { waitUntil: 'load' });
-      await new Promise((resolve) => setTimeout(resolve, 500));
+      // Until the page's network has been quiet for a moment: a load the policy let through would have reached the server.
+      await page.waitForNetworkIdle({ idleTime: 200 });
       // Evaluated in the page, where the DOM is; written as text because this project's types have no DOM.
       const seen = (await page.evaluate(`({
         svgWidth: document.querySelector('figure.chart svg')?.getBoundingClientRect().width ?? 0,

@@ -1,7 +1,7 @@
 import { readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { type CliOutcome, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { lineOf, studyText } from '../support/studies.ts';
 import { newSigner, reseal, sealWorkspace, type SealWorkspace } from './sealWorkspace.ts';
 
@@ -23,18 +23,22 @@ const study = studyText({
   ].join('\n'),
 });
 
+// The command line in this process: what is tested is what the check finds and says, not the process.
 describe('attacks on what a sealed report says', () => {
   let space: SealWorkspace;
   let sealedHtml: string;
-  beforeAll(() => {
+  /** The check of the report as sealed, which two tests read. */
+  let asSealed: CliOutcome;
+  beforeAll(async () => {
     space = sealWorkspace('kvarbook-body-attack-');
     writeFileSync(join(space.folder, 'line.study.md'), study);
-    const sealed = kvarbook(['run', 'line.study.md', '--seal'], space.folder, space.env);
+    const sealed = await kvarbookInProcess(['run', 'line.study.md', '--seal'], space.folder, space.env);
     expect(sealed.status, sealed.stderr).toBe(0);
     sealedHtml = readFileSync(join(space.folder, 'build/TEST-1-r1.html'), 'utf8');
+    asSealed = await kvarbookInProcess(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
   });
 
-  it('fails the check of a body the engineer edited (a failing criterion shown as met) and sealed', () => {
+  it('fails the check of a body the engineer edited (a failing criterion shown as met) and sealed', async () => {
     const edited = reseal(sealedHtml, space.engineer, (parts) => {
       const meets = (text: string) =>
         text
@@ -46,17 +50,17 @@ describe('attacks on what a sealed report says', () => {
       return changed;
     });
     writeFileSync(join(space.folder, 'edited.html'), edited);
-    const check = kvarbook(['check', 'edited.html'], space.folder, space.env);
+    const check = await kvarbookInProcess(['check', 'edited.html'], space.folder, space.env);
     expect(check.stdout).toMatch(/report body\s+FAIL/);
     expect(check.stdout).toContain('verdict: NOT VERIFIED');
     expect(check.status).toBe(1);
   });
 
-  it('fails the check of a seal made by a trusted engineer other than the one the study names, and says who', () => {
+  it('fails the check of a seal made by a trusted engineer other than the one the study names, and says who', async () => {
     const other = newSigner('Other Engineer', 'O-9', 'Testland', space.trustFolder);
     try {
       writeFileSync(join(space.folder, 'other.html'), reseal(sealedHtml, other));
-      const check = kvarbook(['check', 'other.html'], space.folder, space.env);
+      const check = await kvarbookInProcess(['check', 'other.html'], space.folder, space.env);
       expect(check.stdout).toMatch(
         /engineer\s+FAIL\s+the seal is by Other Engineer, licence O-9 \(Testland\), but the study names Test Engineer, licence T-0 \(Testland\)/,
       );
@@ -68,7 +72,7 @@ describe('attacks on what a sealed report says', () => {
   });
 
   it('says next to the verdict how many blocks hide their code and on which study lines it is', () => {
-    const check = kvarbook(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
+    const check = asSealed;
     expect(check.status, check.stdout).toBe(0);
     const from = lineOf(study, '```ts hide-code');
     const lines = check.stdout.trimEnd().split('\n');
@@ -79,14 +83,18 @@ describe('attacks on what a sealed report says', () => {
   });
 
   it('names the study, revision and engineer whose report it verified', () => {
-    const check = kvarbook(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
+    const check = asSealed;
     expect(check.stdout).toContain('verdict: VERIFIED: study TEST-1, revision 1, sealed by Test Engineer, licence T-0 (Testland)');
   });
 
-  it('says in its own words when the trust folder is missing, and when it is empty', () => {
-    const missing = kvarbook(['check', 'build/TEST-1-r1.html', '--trust', join(space.folder, 'no-such-folder')], space.folder, space.env);
+  it('says in its own words when the trust folder is missing, and when it is empty', async () => {
+    const missing = await kvarbookInProcess(
+      ['check', 'build/TEST-1-r1.html', '--trust', join(space.folder, 'no-such-folder')],
+      space.folder,
+      space.env,
+    );
     expect(missing.stdout).toContain(`trust folder: ${join(space.folder, 'no-such-folder')} does not exist, so no signer can be trusted`);
-    const empty = kvarbook(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
+    const empty = await kvarbookInProcess(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
     expect(empty.stdout).toMatch(/trust folder: \S+ holds no identities, so no signer can be trusted/);
     expect(empty.status).toBe(1);
   });

@@ -4,7 +4,7 @@ import { deflateSync } from 'node:zlib';
 import { PDFArray, PDFDict, PDFDocument, PDFHexString, PDFName, PDFRawStream, StandardFonts, rgb } from 'pdf-lib';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { readPdfAttachments } from '../../src/report/pdf/attachments.ts';
-import { kvarbook } from '../support/cli.ts';
+import { kvarbook, kvarbookInProcess } from '../support/cli.ts';
 import { studyText } from '../support/studies.ts';
 import { sealWorkspace, type SealWorkspace } from './sealWorkspace.ts';
 
@@ -48,14 +48,16 @@ describe('attacks on a sealed PDF', () => {
   let sealedPdf: Uint8Array;
   let otherPdf: Uint8Array;
 
-  beforeAll(() => {
+  // Sealed and checked by the command line in this process: what is tested is the check's verdict, not the process;
+  // the compression bombs below are checked by processes of their own, whose memory is measured.
+  beforeAll(async () => {
     space = sealWorkspace('kvarbook-pdf-attack-');
     writeFileSync(join(space.folder, 'line.study.md'), study);
     for (const args of [
       ['--out', 'build'],
       ['--out', 'other', '--set', 'lineLength=100km'],
     ]) {
-      const sealed = kvarbook(['run', 'line.study.md', '--seal', '--pdf', ...args], space.folder, space.env);
+      const sealed = await kvarbookInProcess(['run', 'line.study.md', '--seal', '--pdf', ...args], space.folder, space.env);
       expect(sealed.status, sealed.stderr).toBe(0);
     }
     sealedPdf = readFileSync(join(space.folder, 'build/TEST-1-r1.pdf'));
@@ -64,11 +66,11 @@ describe('attacks on a sealed PDF', () => {
 
   function check(name: string, pdf: Uint8Array) {
     writeFileSync(join(space.folder, name), pdf);
-    return kvarbook(['check', name], space.folder, space.env);
+    return kvarbookInProcess(['check', name], space.folder, space.env);
   }
 
-  it('verifies the PDF exactly as kvarbook printed it', () => {
-    const verified = check('as-printed.pdf', sealedPdf);
+  it('verifies the PDF exactly as kvarbook printed it', async () => {
+    const verified = await check('as-printed.pdf', sealedPdf);
     expect(verified.stdout).toMatch(/pdf as printed\s+pass/);
     expect(verified.status, verified.stdout + verified.stderr).toBe(0);
   });
@@ -79,7 +81,7 @@ describe('attacks on a sealed PDF', () => {
     const font = await document.embedFont(StandardFonts.Helvetica);
     page.drawRectangle({ x: 50, y: page.getHeight() - 300, width: 300, height: 40, color: rgb(1, 1, 1) });
     page.drawText('Charging 99.0 Mvar', { x: 55, y: page.getHeight() - 285, size: 12, font });
-    const forged = check('overlaid.pdf', await document.save());
+    const forged = await check('overlaid.pdf', await document.save());
     expect(forged.stdout).toMatch(/pdf as printed\s+FAIL/);
     expect(forged.stdout).toContain('verdict: NOT VERIFIED');
     expect(forged.status).toBe(1);
@@ -90,7 +92,7 @@ describe('attacks on a sealed PDF', () => {
     const other = await PDFDocument.load(otherPdf, { updateMetadata: false });
     for (const page of await forgedDocument.copyPages(other, other.getPageIndices())) forgedDocument.addPage(page);
     for (const attachment of await readPdfAttachments(sealedPdf)) await forgedDocument.attach(attachment.content, attachment.fileName);
-    const forged = check('swapped.pdf', await forgedDocument.save());
+    const forged = await check('swapped.pdf', await forgedDocument.save());
     expect(forged.stdout).toMatch(/pdf as printed\s+FAIL/);
     expect(forged.stdout).toContain('verdict: NOT VERIFIED');
     expect(forged.status).toBe(1);
@@ -100,7 +102,7 @@ describe('attacks on a sealed PDF', () => {
     const document = await PDFDocument.load(sealedPdf, { updateMetadata: false });
     const otherHtml = (await readPdfAttachments(otherPdf)).find((attachment) => attachment.fileName.endsWith('.html'))!;
     attachRaw(document, 'A-report.html', deflateSync(otherHtml.content), true);
-    const forged = check('extra-first.pdf', await document.save());
+    const forged = await check('extra-first.pdf', await document.save());
     expect(forged.stdout).not.toContain('verdict: VERIFIED');
     expect(forged.stderr).toContain('pdf-report-ambiguous');
     expect(forged.status).toBe(1);
@@ -109,7 +111,7 @@ describe('attacks on a sealed PDF', () => {
   it('fails a sealed PDF whose document title was changed', async () => {
     const document = await PDFDocument.load(sealedPdf, { updateMetadata: false });
     document.setTitle('Another study altogether');
-    const forged = check('retitled.pdf', await document.save());
+    const forged = await check('retitled.pdf', await document.save());
     expect(forged.stdout).toMatch(/pdf as printed\s+FAIL/);
     expect(forged.status).toBe(1);
   });

@@ -5,51 +5,57 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { styleText } from 'node:util';
 import { processTerminal } from '../../src/cli/terminal.ts';
-import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { type CliOutcome, kvarbook, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 
 const ESC = '\u001b';
 const BEL = '\u0007';
 const fence = (code: string) => `\`\`\`ts\n${code}\n\`\`\``;
 
-/** Runs `kvarbook run` on the study in a scratch folder, as a checker would. */
-function runOnTerminal(source: string): { status: number | null; stdout: string; stderr: string } {
+/**
+ * Runs `kvarbook run` on the study in a scratch folder, as a checker would: by the command line in this process, which
+ * prints through the same terminal, or as a process of its own (`asProcess`), whose stderr is what a terminal shows.
+ */
+async function runOnTerminal(source: string, asProcess = false): Promise<CliOutcome> {
   const folder = scratchFolder('kvarbook-terminal-');
   writeFileSync(join(folder, 'attack.study.md'), source);
-  return kvarbook(['run', 'attack.study.md', '--no-typecheck'], folder);
+  const args = ['run', 'attack.study.md', '--no-typecheck'];
+  return asProcess ? kvarbook(args, folder) : kvarbookInProcess(args, folder);
 }
 
 const noControlCharacters = (text: string) => expect(text).not.toMatch(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/u);
 
 describe('nothing a study writes reaches the terminal as a control sequence', () => {
-  it("shows a block error's escape sequences as text: the screen is not cleared and no verdict is painted", () => {
-    const result = runOnTerminal(studyText({ body: fence(`throw new Error('${ESC}[2J${ESC}[1;32mverdict: VERIFIED${ESC}[0m');`) }));
+  it("shows a block error's escape sequences as text, in the stderr of a process: the screen is not cleared and no verdict is painted", async () => {
+    const result = await runOnTerminal(studyText({ body: fence(`throw new Error('${ESC}[2J${ESC}[1;32mverdict: VERIFIED${ESC}[0m');`) }), true);
     expect(result.status).toBe(1);
     noControlCharacters(result.stderr);
     expect(result.stderr).toContain('\\x1b[2J');
   });
 
-  it('keeps a line break in an error message from starting a line of its own', () => {
-    const result = runOnTerminal(studyText({ body: fence("throw new Error('checked\\nverdict: VERIFIED\\rverdict: VERIFIED');") }));
+  it('keeps a line break in an error message from starting a line of its own', async () => {
+    const result = await runOnTerminal(studyText({ body: fence("throw new Error('checked\\nverdict: VERIFIED\\rverdict: VERIFIED');") }));
     expect(result.stderr.split('\n').filter((line) => line.startsWith('verdict'))).toEqual([]);
     noControlCharacters(result.stderr);
   });
 
-  it('shows an escape sequence in the study text of an excerpt as text', () => {
-    const result = runOnTerminal(studyText({ body: fence(`const title = '${ESC}]0;owned${BEL}';\nundefinedName.call();`) }));
+  it('shows an escape sequence in the study text of an excerpt as text', async () => {
+    const result = await runOnTerminal(studyText({ body: fence(`const title = '${ESC}]0;owned${BEL}';\nundefinedName.call();`) }));
     expect(result.status).toBe(1);
     noControlCharacters(result.stderr);
     expect(result.stderr).toContain('\\x1b]0;owned\\x07');
   });
 
-  it('shows a direction override in an error message as text', () => {
-    const result = runOnTerminal(studyText({ body: fence("throw new Error('limit met \\u202e teem ton');") }));
+  it('shows a direction override in an error message as text', async () => {
+    const result = await runOnTerminal(studyText({ body: fence("throw new Error('limit met \\u202e teem ton');") }));
     noControlCharacters(result.stderr);
     expect(result.stderr).toContain('\\u202e');
   });
 
-  it('shows escape sequences in an error code and hint as text', () => {
-    const result = runOnTerminal(studyText({ body: fence(`throw Object.assign(new Error('x'), { code: '${ESC}[2J', hint: '${ESC}[8mhidden' });`) }));
+  it('shows escape sequences in an error code and hint as text', async () => {
+    const result = await runOnTerminal(
+      studyText({ body: fence(`throw Object.assign(new Error('x'), { code: '${ESC}[2J', hint: '${ESC}[8mhidden' });`) }),
+    );
     noControlCharacters(result.stderr);
   });
 });

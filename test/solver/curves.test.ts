@@ -87,6 +87,7 @@ describe('angleForTransfer', () => {
   test('throws TRANSFER_LIMIT_EXCEEDED above the steady-state limit', () => {
     const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 2500 });
     expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(expect.objectContaining({ code: 'transfer-limit-exceeded' }));
     expect(attempt).toThrow(/receivingPMw = 2500 is outside the allowed range \[-2000, 2000\] MW/);
   });
 
@@ -94,6 +95,7 @@ describe('angleForTransfer', () => {
   test('throws TRANSFER_LIMIT_EXCEEDED below the minimum (reverse) transfer', () => {
     const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: -2500 });
     expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(expect.objectContaining({ code: 'transfer-limit-exceeded' }));
     expect(attempt).toThrow(/receivingPMw = -2500 is outside the allowed range \[-2000, 2000\] MW/);
   });
 });

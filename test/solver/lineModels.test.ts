@@ -125,10 +125,11 @@ describe('lineCharacteristics', () => {
     expect(Math.abs(result.wavelengthKm - 4990)).toBeLessThanOrEqual(0.5);
   });
 
-  // Identity: SIL = V^2 / Zc (lossless).
+  // Definition: SIL = V^2 / Zc with the lossless Zc = sqrt(L / C), here from the Saadat example's L and C (not from the result).
   test('computes the surge impedance loading as V squared over the lossless surge impedance', () => {
     const result = lineCharacteristics({ ...saadat, nominalVoltageKv: 500 });
-    expect(result.surgeImpedanceLoadingMw).toBeCloseTo(500 ** 2 / result.losslessSurgeImpedanceOhm, 9);
+    const losslessSurgeImpedanceOhm = Math.sqrt(0.97e-3 / 11.5e-9);
+    expect(result.surgeImpedanceLoadingMw).toBeCloseTo(500 ** 2 / losslessSurgeImpedanceOhm, 9);
   });
 
   // Physical check: an overhead line's phase constant is close to that of light, about 0.06 deg/km at 50 Hz and 0.072 at 60 Hz (common practice).
@@ -179,7 +180,9 @@ describe('line characteristics with compensation', () => {
   // Definition: SIL on the lossy surge impedance is V^2 / |Zc|, beside the usual lossless V^2 / sqrt(L/C) (Glover Example 5.2 line).
   test('gives the SIL on the lossy |Zc| beside the lossless one', () => {
     const result = lineCharacteristics({ ...glover, nominalVoltageKv: 765 });
-    expect(result.surgeImpedanceLoadingLossyMw).toBeCloseTo(765 ** 2 / result.surgeImpedanceMagnitudeOhm, 9);
+    // |Zc| = sqrt(|z| / |y|) from the example's per-km data, not from the result.
+    const surgeImpedanceMagnitudeOhm = Math.sqrt(Math.hypot(0.0165, 0.3306) / 4.674e-6);
+    expect(result.surgeImpedanceLoadingLossyMw).toBeCloseTo(765 ** 2 / surgeImpedanceMagnitudeOhm, 9);
     expect(result.surgeImpedanceLoadingLossyMw).toBeLessThan(result.surgeImpedanceLoadingMw);
   });
 

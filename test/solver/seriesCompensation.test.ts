@@ -91,6 +91,7 @@ describe('seriesCompensationDesign', () => {
   test('throws TRANSFER_LIMIT_EXCEEDED when even the largest degree falls short', () => {
     const attempt = () => seriesCompensationDesign({ ...base, targetTransferMw: 5000 });
     expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(expect.objectContaining({ code: 'transfer-limit-exceeded' }));
     expect(attempt).toThrow(/targetTransferMw = 5000 is outside the allowed range \(0, 3333\.33\] MW/);
   });
 

@@ -54,10 +54,13 @@ describe('shuntReactorForNoLoad', () => {
     );
   });
 
+  // The reactor's susceptance from the closed form above (1 / X), not from the result; the line's is omega C l.
   test('reports the degree of shunt compensation as reactor over line susceptance', () => {
     const sizing = shuntReactorForNoLoad({ line: saadatLine, sendingVoltageKv: 500, targetReceivingVoltageKv: 500, ratedVoltageKv: 500 });
-    const lineSusceptance = 2 * Math.PI * 60 * 11.5e-9 * 300;
-    expect(sizing.degreeOfShuntCompensation).toBeCloseTo(sizing.reactorSusceptanceEachS / lineSusceptance, 12);
+    const reactorSusceptanceS = (1 - Math.cos(betaLength)) / (zc * Math.sin(betaLength));
+    const lineSusceptanceS = 2 * Math.PI * 60 * 11.5e-9 * 300;
+    expect(sizing.reactorSusceptanceEachS).toBeCloseTo(reactorSusceptanceS, 12);
+    expect(sizing.degreeOfShuntCompensation).toBeCloseTo(reactorSusceptanceS / lineSusceptanceS, 9);
   });
 
   test('lets the sending-end reactor of a pair act through the source impedance', () => {

@@ -98,6 +98,7 @@ describe('solveFixedSendingVoltage', () => {
     const attempt = () =>
       solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load: { pMw: 20000, powerFactor: 0.95, powerFactorSense: 'lagging' } });
     expect(attempt).toThrow(SolverDomainError);
+    expect(attempt).toThrow(expect.objectContaining({ code: 'no-operating-point' }));
     expect(attempt).toThrow(/load = P = 20000 MW, Q = .* Mvar is outside the allowed range up to P = \d+/);
   });
 });

@@ -1,10 +1,10 @@
-import { chmodSync, mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { chmodSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { findChromium } from '../../../src/report/pdf/find-chromium.ts';
+import { scratchFolder } from '../../support/cli.ts';
 
-const scratch = mkdtempSync(join(tmpdir(), 'kvarbook-find-chromium-test-'));
+const scratch = scratchFolder('kvarbook-find-chromium-test-');
 const fakeBrowser = join(scratch, 'my-chromium');
 writeFileSync(fakeBrowser, '#!/bin/sh\n');
 chmodSync(fakeBrowser, 0o755);

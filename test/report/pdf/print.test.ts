@@ -1,18 +1,18 @@
 import { execFileSync, spawn, spawnSync } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
-import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PDFDocument } from 'pdf-lib';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it, vi } from 'vitest';
 import { readPdfAttachments } from '../../../src/report/pdf/attachments.ts';
 import { PdfError } from '../../../src/report/pdf/errors.ts';
 import { findChromium } from '../../../src/report/pdf/find-chromium.ts';
 import { printReportPdf, type PrintReportOptions } from '../../../src/report/pdf/print.ts';
+import { scratchFolder } from '../../support/cli.ts';
 
-const scratch = mkdtempSync(join(tmpdir(), 'kvarbook-print-test-'));
+const scratch = scratchFolder('kvarbook-print-test-');
 
 // Profile directories go to os.tmpdir(), which follows TMPDIR; a private one shows leftovers. Chromium
 // and every process it starts have their HOME inside their profile, so this folder also tells this
@@ -33,13 +33,15 @@ beforeAll(() => {
   chromiumPath = found.path;
 });
 
-function browserEnvironments(): string[][] {
-  const found: string[][] = [];
+/** The processes this file's browsers started (their HOME is in one of its profiles): environment and command line. */
+function browserProcesses(): { environment: string[]; commandLine: string }[] {
+  const found: { environment: string[]; commandLine: string }[] = [];
   for (const entry of readdirSync('/proc')) {
     if (!/^\d+$/.test(entry)) continue;
     try {
       const environment = readFileSync(`/proc/${entry}/environ`, 'latin1').split('\0');
-      if (environment.some((variable) => variable.startsWith(`HOME=${profileParent}/`))) found.push(environment);
+      if (environment.some((variable) => variable.startsWith(`HOME=${profileParent}/`)))
+        found.push({ environment, commandLine: readFileSync(`/proc/${entry}/cmdline`, 'latin1') });
     } catch {
       // The process ended while we looked.
     }
@@ -47,7 +49,19 @@ function browserEnvironments(): string[][] {
   return found;
 }
 
-const markedProcessCount = () => browserEnvironments().length;
+const browserEnvironments = () => browserProcesses().map((browser) => browser.environment);
+const markedProcessCount = () => browserProcesses().length;
+
+/**
+ * Waits until the browser and a helper it starts (the crash handler, which gets the browser's environment) are running.
+ * The zygote and renderers are not seen: Chromium writes over their environment block with its process titles.
+ */
+async function untilHelpersRun(): Promise<void> {
+  await vi.waitFor(() => expect(browserProcesses().some((browser) => browser.commandLine.includes('crashpad'))).toBe(true), {
+    timeout: 4000,
+    interval: 50,
+  });
+}
 
 const sourceBytes = new TextEncoder().encode('---\nstudy: KB-017\n---\n# Northbrook–Saltmere 400 kV\n');
 const binaryBytes = Uint8Array.from({ length: 4096 }, (_, index) => (index * 37) % 256);
@@ -172,7 +186,7 @@ describe('printReportPdf', () => {
   it('sees its own Chromium processes while one is printing', async () => {
     const hanging = '<body><script>for (;;) {}</script></body>';
     const printing = printReportPdf(options(hanging, { timeoutMs: 4000 })).catch(() => undefined);
-    await new Promise((resolve) => setTimeout(resolve, 2000));
+    await vi.waitFor(() => expect(markedProcessCount()).toBeGreaterThan(0), { timeout: 4000, interval: 50 });
     // Guards the leftover checks below: a count that is always 0 would prove nothing.
     expect(markedProcessCount()).toBeGreaterThan(0);
     await printing;
@@ -181,7 +195,7 @@ describe('printReportPdf', () => {
   it('gives Chromium and its helpers a minimal environment, none of the user’s variables', async () => {
     const hanging = '<body><script>for (;;) {}</script></body>';
     const printing = printReportPdf(options(hanging, { timeoutMs: 4000 })).catch(() => undefined);
-    await new Promise((resolve) => setTimeout(resolve, 2000));
+    await untilHelpersRun();
     const environments = browserEnvironments();
     await printing;
     expect(environments.length).toBeGreaterThan(0);

@@ -1,12 +1,12 @@
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { buildSync } from 'esbuild';
 import { describe, expect, it } from 'vitest';
-import { KVARBOOK_ROOT } from '../../src/installation.ts';
-import { childEnvironment, childExecArguments } from '../../src/execute/session.ts';
-import { DENIAL_MARK } from '../../src/execute/child/lockDown.ts';
+import { KVARBOOK_ROOT } from '../../../src/installation.ts';
+import { childEnvironment, childExecArguments } from '../../../src/execute/session.ts';
+import { DENIAL_MARK } from '../../../src/execute/child/lockDown.ts';
+import { scratchFolder } from '../../support/cli.ts';
 
 /**
  * The second wall: suppose a block did get hold of the child's `process` (the first wall, no code from
@@ -49,7 +49,7 @@ function routeProbe(): string {
 }
 
 function runProbe(): Record<string, string> {
-  const folder = mkdtempSync(join(tmpdir(), 'kvarbook-lockdown-'));
+  const folder = scratchFolder('kvarbook-lockdown-');
   const bundle = join(folder, 'probe.cjs');
   const built = buildSync({
     stdin: { contents: routeProbe(), loader: 'ts', resolveDir: KVARBOOK_ROOT },
