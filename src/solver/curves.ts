@@ -208,7 +208,7 @@ export function stableAngleForPowerRad(abcd: AbcdMatrix, sendingVoltageKv: numbe
   return limitAngle - Math.acos(Math.max(-1, Math.min(1, cosine)));
 }
 
-/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit in either direction it throws TRANSFER_LIMIT_EXCEEDED. */
+/** Angle by which Vs must lead Vr to deliver a receiving-end power; beyond the steady-state limit in either direction it throws transfer-limit-exceeded. */
 export function angleForTransfer(options: { network: TwoPort; sendingVoltageKv: number; receivingVoltageKv: number; receivingPMw: number }): {
   angleDeg: number;
   steadyStateLimitMw: number;

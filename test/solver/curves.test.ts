@@ -84,7 +84,7 @@ describe('angleForTransfer', () => {
     expect(result.angleDeg).toBeCloseTo((Math.asin((1000 * 80) / 400 ** 2) * 180) / Math.PI, 9);
   });
 
-  test('throws TRANSFER_LIMIT_EXCEEDED above the steady-state limit', () => {
+  test('throws transfer-limit-exceeded above the steady-state limit', () => {
     const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: 2500 });
     expect(attempt).toThrow(SolverDomainError);
     expect(attempt).toThrow(expect.objectContaining({ code: 'transfer-limit-exceeded' }));
@@ -92,7 +92,7 @@ describe('angleForTransfer', () => {
   });
 
   // Lossless reactance: the stable side spans P = -Vs Vr / X (delta = -90 deg) to +Vs Vr / X; below -2000 MW no angle delivers the power.
-  test('throws TRANSFER_LIMIT_EXCEEDED below the minimum (reverse) transfer', () => {
+  test('throws transfer-limit-exceeded below the minimum (reverse) transfer', () => {
     const attempt = () => angleForTransfer({ network: shortLossless(80), sendingVoltageKv: 400, receivingVoltageKv: 400, receivingPMw: -2500 });
     expect(attempt).toThrow(SolverDomainError);
     expect(attempt).toThrow(expect.objectContaining({ code: 'transfer-limit-exceeded' }));

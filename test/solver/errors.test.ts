@@ -26,12 +26,12 @@ describe('SolverDomainError', () => {
     expect(caught(() => lineModel({ ...perKm, frequencyHz: 0, lengthKm: 100 })).quantity).toBe('frequencyHz');
   });
 
-  test('reports a missing quantity as MISSING_QUANTITY', () => {
+  test('reports a missing quantity as missing-quantity', () => {
     const options = { frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, shuntSusceptanceUsPerKm: 3.6, lengthKm: 100 };
     expect(caught(() => lineModel(options as never)).code).toBe('missing-quantity');
   });
 
-  test('reports NaN and Infinity inputs as NOT_A_FINITE_NUMBER', () => {
+  test('reports NaN and Infinity inputs as not-a-finite-number', () => {
     expect(caught(() => lineModel({ ...perKm, lengthKm: Number.NaN })).code).toBe('not-a-finite-number');
     expect(caught(() => lineModel({ ...perKm, lengthKm: Number.POSITIVE_INFINITY })).code).toBe('not-a-finite-number');
   });
@@ -45,7 +45,7 @@ describe('SolverDomainError', () => {
     expect(JSON.parse(JSON.stringify(error))).toMatchObject({ name: 'SolverDomainError', code: 'out-of-range', quantity: 'lengthKm', value: -5 });
   });
 
-  test('reports a load beyond the nose as NO_OPERATING_POINT', () => {
+  test('reports a load beyond the nose as no-operating-point', () => {
     const line = lineModel({ ...perKm, lengthKm: 300 });
     expect(caught(() => solveFixedSendingVoltage({ network: line, sendingVoltageKv: 400, load: { pMw: 50000, qMvar: 0 } })).code).toBe(
       'no-operating-point',

@@ -88,7 +88,7 @@ describe('seriesCompensationDesign', () => {
     expect(design.compensatedNetwork.elements.map((element) => element.kind)).toEqual(['line-section', 'series-capacitor', 'line-section']);
   });
 
-  test('throws TRANSFER_LIMIT_EXCEEDED when even the largest degree falls short', () => {
+  test('throws transfer-limit-exceeded when even the largest degree falls short', () => {
     const attempt = () => seriesCompensationDesign({ ...base, targetTransferMw: 5000 });
     expect(attempt).toThrow(SolverDomainError);
     expect(attempt).toThrow(expect.objectContaining({ code: 'transfer-limit-exceeded' }));

@@ -94,7 +94,7 @@ describe('solveFixedSendingVoltage', () => {
     expect(result.receivingEnd.voltageKv).toBeCloseTo(765 / Math.hypot(lossy.A.re, lossy.A.im), 0);
   });
 
-  test('throws NO_OPERATING_POINT with the nose loading when the load is beyond the nose', () => {
+  test('throws no-operating-point with the nose loading when the load is beyond the nose', () => {
     const attempt = () =>
       solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load: { pMw: 20000, powerFactor: 0.95, powerFactorSense: 'lagging' } });
     expect(attempt).toThrow(SolverDomainError);
