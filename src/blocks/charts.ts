@@ -1,5 +1,5 @@
 // Ready-made Vega-Lite specs for the charts a reactive-compensation study usually needs: they shape data, the solver computes.
-import { ChartInputError } from '../report/chart/errors.ts';
+import { ChartInputError } from './chartInputError.ts';
 import { stabilityMarginPercent } from '../solver/curves.ts';
 import { type SvcCharacteristicOptions, svcCharacteristicCorners } from '../solver/sizing.ts';
 import { allowedBandFill, referenceInk, seriesColours, seriesDashes, seriesShapes } from './chartStyle.ts';

@@ -8,7 +8,7 @@ import {
   svcCharacteristicCorners,
   voltageProfileChart,
 } from '../../src/blocks/charts.ts';
-import { ChartInputError } from '../../src/report/chart/errors.ts';
+import { ChartInputError } from '../../src/blocks/chartInputError.ts';
 import { renderChartSvg } from '../../src/report/chart/render.ts';
 import { stabilityMarginPercent as solverStabilityMarginPercent } from '../../src/solver/curves.ts';
 import { SolverDomainError } from '../../src/solver/errors.ts';

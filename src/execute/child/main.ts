@@ -10,7 +10,7 @@ import { BlockApiError, Figure, InputValue, checkedText, createBlockApi } from '
 import { lockDown } from './lockDown.ts';
 import { Problem } from '../../diagnostics/diagnostic.ts';
 import { freezeDeep, hardenContext } from './harden.ts';
-import { ChartInputError } from '../../report/chart/errors.ts';
+import { ChartInputError } from '../../blocks/chartInputError.ts';
 import { UnitProblem } from '../../study/units.ts';
 
 let context: vm.Context | undefined;

@@ -1,4 +1,4 @@
-// Typed errors for chart rendering (bad Vega-Lite specs) and chart builders (bad engineering inputs).
+// Typed errors for chart rendering: a Vega-Lite spec that cannot be drawn.
 
 import type { CodesStartingWith } from '../../diagnostics/codes.ts';
 import { Problem } from '../../diagnostics/diagnostic.ts';
@@ -22,22 +22,6 @@ export class ChartSpecError extends Problem {
 
   constructor(code: ChartSpecErrorCode, problem: string, details: ChartSpecErrorDetails) {
     const message = `${problem} (at ${details.quantity}: ${details.value}; allowed: ${details.allowed})`;
-    super(
-      { code, message, hint: details.hint, quantity: details.quantity, expected: details.allowed, actual: details.value },
-      { message: `${message}. ${details.hint}` },
-    );
-  }
-}
-
-export type ChartInputErrorCode = CodesStartingWith<'chart-input-'>;
-
-/** An engineering input to a chart builder that cannot be drawn meaningfully. */
-export class ChartInputError extends Problem {
-  override readonly name = 'ChartInputError';
-  declare readonly code: ChartInputErrorCode;
-
-  constructor(code: ChartInputErrorCode, details: { quantity: string; value: number | string; allowed: string; hint: string }) {
-    const message = `${details.quantity} = ${String(details.value)} is not usable for the chart (allowed: ${details.allowed})`;
     super(
       { code, message, hint: details.hint, quantity: details.quantity, expected: details.allowed, actual: details.value },
       { message: `${message}. ${details.hint}` },
