@@ -1,5 +1,5 @@
 // Design criteria over a solved case table: each criterion judged in every case, and the worst case of each with its margin.
-import type { CorridorCaseTable, SolvedCorridorCase } from './cases.ts';
+import { readVoltageBand, type CorridorCaseTable, type SolvedCorridorCase } from './cases.ts';
 import { SolverDomainError, assertFiniteResult, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 
 export type CaseCriterionKind = 'operating-point' | 'voltage-band' | 'corridor-angle' | 'series-bank-current' | 'svc-range';
@@ -44,7 +44,6 @@ export interface CaseCriterionSettings {
 
 const HINT =
   "Pass { table (from solveCorridorCases), bandPu: { min, max }, maxAngleDeg?, cases?: { <case label>: { bankRating?: 'continuous' | 'emergency', bandPu?, maxAngleDeg? } } }.";
-const BAND_RANGE = { min: 0.5, max: 1.5, unit: 'pu' };
 
 /**
  * Judges every case of a solved table on the usual design criteria: a solution exists; every bus and every point along every section
@@ -61,7 +60,7 @@ export function corridorCaseCriteria(options: {
   const record = requireObject('options', options, HINT);
   const table = requireObject('table', record.table, HINT) as unknown as CorridorCaseTable;
   const solutions = requireArray('table.cases', table.cases, 1, HINT) as CorridorCaseTable['cases'];
-  const bandPu = readBand('bandPu', record.bandPu);
+  const bandPu = readVoltageBand('bandPu', record.bandPu);
   const maxAngleDeg = record.maxAngleDeg === undefined ? null : readAngle('maxAngleDeg', record.maxAngleDeg);
   const labels = new Set(solutions.map((solution) => solution.label));
   const settings = new Map<string, { bankRating: 'continuous' | 'emergency'; bandPu: { min: number; max: number }; maxAngleDeg: number | null }>();
@@ -82,7 +81,7 @@ export function corridorCaseCriteria(options: {
           entry.bankRating === undefined
             ? 'continuous'
             : requireChoice(`cases.${label}.bankRating`, entry.bankRating, ['continuous', 'emergency'] as const, HINT),
-        bandPu: entry.bandPu === undefined ? bandPu : readBand(`cases.${label}.bandPu`, entry.bandPu),
+        bandPu: entry.bandPu === undefined ? bandPu : readVoltageBand(`cases.${label}.bandPu`, entry.bandPu),
         maxAngleDeg: entry.maxAngleDeg === undefined ? maxAngleDeg : readAngle(`cases.${label}.maxAngleDeg`, entry.maxAngleDeg),
       });
     }
@@ -147,13 +146,6 @@ function readAngle(path: string, value: unknown): number {
     { min: 0, max: 90, minInclusive: false, unit: 'deg' },
     'The largest angle allowed across the corridor; about 30 to 35 degrees is common practice for steady-state margin.',
   );
-}
-
-function readBand(path: string, value: unknown): { min: number; max: number } {
-  const band = requireObject(path, value, 'Pass { min, max } in per unit of the nominal voltage.');
-  const min = requireNumber(`${path}.min`, band.min, BAND_RANGE, 'The lowest voltage allowed; the grid code and the planning criteria govern.');
-  const max = requireNumber(`${path}.max`, band.max, { ...BAND_RANGE, min }, 'The highest voltage allowed, above the lowest.');
-  return { min, max };
 }
 
 function bandRows(solution: SolvedCorridorCase, band: { min: number; max: number }): CaseCriterionRow[] {

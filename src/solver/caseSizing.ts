@@ -1,6 +1,6 @@
 // Shunt reactor sizing across operating cases: the smallest set of standard units, split between buses, that keeps every case in band.
 import { readCorridor, type Corridor, type CorridorInput } from './corridor.ts';
-import { readCase, solveCaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
+import { readCase, readVoltageBand, solveCaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
 import { switchingSteps } from './switchingSteps.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
@@ -84,7 +84,6 @@ export interface ReactorSizingAcrossCases {
 
 const HINT =
   'Pass { corridor, buses, ratingsMvar, ratedVoltageKv, cases: [{ case, sizedUnits?, bandPu? }], bandPu: { min, max }, stepLimitPercent, maxUnitsPerBus? }.';
-const BAND_RANGE = { min: 0.5, max: 1.5, unit: 'pu' };
 
 /**
  * The smallest total of standard shunt reactor units (identical units per bus, up to maxUnitsPerBus at each candidate bus) that keeps
@@ -122,7 +121,7 @@ export function sizeReactorsAcrossCases(options: {
     VOLTAGE_RANGE_KV,
     "The units' rated voltage (often the highest system voltage, not the nominal).",
   );
-  const bandPu = readBand('bandPu', record.bandPu);
+  const bandPu = readVoltageBand('bandPu', record.bandPu);
   const stepLimitPercent = requireNumber(
     'stepLimitPercent',
     record.stepLimitPercent,
@@ -148,7 +147,7 @@ export function sizeReactorsAcrossCases(options: {
       case: entry.case as CorridorCaseInput,
       sizedUnits:
         entry.sizedUnits === undefined ? 'in' : requireChoice(`${path}.sizedUnits`, entry.sizedUnits, ['in', 'out', 'largest-out'] as const, HINT),
-      bandPu: entry.bandPu === undefined ? bandPu : readBand(`${path}.bandPu`, entry.bandPu),
+      bandPu: entry.bandPu === undefined ? bandPu : readVoltageBand(`${path}.bandPu`, entry.bandPu),
       checkSteps: readCheckSteps(`${path}.checkSteps`, entry.checkSteps, entry.case as CorridorCaseInput),
     };
   });
@@ -209,13 +208,6 @@ function readCheckSteps(path: string, value: unknown, caseInput: CorridorCaseInp
   if (value === undefined) return caseInput.loading.kind !== 'energisation';
   if (typeof value === 'boolean') return value;
   throw new SolverDomainError({ code: 'out-of-range', quantity: path, value: String(value), allowedRange: 'true or false', hint: HINT });
-}
-
-function readBand(path: string, value: unknown): { min: number; max: number } {
-  const band = requireObject(path, value, 'Pass { min, max } in per unit of the nominal voltage.');
-  const min = requireNumber(`${path}.min`, band.min, BAND_RANGE, 'The lowest voltage allowed; the grid code and the planning criteria govern.');
-  const max = requireNumber(`${path}.max`, band.max, { ...BAND_RANGE, min }, 'The highest voltage allowed, above the lowest.');
-  return { min, max };
 }
 
 /** Every allotment (0..maxUnits identical units of one rating at each bus), grouped by total Mvar in ascending order. */

@@ -1017,3 +1017,13 @@ export function solveCorridorCases(options: {
     cases: states.map((state) => solveCaseState(corridor, state, settings)),
   });
 }
+
+const BAND_RANGE = { min: 0.5, max: 1.5, unit: 'pu' };
+
+/** A voltage band { min, max } in per unit, as the case tools take it (sizing, criteria). */
+export function readVoltageBand(path: string, value: unknown): { min: number; max: number } {
+  const band = requireObject(path, value, 'Pass { min, max } in per unit of the nominal voltage.');
+  const min = requireNumber(`${path}.min`, band.min, BAND_RANGE, 'The lowest voltage allowed; the grid code and the planning criteria govern.');
+  const max = requireNumber(`${path}.max`, band.max, { ...BAND_RANGE, min }, 'The highest voltage allowed, above the lowest.');
+  return { min, max };
+}
