@@ -62,8 +62,10 @@ describe('attacks on the signing key', () => {
     }
     expect(run.exitCode).toBe(0);
     const commands = [...seen.values()].map((helper) => helper.command);
-    // Guards the assertion below: a scan that saw no helper would prove nothing.
-    expect(commands.some((command) => command.includes('esbuild'))).toBe(true);
+    // Guards the assertion below: a scan that saw no helper would prove nothing. The calculation child and Chromium live long
+    // enough to be seen every time; esbuild, which transpiles the blocks, now lives a few milliseconds (the child is prebuilt), so
+    // it is checked whenever the scan catches it but not required.
+    expect(commands.some((command) => command === process.execPath || command.endsWith('/node'))).toBe(true);
     expect(commands.some((command) => command.includes('chrom'))).toBe(true);
     const leaking = [...seen.values()].filter((helper) =>
       helper.environment.some((entry) => entry.startsWith('KVARBOOK_PASSPHRASE=') || entry.includes('token-of-the-user-4711')),
