@@ -29,8 +29,19 @@ export interface SeriesBankRatings {
   /** Highest current over the emergency cases, rms per circuit; null when no emergency case was named. */
   emergencyDuty: { currentArms: number; case: string; heldTo: OverloadDuty } | null;
   designMarginPercent: number;
+  /**
+   * The current swing after a fault (from a stability study), held to the bank's swing capability; null when none was given. The
+   * varistor must not conduct in the swing, so its peak capacitor voltage is compared with the protective level.
+   */
+  swingDuty: {
+    currentArms: number;
+    capabilityPu: number;
+    durationSeconds: number;
+    capacitorVoltageKvPeak: number;
+    belowProtectiveLevel: boolean;
+  } | null;
   /** Which duty sets the rated current. */
-  governedBy: 'continuous' | 'emergency';
+  governedBy: 'continuous' | 'emergency' | 'swing';
   /** Rounded up to the rating step. */
   ratedCurrentArms: number;
   /** Per phase, across the capacitor at rated current: I_rated Xc. */
@@ -47,7 +58,7 @@ export interface SeriesBankRatings {
 }
 
 const HINT =
-  'Pass { table (from solveCorridorCases), segment, emergencyCases?: [case labels], designMarginPercent?, ratingStepA?, protectiveLevelPu?, overloadDuties?, emergencyDutyLabel? }.';
+  'Pass { table (from solveCorridorCases), segment, emergencyCases?: [case labels], designMarginPercent?, ratingStepA?, protectiveLevelPu?, overloadDuties?, emergencyDutyLabel?, swing?: { currentArms, capabilityPu, durationSeconds } }.';
 
 /**
  * Ratings of one series capacitor segment from the currents the case table gives it: the rated current covers the highest normal-case
@@ -64,6 +75,7 @@ export function seriesBankRatings(options: {
   protectiveLevelPu?: number;
   overloadDuties?: OverloadDuty[];
   emergencyDutyLabel?: string;
+  swing?: { currentArms: number; capabilityPu: number; durationSeconds: number };
 }): SeriesBankRatings {
   const record = requireObject('options', options, HINT);
   const table = requireObject('table', record.table, HINT) as unknown as CorridorCaseTable;
@@ -164,23 +176,62 @@ export function seriesBankRatings(options: {
   const reactanceOhm = kvToV(normal.segment.voltageKv) / normal.segment.currentA;
   const forContinuousA = normal.segment.currentA * (1 + designMarginPercent / 100);
   const forEmergencyA = emergency ? emergency.segment.currentA / heldTo.currentPu : 0;
-  const ratedCurrentArms = Math.ceil(Math.max(forContinuousA, forEmergencyA) / ratingStepA) * ratingStepA;
+  const swing = record.swing === undefined ? null : readSwing(record.swing);
+  const forSwingA = swing ? swing.currentArms / swing.capabilityPu : 0;
+  const ratedCurrentArms = Math.ceil(Math.max(forContinuousA, forEmergencyA, forSwingA) / ratingStepA) * ratingStepA;
   const ratedVoltageKvRms = vToKv(ratedCurrentArms * reactanceOhm);
+  const protectiveLevelKvPeak = protectiveLevelPu * Math.SQRT2 * ratedVoltageKvRms;
+  const governing = Math.max(forContinuousA, forEmergencyA, forSwingA);
   return assertFiniteResult('seriesBankRatings', {
     segment: String(segmentName),
     reactanceOhm,
     continuousDuty: { currentArms: normal.segment.currentA, case: normal.label },
     emergencyDuty: emergency ? { currentArms: emergency.segment.currentA, case: emergency.label, heldTo } : null,
     designMarginPercent,
-    governedBy: forEmergencyA > forContinuousA ? 'emergency' : 'continuous',
+    swingDuty: swing
+      ? {
+          ...swing,
+          capacitorVoltageKvPeak: vToKv(Math.SQRT2 * swing.currentArms * reactanceOhm),
+          belowProtectiveLevel: vToKv(Math.SQRT2 * swing.currentArms * reactanceOhm) < protectiveLevelKvPeak,
+        }
+      : null,
+    governedBy: governing === forContinuousA ? 'continuous' : governing === forEmergencyA ? 'emergency' : 'swing',
     ratedCurrentArms,
     ratedVoltageKvRms,
     ratedMvar: varToMvar(3 * ratedCurrentArms ** 2 * reactanceOhm),
     protectiveLevelPu,
-    protectiveLevelKvPeak: protectiveLevelPu * Math.SQRT2 * ratedVoltageKvRms,
+    protectiveLevelKvPeak,
     overloadDuties: duties.map((duty) => ({ ...duty, currentArms: duty.currentPu * ratedCurrentArms })),
     unsolvedCases: solutions.filter((solution) => !solution.solved).map((solution) => solution.label),
   });
+}
+
+function readSwing(value: unknown): { currentArms: number; capabilityPu: number; durationSeconds: number } {
+  const swing = requireObject(
+    'swing',
+    value,
+    'Pass { currentArms, capabilityPu, durationSeconds }: the swing from a stability study and the capability specified for it.',
+  );
+  return {
+    currentArms: requireNumber(
+      'swing.currentArms',
+      swing.currentArms,
+      { min: 0, max: 1e5, minInclusive: false, unit: 'A' },
+      'The highest rms current of the swing after a fault, from a stability study.',
+    ),
+    capabilityPu: requireNumber(
+      'swing.capabilityPu',
+      swing.capabilityPu,
+      { min: 1, max: 3, unit: 'pu' },
+      "The bank's swing capability as a multiple of its rated current, as the purchaser's specification states it.",
+    ),
+    durationSeconds: requireNumber(
+      'swing.durationSeconds',
+      swing.durationSeconds,
+      { min: 0, max: 600, minInclusive: false, unit: 's' },
+      'How long the swing lasts.',
+    ),
+  };
 }
 
 function readDuties(value: unknown): OverloadDuty[] {

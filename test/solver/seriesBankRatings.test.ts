@@ -79,4 +79,21 @@ describe('series capacitor segment ratings from the case table', () => {
       expect.objectContaining({ code: 'out-of-range', quantity: 'segment', allowedRange: "one of 'SC-G'" }),
     );
   });
+
+  test('rates for a swing current held to its swing capability, and says whether the swing stays below the protective level', () => {
+    // Twice the highest case current, held to 1.7 pu, needs more than the cases do.
+    const swingA = 2 * currentIn('one circuit out, peak');
+    const ratings = seriesBankRatings({
+      table,
+      segment: 'SC-G',
+      ratingStepA: 10,
+      protectiveLevelPu: 2.3,
+      swing: { currentArms: swingA, capabilityPu: 1.7, durationSeconds: 3 },
+    });
+    expect(ratings.governedBy).toBe('swing');
+    expect(ratings.ratedCurrentArms).toBe(Math.ceil(swingA / 1.7 / 10) * 10);
+    // The swing's peak capacitor voltage sqrt 2 I Xc against k sqrt 2 I_rated Xc: below it exactly when I_swing < k I_rated.
+    expect(ratings.swingDuty!.capacitorVoltageKvPeak).toBeCloseTo((Math.SQRT2 * swingA * REACTANCE_OHM) / 1e3, 6);
+    expect(ratings.swingDuty!.belowProtectiveLevel).toBe(swingA < 2.3 * ratings.ratedCurrentArms);
+  });
 });
