@@ -1,5 +1,5 @@
 // The case table a study shows: every operating case of a corridor as a numbered table, cases as rows or buses as rows.
-import type { CorridorCaseTable } from '../solver/cases.ts';
+import { type CorridorCaseTable, caseVoltageExtremes } from '../solver/cases.ts';
 
 export type CaseTableLayout = 'cases-as-rows' | 'buses-as-rows';
 
@@ -73,7 +73,7 @@ export function caseTableContent(table: Solutions, layout: CaseTableLayout = 'ca
       const bus = solution.buses.find((candidate) => candidate.name === name);
       row[`bus${busIndex}`] = bus ? bus.voltagePu : '-';
     });
-    row.highest = Math.max(...solution.buses.map((bus) => bus.voltagePu), ...solution.sections.map((section) => section.maximum.voltagePu));
+    row.highest = caseVoltageExtremes(solution).highestPu;
     const first = solution.buses[0]!;
     const last = solution.buses[solution.buses.length - 1]!;
     row.angle = solution.systems.sending.connected && solution.systems.receiving.connected ? Math.abs(first.angleDeg - last.angleDeg) : '-';

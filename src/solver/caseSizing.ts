@@ -1,6 +1,6 @@
 // Shunt reactor sizing across operating cases: the smallest set of standard units, split between buses, that keeps every case in band.
 import { readCorridor, type Corridor, type CorridorInput } from './corridor.ts';
-import { readCase, readVoltageBand, solveCaseState, type CorridorCaseInput, type SolvedCorridorCase } from './cases.ts';
+import { caseVoltageExtremes, readCase, readVoltageBand, solveCaseState, type CorridorCaseInput } from './cases.ts';
 import { switchingSteps } from './switchingSteps.ts';
 import { SolverDomainError, assertFiniteResult, optionalNumber, requireArray, requireChoice, requireNumber, requireObject } from './errors.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
@@ -290,7 +290,7 @@ function evaluate(
       if (!solution.solved) {
         return { failure: { case: label, criterion: 'no-operating-point', where: '', value: null, limit: null, reason: solution.reason }, spans };
       }
-      const extremes = voltageExtremes(solution);
+      const extremes = caseVoltageExtremes(solution);
       if (span === null || extremes.highestPu > span.highestPu)
         span = { case: label, sizedUnits: entry.sizedUnits, ...extremes, bandPu: entry.bandPu, largestStepPercent: null };
       if (extremes.highestPu > entry.bandPu.max) {
@@ -341,18 +341,4 @@ function bandFailure(label: string, criterion: 'voltage-high' | 'voltage-low', w
     limit: limitPu,
     reason: `${where} at ${valuePu.toFixed(4)} pu is ${criterion === 'voltage-high' ? 'above' : 'below'} ${limitPu} pu`,
   };
-}
-
-/** The lowest and highest voltage of a case: at every bus and at every point along every line section. */
-function voltageExtremes(solution: SolvedCorridorCase): Pick<CaseVoltageSpan, 'lowestPu' | 'lowestAt' | 'highestPu' | 'highestAt'> {
-  const points = [
-    ...solution.buses.map((bus) => ({ at: bus.name, pu: bus.voltagePu })),
-    ...solution.sections.flatMap((section) => [
-      { at: section.name, pu: section.maximum.voltagePu },
-      { at: section.name, pu: section.minimum.voltagePu },
-    ]),
-  ];
-  const lowest = points.reduce((best, point) => (point.pu < best.pu ? point : best));
-  const highest = points.reduce((best, point) => (point.pu > best.pu ? point : best));
-  return { lowestPu: lowest.pu, lowestAt: lowest.at, highestPu: highest.pu, highestAt: highest.at };
 }

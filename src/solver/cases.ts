@@ -1027,3 +1027,17 @@ export function readVoltageBand(path: string, value: unknown): { min: number; ma
   const max = requireNumber(`${path}.max`, band.max, { ...BAND_RANGE, min }, 'The highest voltage allowed, above the lowest.');
   return { min, max };
 }
+
+/** The lowest and highest voltage of a solved case, over every bus and every point along every section, and where each is. */
+export function caseVoltageExtremes(solution: SolvedCorridorCase): { lowestPu: number; lowestAt: string; highestPu: number; highestAt: string } {
+  const points = [
+    ...solution.buses.map((bus) => ({ at: bus.name, pu: bus.voltagePu })),
+    ...solution.sections.flatMap((section) => [
+      { at: section.name, pu: section.maximum.voltagePu },
+      { at: section.name, pu: section.minimum.voltagePu },
+    ]),
+  ];
+  const lowest = points.reduce((best, point) => (point.pu < best.pu ? point : best));
+  const highest = points.reduce((best, point) => (point.pu > best.pu ? point : best));
+  return { lowestPu: lowest.pu, lowestAt: lowest.at, highestPu: highest.pu, highestAt: highest.at };
+}
