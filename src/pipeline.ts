@@ -28,6 +28,8 @@ export interface RunRequest {
   /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
   typecheckCache?: TypecheckCache;
   hooks?: ExecutionHooks;
+  /** Ends the run early, between stages and inside the execution (the live preview's superseded runs). */
+  signal?: AbortSignal;
 }
 
 export interface RunProduct {
@@ -55,9 +57,15 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   }
   // 4. Type-check against the block API, unless the author skipped it while drafting.
   if (request.typecheck) await typecheckStudy(study, undefined, request.typecheckCache);
+  request.signal?.throwIfAborted();
   // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
-  const outcome = await executeStudy(study, inputs, blocks, inlines, { ...(request.hooks ? { hooks: request.hooks } : {}), granted });
+  const outcome = await executeStudy(study, inputs, blocks, inlines, {
+    ...(request.hooks ? { hooks: request.hooks } : {}),
+    ...(request.signal ? { signal: request.signal } : {}),
+    granted,
+  });
+  request.signal?.throwIfAborted();
   const run: StudyRun = {
     study,
     inputs,

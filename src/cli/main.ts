@@ -1,6 +1,7 @@
 // The kvarbook command line: parses arguments, calls one command, renders problems once, and picks the exit code.
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
 import type { RunOptions } from './runCommand.ts';
+import type { PreviewOptions } from './previewCommand.ts';
 import type { CheckOptions } from './checkCommand.ts';
 import type { KeyNewOptions } from './keyCommand.ts';
 import { homeFolders } from './homeFolders.ts';
@@ -11,7 +12,7 @@ import { CEILING_OPTIONS, CEILING_RANGES, DEFAULT_CEILINGS } from '../execute/li
 import type { RunLimits } from '../study/model.ts';
 import { installationFacts } from './environment.ts';
 import { newCommand, templateNames } from './newCommand.ts';
-import { processTerminal, type Terminal } from './terminal.ts';
+import { processTerminal, type Terminal, unexpectedProblem } from './terminal.ts';
 
 export const EXIT = { ok: 0, studyFailed: 1, usage: 2 } as const;
 
@@ -22,6 +23,12 @@ function collect(value: string, previous: string[]): string[] {
 function parseTolerance(text: string): number {
   const value = Number(text);
   if (!(value > 0 && value < 1)) throw new InvalidArgumentError(`${text} is outside the allowed range (0, 1)`);
+  return value;
+}
+
+function parsePort(text: string): number {
+  const value = Number(text);
+  if (!Number.isInteger(value) || value < 0 || value > 65535) throw new InvalidArgumentError(`${text} is not a port (0 to 65535, whole)`);
   return value;
 }
 
@@ -79,6 +86,19 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     // Loaded on demand so that --help and usage errors answer at once.
     const { runCommand } = await import('./runCommand.ts');
     setExit(await runCommand(study, { ...options, ceilings: ceilingsOf(options) }, terminal));
+  });
+
+  withCeilings(
+    program
+      .command('preview')
+      .description('serve the report on 127.0.0.1 and update the open page each time the study file is saved (Ctrl-C stops)')
+      .argument('<study>', 'the study file (.study.md)')
+      .option('-p, --port <port>', 'port on 127.0.0.1 to serve on (0: any free port)', parsePort, 0)
+      .option('-s, --set <name=value>', 'override an input for the preview, e.g. --set lineLength=280km (repeatable)', collect, [])
+      .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)')),
+  ).action(async (study: string, options: WithCeilingOptions<PreviewOptions>) => {
+    const { previewCommand } = await import('./previewCommand.ts');
+    setExit(await previewCommand(study, { ...options, ceilings: ceilingsOf(options) }, terminal));
   });
 
   withCeilings(
@@ -151,13 +171,7 @@ export async function main(argv: readonly string[], environment: NodeJS.ProcessE
       terminal.problems(error.diagnostics);
       return EXIT.studyFailed;
     }
-    terminal.problems([
-      {
-        code: 'internal',
-        message: `kvarbook failed unexpectedly: ${(error as Error).message}`,
-        hint: 'please report this with the study that caused it',
-      },
-    ]);
+    terminal.problems([unexpectedProblem(error)]);
     return EXIT.studyFailed;
   }
 }

@@ -30,7 +30,12 @@ export interface RunOptions {
   ceilings?: RunLimits;
 }
 
-async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'>, terminal: Terminal): Promise<RunProduct> {
+/** The study run in this process to its report in memory (`run` writes it; `preview` serves it); `signal` ends it early. */
+export async function produceStudy(
+  studyPath: string,
+  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'> & { signal?: AbortSignal },
+  terminal: Terminal,
+): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
   terminal.studyText(studyPath, source);
   const environment = installationFacts();
@@ -43,6 +48,7 @@ async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' |
     environment,
     stylesheet: reportStylesheet(),
     typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
+    ...(options.signal ? { signal: options.signal } : {}),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),
     },

@@ -70,6 +70,15 @@ export function printableDiagnostic(diagnostic: Diagnostic, studyText?: string):
   return lines.join('\n');
 }
 
+/** A failure that is not a study's problem, as the command line reports it: a defect of kvarbook's own. */
+export function unexpectedProblem(error: unknown): Diagnostic {
+  return {
+    code: 'internal',
+    message: `kvarbook failed unexpectedly: ${(error as Error).message}`,
+    hint: 'please report this with the study that caused it',
+  };
+}
+
 interface Streams {
   out: NodeJS.WritableStream;
   err: NodeJS.WritableStream & { isTTY?: boolean };

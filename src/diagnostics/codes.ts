@@ -152,6 +152,8 @@ export const DIAGNOSTIC_CODES = {
   'template-missing': 'there is no template of that name',
   'new-exists': 'the file a new study would be written to exists already',
   'new-unwritable': 'the new study cannot be written',
+  'preview-port-unavailable': 'the live preview cannot listen on the port asked for (taken, or not allowed)',
+  'preview-watch-failed': 'the live preview cannot watch the study file for saves',
   internal: 'kvarbook failed unexpectedly (a defect to report)',
 } as const satisfies Record<string, string>;
 

@@ -69,6 +69,8 @@ export interface ExecutionOptions {
   hooks?: ExecutionHooks;
   /** The limits granted to the study; the study's own when absent. */
   granted?: GrantedLimits;
+  /** Ends the run early (a newer save superseded it): the child is killed at once and the run fails. */
+  signal?: AbortSignal;
 }
 
 export async function executeStudy(
@@ -90,7 +92,10 @@ export async function executeStudy(
   });
   const conversation = new Conversation(child, residentLimitBytes(limits.heapMb));
   const studyDeadline = Date.now() + limits.studySeconds * 1000;
+  const stop = () => conversation.close();
+  options.signal?.addEventListener('abort', stop, { once: true });
   try {
+    options.signal?.throwIfAborted();
     const notStarted = (): Diagnostic => ({
       code: 'child-start',
       message: 'the calculation process did not start',
@@ -175,6 +180,7 @@ export async function executeStudy(
     }
     return outcome;
   } finally {
+    options.signal?.removeEventListener('abort', stop);
     conversation.close();
   }
 }

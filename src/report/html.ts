@@ -27,7 +27,8 @@ export interface ReportParts {
  * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
  * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
  */
-const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+export const CONTENT_SECURITY_POLICY =
+  "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
 
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
@@ -434,6 +435,18 @@ ${jsonScript(STUDY_SOURCE_SCRIPT, JSON.stringify(run.study.source))}
 /** Join the parts with the seal section (empty for an unsealed report). */
 export function assembleReport(parts: ReportParts, sealSection: string): string {
   return `${parts.head}${SEAL_SLOT_START}${sealSection}${SEAL_SLOT_END}${parts.body}`;
+}
+
+const BODY_OPEN = '<body>\n';
+const BODY_CLOSE = '</body>\n</html>\n';
+
+/** What the report's <body> holds, joined with `sealSection`: the part the live preview swaps in place as the study changes. */
+export function reportBodyContent(parts: ReportParts, sealSection: string): string {
+  const html = assembleReport(parts, sealSection);
+  // Every study text in the head is escaped, so the first <body> is the report's own.
+  const start = html.indexOf(BODY_OPEN);
+  if (start < 0 || !html.endsWith(BODY_CLOSE)) throw new Error('the report has no body to show');
+  return html.slice(start + BODY_OPEN.length, html.length - BODY_CLOSE.length);
 }
 
 export const UNSEALED_NOTICE =

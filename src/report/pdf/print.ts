@@ -183,7 +183,7 @@ async function removeOrphanedProfiles(): Promise<void> {
 }
 
 /** Closes the browser politely; if it does not go within a grace period, kills its process group. */
-async function shutDown(browser: Browser | undefined): Promise<void> {
+export async function shutDown(browser: Browser | undefined): Promise<void> {
   if (browser === undefined) return;
   const browserProcess = browser.process();
   const closed = browser.close().then(
