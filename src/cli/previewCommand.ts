@@ -6,6 +6,7 @@ import type { RunLimits } from '../study/model.ts';
 import { reportStylesheet } from './environment.ts';
 import { type PreviewState, previewPage, previewReport, previewUpdate, problemTexts } from './previewPage.ts';
 import { openPreviewServer } from './previewServer.ts';
+import { readStudyFile } from './readStudy.ts';
 import { produceStudy } from './runCommand.ts';
 import { type Terminal, unexpectedProblem } from './terminal.ts';
 
@@ -21,6 +22,8 @@ export interface PreviewOptions {
 const SAVE_SETTLE_MS = 150;
 
 export async function previewCommand(studyPath: string, options: PreviewOptions, terminal: Terminal): Promise<number> {
+  // Refused at once like `run`: the watcher would never see a study that is not there when it starts.
+  readStudyFile(studyPath);
   // The texts the runs read, lent to the terminal as `run` does, and kept here to draw the same excerpts on the page.
   const studyTexts = new Map<string, string>();
   const runTerminal: Terminal = {

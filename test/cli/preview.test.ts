@@ -116,6 +116,12 @@ afterAll(async () => {
 });
 
 describe('kvarbook preview', () => {
+  it('refuses a study file that does not exist, as run does', async () => {
+    const { status, stderr } = await kvarbookInProcess(['preview', 'missing.study.md'], folder);
+    expect(status).toBe(1);
+    expect(stderr).toContain('missing.study.md does not exist');
+  });
+
   it('says which port is taken when it cannot listen there', async () => {
     const taken = createServer();
     await new Promise<void>((resolve) => taken.listen(0, '127.0.0.1', resolve));
