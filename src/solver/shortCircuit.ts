@@ -93,7 +93,10 @@ export interface SegmentFaultDuty {
   /** The bank's series equivalent in the fault, R - j X (X = Xc when the varistor does not conduct). */
   equivalentResistanceOhm: number;
   equivalentReactanceOhm: number;
-  /** Peak voltage across the capacitor, from the current it carries (at most the protective level while the varistor conducts). */
+  /**
+   * Peak of the fundamental-frequency voltage across the capacitor, sqrt 2 I |R_eq - j X_eq|. While the varistor conducts the instantaneous
+   * voltage is clipped at the protective level, and this fundamental may exceed it by up to 4/pi.
+   */
   capacitorVoltageKvPeak: number;
 }
 
