@@ -139,7 +139,7 @@ export function powerAngleChart(input: PowerAngleInput): ChartSpec {
       pMw: finite(point.pMw, `curves[${curveIndex}].points[${order}].pMw`),
     })),
   );
-  const x = { field: 'angleDeg', type: 'quantitative', title: 'Power angle δ (degrees)' };
+  const x = { field: 'angleDeg', type: 'quantitative', title: 'Power angle δ (°)' };
   const y = { field: 'pMw', type: 'quantitative', title: 'Active power P (MW)' };
   const layers: ChartSpec[] = [seriesLayer(values, labels, x, y, 'Curve')];
   const operatingPoint = input.operatingPoint;
@@ -364,7 +364,7 @@ export function frequencyScanChart(input: FrequencyScanChartInput): ChartSpec {
     },
   ]).flat();
   const x = { field: 'frequencyHz', type: 'quantitative', title: 'Frequency (Hz)' };
-  const y = { field: 'ohm', type: 'quantitative', title: 'Driving-point impedance (ohm)', scale: { domain: [-limit, limit] } };
+  const y = { field: 'ohm', type: 'quantitative', title: 'Driving-point impedance (Ω)', scale: { domain: [-limit, limit] } };
   const layers: ChartSpec[] = [seriesLayer(values, ['reactance', 'resistance'], x, y, 'Part')];
   const resonances = input.scan.seriesResonances.map((resonance, index) => ({
     frequencyHz: finite(resonance.frequencyHz, `scan.seriesResonances[${index}].frequencyHz`),

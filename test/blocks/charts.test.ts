@@ -225,7 +225,7 @@ describe('powerAngleChart', () => {
 
   it('labels both axes with their units', async () => {
     const svg = await renderChartSvg(powerAngleChart(input));
-    expect(texts(svg)).toEqual(expect.arrayContaining(['Power angle δ (degrees)', 'Active power P (MW)']));
+    expect(texts(svg)).toEqual(expect.arrayContaining(['Power angle δ (°)', 'Active power P (MW)']));
   });
 
   it('refuses an operating point above Pmax', () => {
