@@ -186,6 +186,11 @@ interface Listing {
   hidden: boolean;
 }
 
+/** A listing's id keeps its capital letter, which no heading's slug has, so that a heading "Calculation A1" cannot take it. */
+function listingId(number: string): string {
+  return `calculation-${number}`;
+}
+
 /** The code appendix comes first of the appendices when the code is placed there. */
 const CODE_APPENDIX = { id: 'calculations', letter: 'A', title: 'Calculations' } as const;
 
@@ -242,7 +247,7 @@ const bodyRules: Record<string, BodyRule> = {
       const heading = env.headings[env.headings.length - 1]?.text;
       env.listings.push({ number, fenceLine: block.fenceLine, heading, code: token.content, hidden: block.options.hideCode });
       code = '';
-      badge = `<a class="badge code-ref" href="#calculation-${number.toLowerCase()}">Calculation ${number}, study line ${block.fenceLine}: code ${
+      badge = `<a class="badge code-ref" href="#${listingId(number)}">Calculation ${number}, study line ${block.fenceLine}: code ${
         block.options.hideCode ? 'in the study source' : `in Appendix ${CODE_APPENDIX.letter}`
       }</a>`;
     }
@@ -387,7 +392,7 @@ ${listings
     const code = listing.hidden
       ? '<p class="quiet">The author left this code out of the report; it is in the study source the report carries.</p>'
       : `<pre class="calc"><code>${escapeHtml(listing.code)}</code></pre>`;
-    return `<div class="listing" id="calculation-${listing.number.toLowerCase()}"><p class="listing-head"><span class="label">Calculation ${listing.number}</span> ${place}</p>${code}</div>`;
+    return `<div class="listing" id="${listingId(listing.number)}"><p class="listing-head"><span class="label">Calculation ${listing.number}</span> ${place}</p>${code}</div>`;
   })
   .join('\n')}`;
 }

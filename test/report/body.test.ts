@@ -124,6 +124,8 @@ describe('the calculation code', async () => {
     expect(appendix).toContain('result(&quot;Surge impedance&quot;, 255.2, { unit: &quot;ohm&quot; });');
     expect(appendix).toContain('Calculation A2</span> study line');
     expect(html).toContain('<a href="#calculations">Appendix A. Calculations</a>');
+    expect(main).toContain('href="#calculation-A1"');
+    expect(appendix).toContain('id="calculation-A1"');
   });
 
   it('stays beside its outputs with report: { code: inline }', async () => {
