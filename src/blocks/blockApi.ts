@@ -88,6 +88,10 @@ export interface CriterionLimits {
   unit?: string;
   digits?: number;
   note?: string;
+  /** What the criterion measures, e.g. "the lowest voltage at any bus and along the line in every normal case". */
+  measures?: string;
+  /** Where its limit comes from, e.g. "the utility's planning standard, clause 4.2". */
+  basis?: string;
 }
 
 export interface TableColumnOption {
@@ -146,7 +150,7 @@ function requireUnit(kind: string, name: string, unit: unknown): string {
     throw new BlockApiError(
       'block-unit',
       `${kind} "${name}": unknown unit "${unit}" (${problem})`,
-      'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %',
+      'use a unit such as kV, MW, Mvar, km, ohm, uS, Hz, deg, pu or %; a voltage or a current may say "rms" or "peak" after its unit ("kV peak")',
     );
   return unit;
 }
@@ -287,6 +291,8 @@ export function createBlockApi(
       ...(max !== undefined ? { max } : {}),
       passed,
       ...(limits.note ? { note: checkedText('criterion', `"${name}": the note`, String(limits.note), 'text') } : {}),
+      ...(limits.measures ? { measures: checkedText('criterion', `"${name}": what it measures`, String(limits.measures), 'text') } : {}),
+      ...(limits.basis ? { basis: checkedText('criterion', `"${name}": its basis`, String(limits.basis), 'text') } : {}),
     });
     return passed;
   }

@@ -48,16 +48,22 @@ export interface PvCurveInput {
   title?: string;
 }
 
-/** Receiving-end P-V curves, drawn in the given point order so both branches of each curve show; noses marked. */
+/**
+ * Receiving-end P-V curves, noses marked. Along a P-V curve the voltage only falls (from no load up the upper branch to the
+ * nose, then down the lower branch), so each curve is drawn in the order of falling voltage: both branches show, in order,
+ * whatever order the points come in.
+ */
 export function pvCurveChart(input: PvCurveInput): ChartSpec {
   const labels = seriesLabels(input.curves, 'curves');
   const values = input.curves.flatMap((curve, curveIndex) =>
-    nonEmpty(curve.points, `curves[${curveIndex}].points`).map((point, order) => ({
-      series: curve.label,
-      order,
-      pMw: finite(point.pMw, `curves[${curveIndex}].points[${order}].pMw`),
-      voltagePu: finite(point.voltagePu, `curves[${curveIndex}].points[${order}].voltagePu`),
-    })),
+    nonEmpty(curve.points, `curves[${curveIndex}].points`)
+      .map((point, index) => ({
+        series: curve.label,
+        pMw: finite(point.pMw, `curves[${curveIndex}].points[${index}].pMw`),
+        voltagePu: finite(point.voltagePu, `curves[${curveIndex}].points[${index}].voltagePu`),
+      }))
+      .sort((a, b) => b.voltagePu - a.voltagePu)
+      .map((point, order) => ({ ...point, order })),
   );
   const x = { field: 'pMw', type: 'quantitative', title: 'Receiving-end active power P (MW)' };
   const y = { field: 'voltagePu', type: 'quantitative', title: 'Receiving-end voltage (pu)', scale: { zero: false } };
@@ -67,15 +73,51 @@ export function pvCurveChart(input: PvCurveInput): ChartSpec {
           {
             pMw: finite(curve.nose.pMw, `curves[${curveIndex}].nose.pMw`),
             voltagePu: finite(curve.nose.voltagePu, `curves[${curveIndex}].nose.voltagePu`),
-            note: `nose ${formatNumber(curve.nose.pMw)} MW, ${formatNumber(curve.nose.voltagePu)} pu`,
+            note: `${input.curves.length > 1 ? `${curve.label}: ` : ''}nose ${formatNumber(curve.nose.pMw)} MW, ${formatNumber(curve.nose.voltagePu)} pu`,
           },
         ]
       : [],
   );
   const layers: ChartSpec[] = [seriesLayer(values, labels, x, y, 'Curve')];
-  // The nose is the rightmost point of its curve, so its note goes to the left.
-  if (noses.length > 0) layers.push(annotatedPointsLayer(noses, 'pMw', 'voltagePu', 'triangle-down', 'left'));
+  if (noses.length > 0) layers.push(noseLayer(noses, values, x, y));
   return frame(input.title ?? 'P-V curves at the receiving end', layers);
+}
+
+/** Text height, in pixels, that keeps two nose notes apart. */
+const NOSE_NOTE_SPACING_PX = 12;
+
+/**
+ * The noses marked where they are, and their notes in a column to the right of every curve: a nose is the rightmost
+ * point of its own curve only, so a note beside it could cross an outer curve. Notes keep their noses' voltage order,
+ * spaced so that two noses at the same voltage (curves of one power factor) stay readable.
+ */
+function noseLayer(
+  noses: { pMw: number; voltagePu: number; note: string }[],
+  values: { pMw: number; voltagePu: number }[],
+  x: Record<string, unknown>,
+  y: Record<string, unknown>,
+): ChartSpec {
+  const rightmostMw = Math.max(...values.map((value) => value.pMw), ...noses.map((nose) => nose.pMw));
+  const voltages = [...values, ...noses].map((value) => value.voltagePu);
+  const puPerPx = (Math.max(...voltages) - Math.min(...voltages) || 1) / defaultHeightPx;
+  let below = Number.POSITIVE_INFINITY;
+  const notes = [...noses]
+    .sort((a, b) => b.voltagePu - a.voltagePu)
+    .map((nose) => {
+      const voltagePu = Math.min(nose.voltagePu, below - NOSE_NOTE_SPACING_PX * puPerPx);
+      below = voltagePu;
+      return { pMw: rightmostMw, voltagePu, note: nose.note };
+    });
+  return {
+    layer: [
+      { data: { values: noses }, mark: { type: 'point', shape: 'triangle-down', size: 90, filled: true, color: referenceInk }, encoding: { x, y } },
+      {
+        data: { values: notes },
+        mark: { type: 'text', align: 'left', baseline: 'middle', dx: 10, fontSize: 9, color: referenceInk },
+        encoding: { x, y, text: { field: 'note' } },
+      },
+    ],
+  };
 }
 
 export interface PowerAngleInput {
@@ -97,7 +139,7 @@ export function powerAngleChart(input: PowerAngleInput): ChartSpec {
       pMw: finite(point.pMw, `curves[${curveIndex}].points[${order}].pMw`),
     })),
   );
-  const x = { field: 'angleDeg', type: 'quantitative', title: 'Power angle δ (degrees)' };
+  const x = { field: 'angleDeg', type: 'quantitative', title: 'Power angle δ (°)' };
   const y = { field: 'pMw', type: 'quantitative', title: 'Active power P (MW)' };
   const layers: ChartSpec[] = [seriesLayer(values, labels, x, y, 'Curve')];
   const operatingPoint = input.operatingPoint;
@@ -322,7 +364,7 @@ export function frequencyScanChart(input: FrequencyScanChartInput): ChartSpec {
     },
   ]).flat();
   const x = { field: 'frequencyHz', type: 'quantitative', title: 'Frequency (Hz)' };
-  const y = { field: 'ohm', type: 'quantitative', title: 'Driving-point impedance (ohm)', scale: { domain: [-limit, limit] } };
+  const y = { field: 'ohm', type: 'quantitative', title: 'Driving-point impedance (Ω)', scale: { domain: [-limit, limit] } };
   const layers: ChartSpec[] = [seriesLayer(values, ['reactance', 'resistance'], x, y, 'Part')];
   const resonances = input.scan.seriesResonances.map((resonance, index) => ({
     frequencyHz: finite(resonance.frequencyHz, `scan.seriesResonances[${index}].frequencyHz`),

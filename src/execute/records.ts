@@ -32,6 +32,10 @@ export interface CriterionRecord {
   max?: number;
   passed: boolean;
   note?: string;
+  /** What the criterion measures, in words, for the report's criteria section. */
+  measures?: string;
+  /** Where the limit comes from: the standard, code or rule it is taken from. */
+  basis?: string;
 }
 
 export interface CautionRecord {

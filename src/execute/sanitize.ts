@@ -107,6 +107,8 @@ function one(raw: unknown): BlockRecord | undefined {
         ...(record.max !== undefined ? { max: record.max as number } : {}),
         passed: record.passed,
         ...(optionalText(record.note) ? { note: record.note as string } : {}),
+        ...(optionalText(record.measures) ? { measures: record.measures as string } : {}),
+        ...(optionalText(record.basis) ? { basis: record.basis as string } : {}),
       });
     case 'caution':
       return isText(record.text) ? withPosition({ kind: 'caution', text: record.text }) : undefined;
@@ -160,6 +162,8 @@ function textsOf(record: BlockRecord): [string, string, TextRole][] {
         ['the name', record.name, 'name'],
         ['the unit', record.unit, 'name'],
         ...(record.note !== undefined ? [['the note', record.note, 'text'] as [string, string, TextRole]] : []),
+        ...(record.measures !== undefined ? [['what it measures', record.measures, 'text'] as [string, string, TextRole]] : []),
+        ...(record.basis !== undefined ? [['its basis', record.basis, 'text'] as [string, string, TextRole]] : []),
       ];
     case 'caution':
     case 'text':

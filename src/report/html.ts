@@ -3,8 +3,8 @@ import type { Token } from 'markdown-it';
 import { createMarkdown, INLINE_VALUE_TOKEN } from '../study/markdown.ts';
 import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
-import type { CriterionRecord, TableRecord } from '../execute/records.ts';
-import { formatLimits, formatNumber, formatQuantity, formatStated } from '../blocks/format.ts';
+import type { CriterionRecord, ResultRecord, TableRecord } from '../execute/records.ts';
+import { columnFormat, displayUnit, formatLimits, formatQuantity, formatStated } from '../blocks/format.ts';
 import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
 import { escapeHtml } from './escape.ts';
@@ -83,25 +83,33 @@ function criteriaTable(criteria: (CriterionRecord & { at?: SourceLocation })[], 
   return `<table class="criteria"><thead><tr><th>Criterion</th><th>Value</th><th>Required</th><th>Outcome</th>${withNotes ? '<th>Note</th>' : ''}</tr></thead><tbody>\n${rows}\n</tbody></table>`;
 }
 
+/** Rows beyond which a table may break across pages rather than move whole to the next one. */
+const LONG_TABLE_ROWS = 6;
+
+/** A numbered table in one figure with its caption, so that a page never parts them; each column's numbers in one format. */
 function tableHtml(record: TableRecord, number: number): string {
   const head = record.columns
-    .map((column) => `<th>${escapeHtml(column.label)}${column.unit ? `<span class="unit">${escapeHtml(column.unit)}</span>` : ''}</th>`)
+    .map((column) => `<th>${escapeHtml(column.label)}${column.unit ? `<span class="unit">${escapeHtml(displayUnit(column.unit))}</span>` : ''}</th>`)
     .join('');
+  const formats = record.columns.map((column, index) =>
+    columnFormat(
+      record.rows.map((row) => row[index]).filter((cell): cell is number => typeof cell === 'number'),
+      column.digits,
+    ),
+  );
   const rows = record.rows
     .map(
       (row) =>
         `<tr>${row
-          .map((cell, index) => {
-            const column = record.columns[index]!;
-            return typeof cell === 'number'
-              ? `<td class="num">${escapeHtml(formatNumber(cell, column.digits))}</td>`
-              : `<td>${escapeHtml(formatQuantity(cell))}</td>`;
-          })
+          .map((cell, index) =>
+            typeof cell === 'number' ? `<td class="num">${escapeHtml(formats[index]!(cell))}</td>` : `<td>${escapeHtml(formatQuantity(cell))}</td>`,
+          )
           .join('')}</tr>`,
     )
     .join('\n');
-  const caption = `<caption><span class="label">Table ${number}</span>${record.caption ? ` ${escapeHtml(record.caption)}` : ''}</caption>`;
-  return `<table class="data">${caption}<thead><tr>${head}</tr></thead><tbody>\n${rows}\n</tbody></table>`;
+  const caption = `<figcaption><span class="label">Table ${number}</span>${record.caption ? ` ${escapeHtml(record.caption)}` : ''}</figcaption>`;
+  // A long table may run over a page break, its header repeated; its caption still stays with its first rows.
+  return `<figure class="table${record.rows.length > LONG_TABLE_ROWS ? ' long' : ''}">${caption}<table class="data"><thead><tr>${head}</tr></thead><tbody>\n${rows}\n</tbody></table></figure>`;
 }
 
 interface Counters {
@@ -109,32 +117,38 @@ interface Counters {
   figure: number;
 }
 
+/** A block's outputs in the order it produced them; consecutive results read as one list, consecutive criteria as one table. */
 function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters: Counters): string {
   const parts: string[] = [];
-  const results = records.filter((record) => record.kind === 'result');
-  if (results.length > 0) {
-    parts.push(
-      `<dl class="results">${results
-        .map((record) =>
-          record.kind === 'result'
-            ? `<div><dt>${escapeHtml(record.name)}</dt><dd>${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</dd>${record.note ? `<p class="note">${escapeHtml(record.note)}</p>` : ''}</div>`
-            : '',
-        )
-        .join('')}</dl>`,
-    );
-  }
+  let pendingResults: ResultRecord[] = [];
   let pendingCriteria: (CriterionRecord & { at?: SourceLocation })[] = [];
-  const flushCriteria = () => {
-    // Consecutive criteria read as one table, not a column of one-row tables.
+  const flush = () => {
+    if (pendingResults.length > 0) {
+      parts.push(
+        `<dl class="results">${pendingResults
+          .map(
+            (record) =>
+              `<div><dt>${escapeHtml(record.name)}</dt><dd>${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}</dd>${record.note ? `<p class="note">${escapeHtml(record.note)}</p>` : ''}</div>`,
+          )
+          .join('')}</dl>`,
+      );
+    }
     if (pendingCriteria.length > 0) parts.push(criteriaTable(pendingCriteria, false));
+    pendingResults = [];
     pendingCriteria = [];
   };
   for (const record of records) {
-    if (record.kind === 'criterion') {
+    if (record.kind === 'result' && pendingCriteria.length === 0) {
+      pendingResults.push(record);
+      continue;
+    }
+    if (record.kind === 'criterion' && pendingResults.length === 0) {
       pendingCriteria.push(record);
       continue;
     }
-    flushCriteria();
+    flush();
+    if (record.kind === 'result') pendingResults.push(record);
+    if (record.kind === 'criterion') pendingCriteria.push(record);
     switch (record.kind) {
       case 'table':
         counters.table += 1;
@@ -158,13 +172,36 @@ function outputsHtml(records: LocatedRecord[], charts: RenderedCharts, counters:
         break;
     }
   }
-  flushCriteria();
+  flush();
   return parts.length ? `<div class="outputs">${parts.join('\n')}</div>` : '';
 }
+
+/** A calculation block's code as the code appendix lists it. */
+interface Listing {
+  /** "A3": the appendix letter and the block's number among the blocks that run. */
+  number: string;
+  fenceLine: number;
+  /** The heading the block sits under, so that a reader of the appendix finds its place in the body. */
+  heading: string | undefined;
+  code: string;
+  hidden: boolean;
+}
+
+/** A listing's id keeps its capital letter, which no heading's slug has, so that a heading "Calculation A1" cannot take it. */
+function listingId(number: string): string {
+  return `calculation-${number}`;
+}
+
+/** The code appendix comes first of the appendices when the code is placed there. */
+const CODE_APPENDIX = { id: 'calculations', letter: 'A', title: 'Calculations' } as const;
 
 /** What one render of the study body needs: markdown-it hands it to every rule as `env`. */
 type BodyEnv = {
   run: StudyRun;
+  /** Each block that runs, with its calculation number (1, 2, …) by block index. */
+  calculationNumbers: Map<number, number>;
+  /** Filled in by the render when the code goes to the appendix. */
+  listings: Listing[];
   charts: RenderedCharts;
   counters: Counters;
   headings: { level: number; id: string; text: string }[];
@@ -200,23 +237,46 @@ const bodyRules: Record<string, BodyRule> = {
     const language = token.info.trim().split(/\s+/)[0] ?? '';
     if (!block) return `<pre class="listing"><code>${escapeHtml(token.content)}</code></pre>\n`;
     const outcome = env.outcomes.get(block.index);
-    const code = block.options.hideCode ? '' : `<pre class="calc"><code>${escapeHtml(token.content)}</code></pre>`;
-    const badge = block.options.noRun
+    const calculation = env.calculationNumbers.get(block.index);
+    let code = block.options.hideCode ? '' : `<pre class="calc"><code>${escapeHtml(token.content)}</code></pre>`;
+    let badge = block.options.noRun
       ? '<span class="badge">shown, not run</span>'
       : `<span class="badge">calculation, line ${block.fenceLine}${block.options.hideCode ? ' (code in the study source)' : ''}</span>`;
+    // A block shown but not run is an illustration: it stays where the author put it.
+    if (env.run.study.meta.report.code === 'appendix' && calculation !== undefined) {
+      const number = `${CODE_APPENDIX.letter}${calculation}`;
+      const heading = env.headings[env.headings.length - 1]?.text;
+      env.listings.push({ number, fenceLine: block.fenceLine, heading, code: token.content, hidden: block.options.hideCode });
+      code = '';
+      badge = `<a class="badge code-ref" href="#${listingId(number)}">Calculation ${number}, study line ${block.fenceLine}: code ${
+        block.options.hideCode ? 'in the study source' : `in Appendix ${CODE_APPENDIX.letter}`
+      }</a>`;
+    }
     const outputs = outcome ? outputsHtml(outcome.records, env.charts, env.counters) : '';
     return `<section class="block${block.options.hideCode ? ' code-hidden' : ''}" data-language="${escapeHtml(language)}">${badge}${code}${outputs}</section>\n`;
   },
 };
 Object.assign(bodyMarkdown.renderer.rules, bodyRules);
 
-function bodyHtml(run: StudyRun, charts: RenderedCharts, counters: Counters, headings: { level: number; id: string; text: string }[]): string {
+function bodyHtml(
+  run: StudyRun,
+  charts: RenderedCharts,
+  counters: Counters,
+  headings: { level: number; id: string; text: string }[],
+  listings: Listing[],
+): string {
+  const running = run.study.blocks.filter((block) => !block.options.noRun);
   const env: BodyEnv = {
     run,
+    calculationNumbers: new Map(running.map((block, index) => [block.index, index + 1])),
+    listings,
     charts,
     counters,
     headings,
-    slugs: { taken: new Set(['criteria', 'cautions', 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']), next: new Map() },
+    slugs: {
+      taken: new Set(['criteria', 'cautions', CODE_APPENDIX.id, 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']),
+      next: new Map(),
+    },
     blocksByFence: new Map(run.study.blocks.map((block) => [block.fenceLine, block])),
     outcomes: new Map(run.outcome.blocks.map((outcome) => [outcome.blockIndex, outcome])),
   };
@@ -324,6 +384,34 @@ function hiddenCodeText(run: StudyRun): string {
   return `${count} (study ${lines.length === 1 ? 'line' : 'lines'} ${listed(lines)}); ${lines.length === 1 ? 'its' : 'their'} code is in the study source carried in this report`;
 }
 
+/** Each calculation block's code under its number and study line, in the order of the study. */
+function codeAppendix(listings: readonly Listing[]): string {
+  return `<p class="quiet">The code of every calculation block, numbered in the order the study runs them; the body shows each block's outputs where the block stands.</p>
+${listings
+  .map((listing) => {
+    const place = `study line ${listing.fenceLine}${listing.heading ? `, under “${escapeHtml(listing.heading)}”` : ''}`;
+    const code = listing.hidden
+      ? '<p class="quiet">The author left this code out of the report; it is in the study source the report carries.</p>'
+      : `<pre class="calc"><code>${escapeHtml(listing.code)}</code></pre>`;
+    return `<div class="listing" id="${listingId(listing.number)}"><p class="listing-head"><span class="label">Calculation ${listing.number}</span> ${place}</p>${code}</div>`;
+  })
+  .join('\n')}`;
+}
+
+/** What each criterion measures, what it requires and where the requirement comes from. */
+function criteriaDefinitions(criteria: readonly CriterionRecord[]): string {
+  if (criteria.length === 0) return '';
+  const rows = criteria
+    .map(
+      (record) =>
+        `<tr><td>${escapeHtml(record.name)}</td><td>${record.measures ? escapeHtml(record.measures) : '<span class="quiet">not stated</span>'}</td><td>${escapeHtml(formatLimits(record))}</td><td>${
+          record.basis ? escapeHtml(record.basis) : '<span class="quiet">not stated</span>'
+        }</td></tr>`,
+    )
+    .join('\n');
+  return `<figure class="table definitions${criteria.length > LONG_TABLE_ROWS ? ' long' : ''}"><figcaption>What each criterion measures, what it requires and where the requirement comes from</figcaption><table class="data"><thead><tr><th>Criterion</th><th>Measures</th><th>Required</th><th>Basis</th></tr></thead><tbody>\n${rows}\n</tbody></table></figure>`;
+}
+
 function titleBlock(run: StudyRun, failed: number, total: number): string {
   const { meta } = run.study;
   const person = (p: { name: string; licence?: string; jurisdiction?: string } | undefined) =>
@@ -353,16 +441,26 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts, stylesh
   const failed = criteria.filter((criterion) => !criterion.passed).length;
   const counters: Counters = { table: 0, figure: 0 };
   const headings: { level: number; id: string; text: string }[] = [];
-  const body = bodyHtml(run, charts, counters, headings);
+  const listings: Listing[] = [];
+  const body = bodyHtml(run, charts, counters, headings, listings);
+  const appendices = [
+    ...(listings.length > 0 ? [{ id: CODE_APPENDIX.id, title: CODE_APPENDIX.title, content: codeAppendix(listings) }] : []),
+    { id: 'inputs', title: 'Inputs', content: inputsTable(run) },
+    {
+      id: 'calculation-log',
+      title: 'Calculation log',
+      content: `<p class="quiet">Every named result, criterion and solver call, in the order the study made them, with the study line it came from.</p>
+${calculationLog(run)}`,
+    },
+    { id: 'provenance', title: 'Provenance', content: provenanceList(run) },
+  ].map((appendix, index) => ({ ...appendix, heading: `Appendix ${String.fromCharCode(65 + index)}. ${appendix.title}` }));
   const contents = [
     ...headings
       .filter((heading) => heading.level <= 2)
       .map((heading) => `<li class="level-${heading.level}"><a href="#${heading.id}">${escapeHtml(heading.text)}</a></li>`),
     '<li class="level-1"><a href="#criteria">Design criteria</a></li>',
     '<li class="level-1"><a href="#cautions">Cautions</a></li>',
-    '<li class="level-1"><a href="#inputs">Appendix A. Inputs</a></li>',
-    '<li class="level-1"><a href="#calculation-log">Appendix B. Calculation log</a></li>',
-    '<li class="level-1"><a href="#provenance">Appendix C. Provenance</a></li>',
+    ...appendices.map((appendix) => `<li class="level-1"><a href="#${appendix.id}">${appendix.heading}</a></li>`),
   ].join('\n');
   const cautions = cautionsOf(run)
     .map(
@@ -387,23 +485,26 @@ ${stylesheet}</style>
 <body>
 ${titleBlock(run, failed, criteria.length)}
 `;
+  // The contents come before the criteria summary: a short list that fits under the title block, where a long
+  // summary table may run on to the next page and the contents with it.
   const rest = `
-<section class="summary" id="summary">
-<h2>Criteria at a glance</h2>
-${criteriaTable(criteria, false)}
-</section>
 <nav class="contents" id="contents">
 <h2>Contents</h2>
 <ol>
 ${contents}
 </ol>
 </nav>
+<section class="summary" id="summary">
+<h2>Criteria at a glance</h2>
+${criteriaTable(criteria, false)}
+</section>
 <main class="study">
 ${body}
 </main>
 <section class="criteria-full" id="criteria">
 <h2>Design criteria</h2>
 ${criteriaTable(criteria, true)}
+${criteriaDefinitions(criteria)}
 </section>
 <section class="cautions" id="cautions">
 <h2>Cautions</h2>
@@ -411,20 +512,7 @@ ${criteriaTable(criteria, true)}
 ${cautions}
 </ul>
 </section>
-<section class="appendix" id="inputs">
-<h2>Appendix A. Inputs</h2>
-${inputsTable(run)}
-</section>
-<section class="appendix" id="calculation-log">
-<h2>Appendix B. Calculation log</h2>
-<p class="quiet">Every named result, criterion and solver call, in the order the study made them, with the study line it came from.</p>
-${calculationLog(run)}
-</section>
-<section class="appendix" id="provenance">
-<h2>Appendix C. Provenance</h2>
-${provenanceList(run)}
-</section>
-${jsonScript(STUDY_SOURCE_SCRIPT, JSON.stringify(run.study.source))}
+${appendices.map((appendix) => `<section class="appendix" id="${appendix.id}">\n<h2>${appendix.heading}</h2>\n${appendix.content}\n</section>\n`).join('')}${jsonScript(STUDY_SOURCE_SCRIPT, JSON.stringify(run.study.source))}
 <footer class="colophon">Produced by kvarbook from ${escapeHtml(run.provenance.studyFile)}. Every figure above was computed by the study's own calculation blocks.</footer>
 </body>
 </html>

@@ -1,13 +1,13 @@
 // The study's metadata from front matter: title, id, revision, date, engineer, checker, limits, report options.
 import type { Document, YAMLMap } from 'yaml';
 import type { Diagnostic } from '../diagnostics/diagnostic.ts';
-import { DEFAULT_LIMITS, type Person, type StudyMeta } from './model.ts';
+import { CODE_PLACEMENTS, type CodePlacement, DEFAULT_LIMITS, type Person, type StudyMeta } from './model.ts';
 import { type FieldReader, type YamlPlace, readMap, readNumber, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
 
 const META_KEYS = ['title', 'project', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs'] as const;
 const PERSON_KEYS = ['name', 'licence', 'jurisdiction'] as const;
 const LIMIT_KEYS = ['blockSeconds', 'studySeconds', 'heapMb'] as const;
-const REPORT_KEYS = ['pdf', 'paper'] as const;
+const REPORT_KEYS = ['pdf', 'paper', 'code'] as const;
 const STUDY_ID = /^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$/;
 const ISO_DATE = /^(\d{4})-(\d{2})-(\d{2})$/;
 
@@ -62,7 +62,8 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
   }
 
   const reportMap = readMap(reader, root, 'report', 'the front matter', false);
-  const report: StudyMeta['report'] = { pdf: false, paper: 'A4' };
+  // The code goes to an appendix by default, drafts included: a draft shows the report its seal will cover.
+  const report: StudyMeta['report'] = { pdf: false, paper: 'A4', code: 'appendix' };
   if (reportMap) {
     rejectUnknownKeys(reader, reportMap, REPORT_KEYS, '"report"');
     const pdf = reportMap.get('pdf');
@@ -86,6 +87,20 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
           hint: 'use A4 or Letter',
         });
       } else report.paper = paper;
+    }
+    const code = readString(reader, reportMap, 'code', '"report"', false);
+    if (code !== undefined) {
+      if (!CODE_PLACEMENTS.includes(code as CodePlacement)) {
+        diagnostics.push({
+          code: 'front-matter-range',
+          message: `"code" in "report" is "${code}", not one of ${CODE_PLACEMENTS.map((placement) => `"${placement}"`).join(', ')}`,
+          at: place.at(nodeOf(reportMap, 'code')),
+          hint: 'write "code: appendix" for the calculation code in an appendix (the default), or "code: inline" to show it beside its outputs',
+          quantity: 'report.code',
+          expected: CODE_PLACEMENTS.join(' or '),
+          actual: code,
+        });
+      } else report.code = code as CodePlacement;
     }
   }
 

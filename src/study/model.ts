@@ -20,9 +20,14 @@ export interface RunLimits {
 
 export const DEFAULT_LIMITS: RunLimits = { blockSeconds: 10, studySeconds: 120, heapMb: 512 };
 
+/** Where the report shows the calculation code: in an appendix, the body keeping a reference (the default), or beside its outputs. */
+export type CodePlacement = 'appendix' | 'inline';
+export const CODE_PLACEMENTS: readonly CodePlacement[] = ['appendix', 'inline'];
+
 export interface ReportOptions {
   pdf: boolean;
   paper: 'A4' | 'Letter';
+  code: CodePlacement;
 }
 
 export interface StudyMeta {

@@ -130,11 +130,18 @@ export function convertQuantity(value: number, fromUnit: string, toUnitText: str
   return cleanFloat(math.unit(value, fromUnit).toNumeric(toUnitText) as number);
 }
 
+/** A voltage or current unit that says which value of the wave it is: "kV rms", "kV peak". */
+const WAVE_VALUE = /^(.+?)\s+(rms|peak)$/;
+
 /** Check that a unit text is one mathjs knows (for result and table units); returns a problem or null. */
 export function unitProblem(unit: string): string | null {
   if (unit === '' || unit === '%' || unit === 'pu' || unit === 'p.u.') return null;
+  const [, base = unit, waveValue] = WAVE_VALUE.exec(unit) ?? [];
   try {
-    toUnit(`1 ${unit}`);
+    const parsed = toUnit(`1 ${base}`);
+    if (waveValue && !(typeof parsed !== 'number' && (parsed.equalBase(math.unit('1 V')) || parsed.equalBase(math.unit('1 A'))))) {
+      return `"${waveValue}" qualifies only a voltage or a current, not ${base}`;
+    }
     return null;
   } catch (error) {
     return (error as Error).message;

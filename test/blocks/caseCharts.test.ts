@@ -77,6 +77,11 @@ describe('frequencyScanChart', () => {
     expect(labels).toContain('31.62 Hz');
   });
 
+  it('writes the impedance axis in ohms as Ω', async () => {
+    const svg = await renderChartSvg(frequencyScanChart({ scan }));
+    expect(texts(svg)).toContain('Driving-point impedance (Ω)');
+  });
+
   it('cuts the reactance axis where asked, so a pole does not flatten the curve', () => {
     const spec = frequencyScanChart({ scan, reactanceLimitOhm: 100 }) as { layer: { data: { values: { ohm: number }[] } }[] };
     const ohms = spec.layer[0]!.data.values.map((value) => value.ohm);

@@ -13,7 +13,7 @@ import { renderChartSvg } from '../../src/report/chart/render.ts';
 import { stabilityMarginPercent as solverStabilityMarginPercent } from '../../src/solver/curves.ts';
 import { SolverDomainError } from '../../src/solver/errors.ts';
 import { svcCharacteristicCorners as solverSvcCharacteristicCorners } from '../../src/solver/sizing.ts';
-import { axisTicks, linePaths, pixelOf, tickSnapPx, pointShapes, texts } from '../report/chart/svg-probe.ts';
+import { axisTicks, linePaths, pixelOf, tickSnapPx, pointShapes, textPlacements, texts } from '../report/chart/svg-probe.ts';
 
 const degree = Math.PI / 180;
 
@@ -140,6 +140,54 @@ describe('pvCurveChart', () => {
     const svg = await renderChartSvg(pvCurveChart(input));
     expect(texts(svg)).toContain('nose 500 MW, 0.7071 pu');
   });
+
+  // A fixed shuffle, so that the test is the same on every run: the order a study happens to pass its points in.
+  const shuffled = [7, 0, 18, 3, 12, 9, 1, 16, 5, 14, 10, 2, 17, 6, 11, 4, 15, 8, 13].map((index) => points[index]!);
+
+  it('draws a curve from no load over the nose to the lower branch whatever order its points come in', async () => {
+    const svg = await renderChartSvg(pvCurveChart({ curves: [{ label: 'unity power factor', points: shuffled }] }));
+    const [curve] = linePaths(svg);
+    const vertices = curve?.vertices ?? [];
+    expect(vertices).toHaveLength(points.length);
+    // Pixel y grows downwards: along the curve the voltage only falls, and the power rises to the nose and then falls.
+    const noseIndex = vertices.reduce((best, vertex, index) => (vertex[0] > vertices[best]![0] ? index : best), 0);
+    for (let index = 1; index < vertices.length; index++) {
+      expect(vertices[index]![1]).toBeGreaterThan(vertices[index - 1]![1]);
+      if (index <= noseIndex) expect(vertices[index]![0]).toBeGreaterThanOrEqual(vertices[index - 1]![0]);
+      else expect(vertices[index]![0]).toBeLessThanOrEqual(vertices[index - 1]![0]);
+    }
+    const yTicks = axisTicks(svg, 'Y');
+    expect(Math.abs(vertices[0]![1] - pixelOf(yTicks, 0.95))).toBeLessThanOrEqual(tickSnapPx);
+    expect(Math.abs(vertices[vertices.length - 1]![1] - pixelOf(yTicks, 0.05))).toBeLessThanOrEqual(tickSnapPx);
+  });
+
+  it('writes the nose label beside the curve, clear of it', async () => {
+    const svg = await renderChartSvg(pvCurveChart({ curves: [{ label: 'unity power factor', points: shuffled, nose: input.curves[0]!.nose }] }));
+    const [curve] = linePaths(svg);
+    const label = textPlacements(svg).find((text) => text.text.startsWith('nose'));
+    expect(label).toBeDefined();
+    // The nose is the curve's rightmost point: a label that starts to the right of it cannot touch the curve.
+    const rightmostPx = Math.max(...(curve?.vertices ?? []).map((vertex) => vertex[0]));
+    expect(label!.align).toBe('start');
+    expect(label!.x).toBeGreaterThan(rightmostPx);
+  });
+
+  it('keeps the nose labels of nested curves clear of every curve and of each other', async () => {
+    // Curves of one power factor have their noses at one voltage: their labels would fall on one line.
+    const inner = {
+      label: 'weaker source',
+      points: shuffled.map((point) => ({ pMw: 0.8 * point.pMw, voltagePu: point.voltagePu })),
+      nose: { pMw: 400, voltagePu: Math.SQRT1_2 },
+    };
+    const svg = await renderChartSvg(
+      pvCurveChart({ curves: [inner, { label: 'unity power factor', points: shuffled, nose: input.curves[0]!.nose }] }),
+    );
+    const rightmostPx = Math.max(...linePaths(svg).flatMap((curve) => curve.vertices.map((vertex) => vertex[0])));
+    const labels = textPlacements(svg).filter((text) => text.text.includes('nose'));
+    expect(labels.map((label) => label.text).sort()).toEqual(['unity power factor: nose 500 MW, 0.7071 pu', 'weaker source: nose 400 MW, 0.7071 pu']);
+    for (const label of labels) expect(label.x).toBeGreaterThan(rightmostPx);
+    expect(Math.abs(labels[0]!.y - labels[1]!.y)).toBeGreaterThanOrEqual(10);
+  });
 });
 
 describe('powerAngleChart', () => {
@@ -177,7 +225,7 @@ describe('powerAngleChart', () => {
 
   it('labels both axes with their units', async () => {
     const svg = await renderChartSvg(powerAngleChart(input));
-    expect(texts(svg)).toEqual(expect.arrayContaining(['Power angle δ (degrees)', 'Active power P (MW)']));
+    expect(texts(svg)).toEqual(expect.arrayContaining(['Power angle δ (°)', 'Active power P (MW)']));
   });
 
   it('refuses an operating point above Pmax', () => {

@@ -66,3 +66,26 @@ export function pointShapes(svg: string): string[] {
 export function texts(svg: string): string[] {
   return [...svg.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((match) => match[1] ?? '');
 }
+
+export interface TextPlacement {
+  text: string;
+  /** Where the text is anchored, in the SVG's pixels. */
+  x: number;
+  y: number;
+  /** Which end of the text sits at the anchor: `start` (the text runs to the right of x), `middle` or `end`. */
+  align: string;
+}
+
+/** Every text mark with its anchor point and alignment. */
+export function textPlacements(svg: string): TextPlacement[] {
+  return [...svg.matchAll(/<text([^>]*)>([^<]*)<\/text>/g)].map((match) => {
+    const attributes = match[1] ?? '';
+    const at = /transform="translate\(([-\d.e]+),([-\d.e]+)\)"/.exec(attributes);
+    return {
+      text: match[2] ?? '',
+      x: Number(at?.[1] ?? Number.NaN),
+      y: Number(at?.[2] ?? Number.NaN),
+      align: /text-anchor="([^"]*)"/.exec(attributes)?.[1] ?? 'start',
+    };
+  });
+}
