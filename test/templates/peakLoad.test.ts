@@ -53,10 +53,6 @@ describe('the peak-load template', () => {
     expect(run.product.results.criteria.length).toBeGreaterThanOrEqual(8);
   });
 
-  it('marks every input value as an example', () => {
-    expect(run.product.results.inputs.every((entry) => entry.description?.startsWith('Example:'))).toBe(true);
-  });
-
   it('gives the receiving voltage at the peak without support as the upper root of E Vr = |A Vr^2 + B (P - jQ)|', () => {
     expect(run.result('Lyrebay voltage at the winter peak without support')).toBeCloseTo(
       receivingVoltageKv(bothCircuits(), emfKv, pMw, qMvar) / nominalKv,
