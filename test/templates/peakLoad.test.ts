@@ -92,6 +92,14 @@ describe('the peak-load template', () => {
     expect(run.result('Lyrebay voltage at the peak, corridor model')).toBeCloseTo(busPu, 6);
   });
 
+  it('holds Lyrebay on the SVC slope at the peak with one circuit out, in the corridor model', () => {
+    const network = cascade(source(), oneCircuit, capacitors(run.result('Capacitor steps') * stepMvar));
+    const slope = run.input('svcSlope', '') / 100;
+    const svcMvar = (busPu: number) => qMvar - deliveredMvar(network, emfKv, busPu * nominalKv, pMw);
+    const busPu = bisect((v) => v - 1 + (slope * svcMvar(v)) / run.result('SVC capacitive rating') / v, 0.9, 1.1);
+    expect(run.result('Lyrebay voltage at the peak with one circuit out')).toBeCloseTo(busPu, 6);
+  });
+
   it('gives the supported nose with the steps in and the SVC at its capacitive limit as a fixed capacitor', () => {
     const network = cascade(
       bothCircuits(),
