@@ -11,7 +11,7 @@ import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { CEILING_OPTIONS, CEILING_RANGES, DEFAULT_CEILINGS } from '../execute/limits.ts';
 import type { RunLimits } from '../study/model.ts';
 import { installationFacts } from './environment.ts';
-import { newCommand, templateNames } from './newCommand.ts';
+import { listTemplates, newCommand, templateNames } from './newCommand.ts';
 import { processTerminal, type Terminal, unexpectedProblem } from './terminal.ts';
 
 export const EXIT = { ok: 0, studyFailed: 1, usage: 2 } as const;
@@ -139,13 +139,22 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
       setExit(await keyShowCommand(options, terminal));
     });
 
-  program
+  const create = program
     .command('new')
-    .description('start a new study from a template')
-    .argument('<template>', `template name (${templateNames().join(', ')})`)
-    .argument('<file>', 'the study file to create')
-    .action((template: string, file: string) => {
-      setExit(newCommand(template, file, terminal));
+    .description('start a new study from a template (--list names the templates)')
+    .argument('[template]', `template name (${templateNames().join(', ')})`)
+    .argument('[file]', 'the study file to create')
+    .option('--list', 'name each template with what it is for')
+    .action((template: string | undefined, file: string | undefined, options: { list?: boolean }) => {
+      if (options.list) {
+        if (template !== undefined) create.error('error: kvarbook new --list takes no template or file', { code: 'commander.excessArguments' });
+        setExit(listTemplates(terminal));
+        return;
+      }
+      if (template === undefined || file === undefined) {
+        create.error(`error: missing required argument '${template === undefined ? 'template' : 'file'}'`, { code: 'commander.missingArgument' });
+      }
+      setExit(newCommand(template!, file!, terminal));
     });
 
   return program;

@@ -1,8 +1,9 @@
-// `kvarbook new`: start a study from a template in templates/, never overwriting an existing file.
-import { copyFileSync, constants, existsSync, readdirSync } from 'node:fs';
+// `kvarbook new`: start a study from a template in templates/, never overwriting an existing file; `--list` names the templates.
+import { copyFileSync, constants, existsSync, readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { KVARBOOK_ROOT } from '../installation.ts';
+import { parseStudy } from '../study/parse.ts';
 import type { Terminal } from './terminal.ts';
 
 const TEMPLATE_SUFFIX = '.study.md';
@@ -12,6 +13,32 @@ export function templateNames(): string[] {
     .filter((name) => name.endsWith(TEMPLATE_SUFFIX))
     .map((name) => name.slice(0, -TEMPLATE_SUFFIX.length))
     .sort();
+}
+
+function templateFile(name: string): string {
+  return join(KVARBOOK_ROOT, 'templates', `${name}${TEMPLATE_SUFFIX}`);
+}
+
+/**
+ * What a template is for, in one line, from the template itself: the first sentence of the paragraph under its
+ * "Purpose" heading, or its title when it has none.
+ */
+export function templateSummary(name: string): string {
+  const file = `${name}${TEMPLATE_SUFFIX}`;
+  const study = parseStudy(file, readFileSync(templateFile(name), 'utf8'));
+  const tokens = study.bodyTokens;
+  const heading = tokens.findIndex((token, index) => token.type === 'heading_open' && /^purpose\b/i.test(tokens[index + 1]?.content ?? ''));
+  const paragraph = heading < 0 ? -1 : tokens.findIndex((token, index) => index > heading && token.type === 'paragraph_open');
+  const text = paragraph < 0 ? '' : (tokens[paragraph + 1]?.content ?? '').replace(/\s+/g, ' ').trim();
+  const sentence = /^.*?[.!?](?=\s|$)/.exec(text)?.[0] ?? text;
+  return sentence === '' ? study.meta.title : sentence;
+}
+
+export function listTemplates(terminal: Terminal): number {
+  const names = templateNames();
+  const width = Math.max(...names.map((name) => name.length));
+  for (const name of names) terminal.say(`${name.padEnd(width)}  ${templateSummary(name)}`);
+  return 0;
 }
 
 export function newCommand(template: string, file: string, terminal: Terminal): number {
@@ -25,7 +52,7 @@ export function newCommand(template: string, file: string, terminal: Terminal): 
     ]);
   }
   try {
-    copyFileSync(join(KVARBOOK_ROOT, 'templates', `${template}${TEMPLATE_SUFFIX}`), file, constants.COPYFILE_EXCL);
+    copyFileSync(templateFile(template), file, constants.COPYFILE_EXCL);
   } catch (error) {
     throw new StudyFailure([
       {

@@ -12,7 +12,7 @@ describe('kvarbook on the command line', () => {
     const { status, stdout } = kvarbook(['--help'], scratchFolder());
     expect(status).toBe(0);
     expect(stdout).toContain('run [options] <study>');
-    expect(stdout).toContain('new <template> <file>');
+    expect(stdout).toContain('new [options] [template] [file]');
   });
 
   it('exits 2 on wrong usage', () => {

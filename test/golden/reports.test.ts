@@ -11,7 +11,8 @@ const ROOT = resolve(import.meta.dirname, '../..');
 const STUDIES = [
   'studies/caldera-bay-400kv.study.md',
   'templates/blank.study.md',
-  'templates/shunt-reactor.study.md',
+  'templates/light-load.study.md',
+  'templates/peak-load.study.md',
   'templates/series-compensation.study.md',
 ];
 // Fixed facts in place of the installation's, so the expected files do not change with a version bump.
