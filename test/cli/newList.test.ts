@@ -16,7 +16,7 @@ describe('kvarbook new --list', () => {
     expect(lines.map((line) => line.split(/\s+/)[0])).toEqual(templateNames());
     for (const [index, name] of templateNames().entries()) {
       const purpose = templateSource(name)
-        .split(/^# Purpose\s*$/m)[1]!
+        .split(/^# Purpose\b.*$/m)[1]!
         .trim()
         .split(/\n\s*\n/)[0]!
         .replace(/\s+/g, ' ');
