@@ -8,7 +8,7 @@ import { resultsJsonText } from '../../src/cli/reportFiles.ts';
 import { reportStylesheet } from '../../src/cli/environment.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
-const STUDIES = ['studies/caldera-bay-400kv.study.md', 'templates/blank.study.md', 'templates/shunt-reactor.study.md'];
+const STUDIES = ['studies/caldera-bay-400kv.study.md', 'templates/blank.study.md', 'templates/shunt-reactor.study.md', 'templates/options.study.md'];
 // Fixed facts in place of the installation's, so the expected files do not change with a version bump.
 const ENVIRONMENT = { kvarbookVersion: 'golden', nodeVersion: 'golden', lockfileSha256: '0'.repeat(64) };
 
