@@ -370,7 +370,7 @@ export function costComparisonChart(input: CostComparisonInput): ChartSpec {
       data: { values },
       mark: { type: 'bar' },
       encoding: {
-        y: { field: 'option', type: 'nominal', title: 'Option', sort: options.map((option) => option.label) },
+        y: { field: 'option', type: 'nominal', title: 'Option', sort: options.map((option) => option.label), axis: { labelLimit: 240 } },
         x: { field: 'cost', type: 'quantitative', title: `Capitalised cost (${input.comparison.costUnit})`, stack: 'zero' },
         color: { field: 'part', type: 'nominal', title: 'Part', scale: { domain: parts, range: [...seriesColours.slice(0, 3)] } },
         order: { field: 'stackOrder', type: 'quantitative' },
@@ -405,7 +405,8 @@ export function transferComparisonChart(input: TransferComparisonInput): ChartSp
       data: { values },
       mark: { type: 'bar' },
       encoding: {
-        y: { field: 'alternative', type: 'nominal', title: 'Alternative', sort: labels },
+        // Alternatives are named in words; the default label limit would cut most of them.
+        y: { field: 'alternative', type: 'nominal', title: 'Alternative', sort: labels, axis: { labelLimit: 240 } },
         x: { ...x, stack: null },
         color: { field: 'part', type: 'nominal', title: 'Transfer', scale: { domain: parts, range: [seriesColours[1], seriesColours[0]] } },
       },
