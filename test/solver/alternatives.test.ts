@@ -182,6 +182,26 @@ describe('compareCompensationAlternatives: costs, criteria and the recommendatio
     expect(result.recommended).toBe('series 50 %');
   });
 
+  test('counts a criterion the study judges itself, so that an alternative failing it is not recommended', () => {
+    const series = { label: 'series 50 %', corridor: corridor(perKm, 190, { segmentOhm: 0.5 * 380 * 0.32 }) };
+    const result = compare([{ ...series, studyCriteria: [{ name: 'resonance screen', passed: false, value: 1.2, limit: 2, unit: 'Hz' }] }], {
+      targetTransferMw: 1200,
+    });
+    const item = result.alternatives[0]!;
+    expect(item.criteria.at(-1)).toMatchObject({ criterion: 'study', name: 'resonance screen', passed: false, value: 1.2, limit: 2 });
+    expect(item.allCriteriaMet).toBe(false);
+    expect(result.recommended).toBeNull();
+  });
+
+  test('keeps an alternative whose peak case has no operating point, with no peak figures and its operating-point criterion failed', () => {
+    const heavy = [cases[0]!, { label: 'transfer', loading: { kind: 'transfer' as const, pMw: 4000 } }];
+    const result = compare([{ label: 'none', corridor: corridor(perKm) }], { cases: heavy });
+    const item = result.alternatives[0]!;
+    expect(item.peakLowestPu).toBeNull();
+    expect(item.peakLossesMw).toBeNull();
+    expect(item.criteria.find((entry) => entry.criterion === 'operating-point')!.passed).toBe(false);
+  });
+
   test('names the allowed cases when the peak case is not one of them (out-of-range)', () => {
     expect(() => compare([{ label: 'none', corridor: corridor(perKm) }], { peakCase: 'winter' })).toThrow(SolverDomainError);
     try {
