@@ -37,7 +37,7 @@ export async function runCheckBench(): Promise<CheckBenchResult> {
     // Interleaved so that drift in machine load affects both sides alike; both type-check the blocks.
     for (let index = 0; index < repetitions; index += 1) {
       runTimes.push(kvarbook(['run', DEMO, '--out', join(scratch, `plain-${index}`)], env));
-      checkTimes.push(kvarbook(['check', join(scratch, 'sealed', 'CBX-RC-001-r3.html')], env));
+      checkTimes.push(kvarbook(['check', join(scratch, 'sealed', 'CBX-RC-001-r4.html')], env));
     }
     const runMs = median(runTimes);
     const checkMs = median(checkTimes);

@@ -7,4 +7,4 @@ bash scripts/ensure-installed.sh
 pdf_flag=()
 if [[ -x "${KVARBOOK_CHROMIUM:-/usr/bin/chromium}" ]]; then pdf_flag=(--pdf); fi
 node bin/kvarbook.mjs run studies/caldera-bay-400kv.study.md --out build "${pdf_flag[@]}"
-echo "Open build/CBX-RC-001-r3.html in a browser${pdf_flag:+, or build/CBX-RC-001-r3.pdf}."
+echo "Open build/CBX-RC-001-r4.html in a browser${pdf_flag:+, or build/CBX-RC-001-r4.pdf}."

@@ -412,13 +412,53 @@ export function costComparisonChart(input: CostComparisonInput): ChartSpec {
       data: { values },
       mark: { type: 'bar' },
       encoding: {
-        y: { field: 'option', type: 'nominal', title: 'Option', sort: options.map((option) => option.label) },
+        y: { field: 'option', type: 'nominal', title: 'Option', sort: options.map((option) => option.label), axis: { labelLimit: 240 } },
         x: { field: 'cost', type: 'quantitative', title: `Capitalised cost (${input.comparison.costUnit})`, stack: 'zero' },
         color: { field: 'part', type: 'nominal', title: 'Part', scale: { domain: parts, range: [...seriesColours.slice(0, 3)] } },
         order: { field: 'stackOrder', type: 'quantitative' },
       },
     },
   ]);
+}
+
+export interface TransferComparisonInput {
+  /** Per alternative (compareCompensationAlternatives gives both): the steady-state limit and the transfer within the angle limit. */
+  alternatives: readonly { label: string; maximumTransferMw: number; loadabilityMw: number }[];
+  /** The transfer the corridor must carry, drawn as a vertical line. */
+  targetTransferMw?: number;
+  title?: string;
+}
+
+/** Maximum transfer and loadability of each alternative as overlaid horizontal bars, with the target transfer marked. */
+export function transferComparisonChart(input: TransferComparisonInput): ChartSpec {
+  const labels = seriesLabels(input.alternatives, 'alternatives');
+  const parts = ['steady-state limit', 'within the angle limit'];
+  const values = input.alternatives.flatMap((alternative, index) => [
+    {
+      alternative: alternative.label,
+      part: parts[0],
+      pMw: positive(alternative.maximumTransferMw, `alternatives[${index}].maximumTransferMw`, 'e.g. 1500 MW'),
+    },
+    { alternative: alternative.label, part: parts[1], pMw: finite(alternative.loadabilityMw, `alternatives[${index}].loadabilityMw`) },
+  ]);
+  const x = { field: 'pMw', type: 'quantitative', title: 'Transfer (MW)', scale: { zero: true } };
+  const layers: ChartSpec[] = [
+    {
+      data: { values },
+      mark: { type: 'bar' },
+      encoding: {
+        // Alternatives are named in words; the default label limit would cut most of them.
+        y: { field: 'alternative', type: 'nominal', title: 'Alternative', sort: labels, axis: { labelLimit: 240 } },
+        x: { ...x, stack: null },
+        color: { field: 'part', type: 'nominal', title: 'Transfer', scale: { domain: parts, range: [seriesColours[1], seriesColours[0]] } },
+      },
+    },
+  ];
+  if (input.targetTransferMw !== undefined) {
+    const target = positive(input.targetTransferMw, 'targetTransferMw', 'e.g. 1100 MW');
+    layers.push(verticalRuleLayer(target, `target ${formatNumber(target)} MW`, x.title));
+  }
+  return frame(input.title ?? 'Transfer limits of each alternative', layers);
 }
 
 function frame(title: string, layers: ChartSpec[], subtitle?: string): ChartSpec {

@@ -112,3 +112,13 @@ export type {
   SizingOption,
 } from './caseSizing.ts';
 export type { BusVoltageChange, SwitchingStep, SwitchingSteps } from './switchingSteps.ts';
+export { compareCompensationAlternatives } from './alternatives.ts';
+export type {
+  AlternativeCaseSummary,
+  AlternativeCriterion,
+  CompensationAlternative,
+  CompensationAlternativeInput,
+  CompensationAlternatives,
+  EquipmentPrice,
+  PricedEquipment,
+} from './alternatives.ts';

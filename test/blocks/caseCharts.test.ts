@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { busVoltagesChart, corridorProfileChart, costComparisonChart, frequencyScanChart } from '../../src/blocks/charts.ts';
+import { busVoltagesChart, corridorProfileChart, costComparisonChart, frequencyScanChart, transferComparisonChart } from '../../src/blocks/charts.ts';
 import { renderChartSvg } from '../../src/report/chart/render.ts';
 import { capitalisedCostComparison, frequencyScan, solveCorridorCases, type CorridorInput } from '../../src/solver/index.ts';
 import { linePaths, texts } from '../report/chart/svg-probe.ts';
@@ -107,5 +107,23 @@ describe('costComparisonChart', () => {
     const bars = svg.match(/<g class="mark-rect role-mark[^"]*"[^>]*>([\s\S]*?)<\/g>/)?.[1] ?? '';
     // Three parts for each of the two options.
     expect(bars.match(/<path/g)).toHaveLength(6);
+  });
+});
+
+describe('transferComparisonChart', () => {
+  const alternatives = [
+    { label: 'none', maximumTransferMw: 1350, loadabilityMw: 680 },
+    { label: 'series 40 %', maximumTransferMw: 2200, loadabilityMw: 1100 },
+  ];
+
+  it('draws the steady-state limit and the transfer within the angle limit for each alternative, with the target marked', async () => {
+    const svg = await renderChartSvg(transferComparisonChart({ alternatives, targetTransferMw: 1000 }));
+    expect(texts(svg)).toEqual(expect.arrayContaining(['none', 'series 40 %', 'Transfer (MW)', 'steady-state limit', 'target 1000 MW']));
+    const bars = svg.match(/<g class="mark-rect role-mark[^"]*"[^>]*>([\s\S]*?)<\/g>/)?.[1] ?? '';
+    expect(bars.match(/<path/g)).toHaveLength(4);
+  });
+
+  it('refuses two alternatives with one label', () => {
+    expect(() => transferComparisonChart({ alternatives: [alternatives[0]!, alternatives[0]!] })).toThrow(/unique/);
   });
 });

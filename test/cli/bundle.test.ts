@@ -23,7 +23,7 @@ describe('the bundle and the TypeScript sources', () => {
     });
     expect(development.stderr).toBe('');
     expect(development.status).toBe(0);
-    for (const file of ['CBX-RC-001-r3.html', 'CBX-RC-001-r3.results.json']) {
+    for (const file of ['CBX-RC-001-r4.html', 'CBX-RC-001-r4.results.json']) {
       const fromBundle = readFileSync(join(scratch, 'bundle', file));
       expect(fromBundle.length).toBeGreaterThan(1000);
       expect(fromBundle.equals(readFileSync(join(scratch, 'sources', file))), file).toBe(true);

@@ -9,7 +9,7 @@ describe('the demo study, end to end', async () => {
   const first = scratchFolder('kvarbook-demo-');
   const second = scratchFolder('kvarbook-demo-');
   const runs = [kvarbook(['run', DEMO, '--out', first], first), kvarbook(['run', DEMO, '--out', second], second)];
-  const results = JSON.parse(readFileSync(join(first, 'CBX-RC-001-r3.results.json'), 'utf8'));
+  const results = JSON.parse(readFileSync(join(first, 'CBX-RC-001-r4.results.json'), 'utf8'));
   const figure = (name: string) => results.results.find((result: { name: string }) => result.name === name)?.value as number;
 
   it('runs with its blocks type-checked and meets every criterion', () => {
@@ -20,14 +20,14 @@ describe('the demo study, end to end', async () => {
   });
 
   it('gives byte-identical report and results when run twice', () => {
-    for (const name of ['CBX-RC-001-r3.html', 'CBX-RC-001-r3.results.json']) {
+    for (const name of ['CBX-RC-001-r4.html', 'CBX-RC-001-r4.results.json']) {
       expect(readFileSync(join(second, name)).equals(readFileSync(join(first, name)))).toBe(true);
     }
   });
 
-  it('draws its five charts into the report as inline SVG', () => {
-    const html = readFileSync(join(first, 'CBX-RC-001-r3.html'), 'utf8');
-    expect(html.match(/<figure class="chart"><svg/g)).toHaveLength(5);
+  it('draws its seven charts into the report as inline SVG', () => {
+    const html = readFileSync(join(first, 'CBX-RC-001-r4.html'), 'utf8');
+    expect(html.match(/<figure class="chart"><svg/g)).toHaveLength(7);
     expect(html).not.toMatch(/NaN|Infinity/);
   });
 
@@ -46,5 +46,24 @@ describe('the demo study, end to end', async () => {
     expect(figure('Export with the series capacitor bypassed')).toBeLessThan(1100);
     expect(Math.abs(figure('Export with the series capacitor bypassed') / lineOnlyMw - 1)).toBeLessThan(0.1);
     expect(figure('Angle across the corridor during the export')).toBeLessThanOrEqual(30);
+  });
+
+  it('orders the alternatives by maximum transfer as theory says', () => {
+    // Between end buses held at 400 kV, shunt units at those buses (the reactors, the Caldera Bay capacitors and var compensator)
+    // or switched out leave the steady-state limit unchanged; series capacitors remove k X and raise it, the more the higher the
+    // degree (Glover, Sarma & Overbye, 5th ed., sec. 5.4-5.7; Miller, 1982, ch. 2; from memory).
+    const limits = results.results.filter((result: { name: string }) => result.name.startsWith('Maximum transfer, '));
+    const limit = (label: string) => limits.find((result: { name: string }) => result.name.startsWith(`Maximum transfer, ${label}`))!.value as number;
+    for (const shunt of ['shunt reactors', 'reactors + capacitors', 'reactors + SVC']) expect(limit(shunt) / limit('none')).toBeCloseTo(1, 9);
+    expect(limit('reactors + series 30 %')).toBeGreaterThan(1.2 * limit('none'));
+    expect(limit('combination')).toBeGreaterThan(limit('reactors + series 30 %'));
+    expect(limit('reactors + series 50 %')).toBeGreaterThan(limit('combination'));
+  });
+
+  it('recommends the combination it designs in detail', () => {
+    expect(
+      results.criteria.find((criterion: { name: string }) => criterion.name === 'The alternative designed in detail below is the recommended one')
+        .passed,
+    ).toBe(true);
   });
 });

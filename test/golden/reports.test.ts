@@ -14,6 +14,7 @@ const STUDIES = [
   'templates/light-load.study.md',
   'templates/peak-load.study.md',
   'templates/series-compensation.study.md',
+  'templates/options.study.md',
 ];
 // Fixed facts in place of the installation's, so the expected files do not change with a version bump.
 const ENVIRONMENT = { kvarbookVersion: 'golden', nodeVersion: 'golden', lockfileSha256: '0'.repeat(64) };
