@@ -27,7 +27,8 @@ export interface ReportParts {
  * Nothing is loaded when the report is opened: no script, frame, font, stylesheet or image from anywhere, only the
  * report's own inline style and data: images. Inline SVG is part of the document and needs no permission.
  */
-const CONTENT_SECURITY_POLICY = "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
+export const CONTENT_SECURITY_POLICY =
+  "default-src 'none'; img-src data:; style-src 'unsafe-inline'; font-src data:; base-uri 'none'; form-action 'none'";
 
 export const SEAL_SLOT_START = '<!--kvarbook:seal-->';
 export const SEAL_SLOT_END = '<!--/kvarbook:seal-->';
