@@ -79,6 +79,8 @@ export interface BlockPlace {
   position: number;
   /** Study line of the opening fence. */
   fenceLine: number;
+  /** The options after `ts` on the fence (`hide-code`, `no-run`), as written there. */
+  options: string[];
 }
 
 export interface CodeHunk {
@@ -187,7 +189,8 @@ function fieldChanges(older: Map<string, string>, newer: Map<string, string>): F
 }
 
 function namesInOrder(older: readonly string[], newer: readonly string[]): string[] {
-  return [...older, ...newer.filter((name) => !older.includes(name))];
+  const known = new Set(older);
+  return [...older, ...newer.filter((name) => !known.has(name))];
 }
 
 function inputState(payload: ReportPayload, name: string): InputState | null {
@@ -260,7 +263,14 @@ function criterionChanges(older: ReportPayload, newer: ReportPayload): Criterion
   });
 }
 
-const placeOf = (block: CalcBlock): BlockPlace => ({ position: block.index + 1, fenceLine: block.fenceLine });
+const placeOf = (block: CalcBlock): BlockPlace => ({
+  position: block.index + 1,
+  fenceLine: block.fenceLine,
+  options: [...(block.options.hideCode ? ['hide-code'] : []), ...(block.options.noRun ? ['no-run'] : [])],
+});
+
+const sameOptions = (older: CalcBlock, newer: CalcBlock) =>
+  older.options.hideCode === newer.options.hideCode && older.options.noRun === newer.options.noRun;
 
 function codeHunks(older: string, newer: string): CodeHunk[] {
   return structuredPatch('old', 'new', older, newer, undefined, undefined, { context: CONTEXT_LINES }).hunks.map((hunk) => ({
@@ -274,7 +284,8 @@ function codeHunks(older: string, newer: string): CodeHunk[] {
 
 /**
  * Blocks are matched by their code in order (a longest common subsequence of the two lists): blocks alike on both sides
- * are unchanged; where some old blocks gave way to new ones, they pair up in turn as changed, and the rest are removed or added.
+ * are unchanged unless their options changed; where some old blocks gave way to new ones, they pair up in turn as changed,
+ * and the rest are removed or added.
  */
 function blockChanges(older: readonly CalcBlock[], newer: readonly CalcBlock[]): BlockChange[] {
   const changes: BlockChange[] = [];
@@ -305,6 +316,12 @@ function blockChanges(older: readonly CalcBlock[], newer: readonly CalcBlock[]):
       newAt += part.count;
     } else {
       flush([]);
+      // Alike in code; a block whose options changed (now hidden, or no longer run) is still a change.
+      for (let index = 0; index < part.count; index += 1) {
+        const was = older[oldAt + index]!;
+        const is = newer[newAt + index]!;
+        if (!sameOptions(was, is)) changes.push({ change: 'changed', old: placeOf(was), new: placeOf(is), hunks: [] });
+      }
       oldAt += part.count;
       newAt += part.count;
     }

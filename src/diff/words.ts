@@ -44,10 +44,11 @@ export function criterionText(state: CriterionState | null): string {
 }
 
 export function blockTitle(change: BlockChange): string {
-  const place = (side: BlockChange['old']) => (side === null ? '' : `block ${side.position} (study line ${side.fenceLine})`);
+  const place = (side: BlockChange['old']) =>
+    side === null ? '' : `block ${side.position} (study line ${side.fenceLine}${side.options.length > 0 ? `, ${side.options.join(' ')}` : ''})`;
   if (change.change === 'added') return `added ${place(change.new)}`;
   if (change.change === 'removed') return `removed ${place(change.old)}`;
-  const moved = change.old?.position !== change.new?.position || change.old?.fenceLine !== change.new?.fenceLine;
+  const moved = place(change.old) !== place(change.new);
   return `changed ${place(change.old)}${moved ? ` → ${place(change.new)}` : ''}`;
 }
 

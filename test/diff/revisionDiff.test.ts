@@ -3,6 +3,7 @@ import { resultsJsonText } from '../../src/cli/reportFiles.ts';
 import { reportPayload, type ReportPayload } from '../../src/diff/payload.ts';
 import { revisionDiff } from '../../src/diff/revisionDiff.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
+import type { InputOverride } from '../../src/study/inputs.ts';
 import { diagnosticsOf, runSource, studyText } from '../support/studies.ts';
 
 const BLOCK_ONE =
@@ -17,8 +18,8 @@ function study(options: { revision: number; lengthKm: number; cautionText: strin
   }).replace('revision: 1', `revision: ${options.revision}`);
 }
 
-async function payloadOf(source: string, path: string): Promise<ReportPayload> {
-  const product = await runSource(source, { file: 'line.study.md' });
+async function payloadOf(source: string, path: string, overrides: InputOverride[] = []): Promise<ReportPayload> {
+  const product = await runSource(source, { file: 'line.study.md', overrides });
   return reportPayload({
     path,
     html: assembleReport(product.report, UNSEALED_NOTICE),
@@ -128,11 +129,38 @@ describe('the revision diff of two report payloads', () => {
       {
         change: 'added',
         old: null,
-        new: { position: 2, fenceLine: expect.any(Number) },
+        new: { position: 2, fenceLine: expect.any(Number), options: [] },
         hunks: [expect.objectContaining({ lines: ['+result("Extra", 1);'] })],
       },
     ]);
     expect(results).toMatchObject([{ name: 'Extra', change: 'added', old: null, new: { value: 1 } }]);
+  });
+
+  it('lists a block whose code is unchanged but whose options changed, with no line diff', async () => {
+    const source = study({ revision: 1, lengthKm: 320, cautionText: 'Old caution' });
+    const hidden = await payloadOf(source.replace(/```ts\n(criterion)/, '```ts hide-code\n$1'), 'hidden.html');
+    expect(revisionDiff(first, hidden).blocks).toEqual([
+      {
+        change: 'changed',
+        old: expect.objectContaining({ position: 2, options: [] }),
+        new: expect.objectContaining({ position: 2, options: ['hide-code'] }),
+        hunks: [],
+      },
+    ]);
+  });
+
+  it('shows an overridden input with the value used and the value the front matter gives', async () => {
+    const overridden = await payloadOf(study({ revision: 1, lengthKm: 320, cautionText: 'Old caution' }), 'variant.html', [
+      { name: 'lineLength', text: '300 km' },
+    ]);
+    expect(revisionDiff(first, overridden).inputs).toEqual([
+      {
+        name: 'lineLength',
+        change: 'changed',
+        old: { given: '320 km', value: 320, unit: 'km', source: 'given' },
+        new: { given: '320 km', value: 300, unit: 'km', source: 'overridden' },
+      },
+    ]);
   });
 
   it('does not list a figure that moved within its tolerance, as the check would not', () => {
