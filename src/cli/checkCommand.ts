@@ -1,5 +1,5 @@
 // `kvarbook check`: verify a sealed report step by step, re-run its study, and optionally counter-sign.
-import { existsSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join } from 'node:path';
 import { styleText } from 'node:util';
@@ -18,7 +18,8 @@ import { typecheckCache } from './typecheckCache.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
-import { pdfAsPrintedStep, readPdfReport, type PdfInHand } from './printPdf.ts';
+import { pdfAsPrintedStep } from './printPdf.ts';
+import { readReport } from './readReport.ts';
 import type { Terminal } from './terminal.ts';
 import type { RunLimits } from '../study/model.ts';
 
@@ -31,34 +32,6 @@ export interface CheckOptions {
   tolerance: number;
   /** The most the re-run grants whatever the study asks. */
   ceilings?: RunLimits;
-}
-
-/** Far above any report kvarbook writes; a larger file is not a report, and is not read into memory. */
-const MAX_CHECKED_FILE_BYTES = 256 * 1024 * 1024;
-
-async function readReport(reportPath: string): Promise<{ html: string; pdf?: PdfInHand }> {
-  let size: number;
-  try {
-    size = statSync(reportPath).size;
-  } catch {
-    throw new StudyFailure([{ code: 'report-missing', message: `${reportPath} does not exist`, hint: 'name a sealed .html or .pdf report' }]);
-  }
-  if (size > MAX_CHECKED_FILE_BYTES) {
-    throw new StudyFailure([
-      {
-        code: 'report-too-large',
-        message: `${reportPath} is ${(size / 1024 / 1024).toFixed(0)} MiB; a report to check may be at most ${MAX_CHECKED_FILE_BYTES / 1024 / 1024} MiB`,
-        hint: 'name the .html or .pdf report kvarbook wrote',
-      },
-    ]);
-  }
-  const bytes = readFileSync(reportPath);
-  // A PDF carries the sealed HTML as an attachment; the PDF alone is enough to check.
-  if (bytes.subarray(0, 5).toString('latin1') === '%PDF-') {
-    const pdf = await readPdfReport(bytes, reportPath);
-    return { html: pdf.html, pdf };
-  }
-  return { html: bytes.toString('utf8') };
 }
 
 function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined) {

@@ -3,6 +3,7 @@ import { Command, CommanderError, InvalidArgumentError, Option } from 'commander
 import type { RunOptions } from './runCommand.ts';
 import type { PreviewOptions } from './previewCommand.ts';
 import type { CheckOptions } from './checkCommand.ts';
+import type { DiffOptions } from './diffCommand.ts';
 import type { KeyNewOptions } from './keyCommand.ts';
 import { homeFolders } from './homeFolders.ts';
 import { useLaunchEnvironment } from './launchEnvironment.ts';
@@ -116,6 +117,25 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     const { checkCommand } = await import('./checkCommand.ts');
     setExit(await checkCommand(report, { ...options, ceilings: ceilingsOf(options) }, terminal));
   });
+
+  program
+    .command('diff')
+    .description('what changed between two reports of a study: front matter, inputs, results, criteria, cautions, blocks, versions')
+    .argument('<old>', 'the earlier report (.html or .pdf, sealed or not)')
+    .argument('<new>', 'the later report')
+    .option('--json', 'print the changes as JSON for machines')
+    .option('--html <file>', 'also write the changes as a self-contained HTML page (a new file)')
+    .option('--replace', 'let --html write over an existing file')
+    .option(
+      '--tolerance <relative>',
+      'relative tolerance within which a figure without its own counts as unchanged',
+      parseTolerance,
+      DEFAULT_RELATIVE_TOLERANCE,
+    )
+    .action(async (older: string, newer: string, options: DiffOptions) => {
+      const { diffCommand } = await import('./diffCommand.ts');
+      setExit(await diffCommand(older, newer, options, terminal));
+    });
 
   const key = program.command('key').description('signing keys of licensed engineers');
   key

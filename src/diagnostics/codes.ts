@@ -140,6 +140,11 @@ export const DIAGNOSTIC_CODES = {
 
   // The command line (src/cli)
   'report-missing': 'the report to check does not exist',
+  'diff-not-report': 'a file handed to diff is not a kvarbook report',
+  'diff-no-figures': 'a report handed to diff carries no figures to compare',
+  'diff-figures-malformed': "a report's embedded results or seal cannot be read",
+  'diff-figures-mismatch': 'the results beside a report are not those of its study',
+  'diff-page-exists': 'the file asked for the diff page exists already',
   'record-malformed': 'the calculation process sent a malformed record',
   'check-exists': 'a check record for this report exists already',
   'check-own-seal': 'the checker tried to counter-sign a report they sealed themselves',
