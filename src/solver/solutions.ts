@@ -259,11 +259,14 @@ export function deliveredReactiveVa(abcd: AbcdMatrix, sendingLineV: number, busV
 
 export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load: Complex): SolverDomainError {
   const multiple = noseLoadMultiple(abcd, kvToV(sendingVoltageKv), load);
+  const allowedRange = `up to P = ${forMessage(wToMw(multiple * load.re))} MW, Q = ${forMessage(varToMvar(multiple * load.im))} Mvar at this power factor (the nose of the P-V curve at Vs = ${forMessage(sendingVoltageKv)} kV)`;
   return new SolverDomainError({
     code: 'no-operating-point',
     quantity: 'load',
+    // The exact load stays in the diagnostic's value; the sentence a reader sees quotes it rounded.
     value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
-    allowedRange: `up to P = ${forMessage(wToMw(multiple * load.re))} MW, Q = ${forMessage(varToMvar(multiple * load.im))} Mvar at this power factor (the nose of the P-V curve at Vs = ${sendingVoltageKv} kV)`,
+    message: `load = P = ${forMessage(wToMw(load.re))} MW, Q = ${forMessage(varToMvar(load.im))} Mvar is outside the allowed range ${allowedRange}`,
+    allowedRange,
     hint: 'No receiving voltage carries this load: it lies beyond the maximum loadability. Reduce the load, add shunt or series compensation, or raise the sending voltage.',
   });
 }
