@@ -2,8 +2,10 @@
 import { writeFileSync } from 'node:fs';
 import { createSigningKey } from '../seal/keys.ts';
 import { exportIdentity, loadDefaultKey, saveKey } from '../seal/keystore.ts';
+import { homeFolders } from './homeFolders.ts';
 import { readPassphrase } from './passphrase.ts';
 import type { Terminal } from './terminal.ts';
+import type { Person } from '../study/model.ts';
 
 export interface KeyNewOptions {
   name: string;
@@ -29,4 +31,18 @@ export async function keyShowCommand(options: { keys: string; out?: string }, te
     terminal.say(`public identity written to ${options.out}`);
   } else process.stdout.write(identity);
   return 0;
+}
+
+/** A word as a POSIX shell reads it back unchanged: bare when it holds only safe characters, else in single quotes. */
+function shellWord(word: string): string {
+  return /^[\w.,:@%+=/-]+$/.test(word) ? word : `'${word.replaceAll("'", "'\\''")}'`;
+}
+
+/** The `kvarbook key new` line that makes `person` a signing key in `keysFolder`, to paste as it stands. */
+export function keyNewCommandLine(person: Person, keysFolder: string): string {
+  const words = ['kvarbook', 'key', 'new', '--name', shellWord(person.name)];
+  words.push('--licence', person.licence ? shellWord(person.licence) : '<licence>');
+  words.push('--jurisdiction', person.jurisdiction ? shellWord(person.jurisdiction) : '<jurisdiction>');
+  if (keysFolder !== homeFolders().keys) words.push('--keys', shellWord(keysFolder));
+  return words.join(' ');
 }

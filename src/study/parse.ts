@@ -10,7 +10,8 @@ import type { YamlPlace } from './yamlFields.ts';
 import { sha256Hex } from '../seal/digest.ts';
 
 const FENCE_LINE = /^---\s*$/;
-const CALC_LANGUAGE = 'ts';
+/** The fence languages a calculation block is written in: an author who writes the name out means the same block. */
+const CALC_LANGUAGES: readonly string[] = ['ts', 'typescript'];
 const BLOCK_OPTION_WORDS = { 'hide-code': 'hideCode', 'no-run': 'noRun' } as const;
 
 export function parseStudy(file: string, source: string): Study {
@@ -115,7 +116,7 @@ function collectBlocksAndInlines(
     if (token.type === 'fence' && token.map) {
       const fenceLine = token.map[0] + bodyFirstLine;
       const [language, ...words] = token.info.trim().split(/\s+/);
-      if (language !== CALC_LANGUAGE) continue;
+      if (!CALC_LANGUAGES.includes(language?.toLowerCase() ?? '')) continue;
       checkFenceClosed(file, lines, token, fenceLine, bodyFirstLine, diagnostics);
       const options = { hideCode: false, noRun: false };
       for (const word of words) {
@@ -126,7 +127,7 @@ function collectBlocksAndInlines(
             code: 'block-option-unknown',
             message: `unknown calculation block option "${word}"`,
             at: { file, line: fenceLine, column: 1 },
-            hint: `the options after \`ts\` are: ${Object.keys(BLOCK_OPTION_WORDS).join(', ')}`,
+            hint: `the options after \`${language}\` are: ${Object.keys(BLOCK_OPTION_WORDS).join(', ')}`,
           });
         }
       }

@@ -151,6 +151,24 @@ describe('sealing and checking from the command line', () => {
 });
 
 describe('keys', () => {
+  it('gives the command that makes the engineer a signing key when there is none', async () => {
+    const folder = scratchFolder('kvarbook-seal-');
+    writeFileSync(join(folder, 'line.study.md'), study.replace('name: Test Engineer', "name: Test O'Engineer"));
+    const run = await cli(['run', 'line.study.md', '--seal'], folder, { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE });
+    expect(run.status).toBe(1);
+    expect(run.stderr).toContain('seal-no-default-key');
+    expect(run.stderr).toContain(`kvarbook key new --name 'Test O'\\''Engineer' --licence T-0 --jurisdiction Testland`);
+    expect(existsSync(join(folder, 'build'))).toBe(false);
+  });
+
+  it('names the keys folder in the command when it is not the default one', async () => {
+    const folder = scratchFolder('kvarbook-seal-');
+    writeFileSync(join(folder, 'line.study.md'), study);
+    const keys = join(folder, 'elsewhere keys');
+    const run = await cli(['run', 'line.study.md', '--seal', '--keys', keys], folder, { KVARBOOK_HOME: join(folder, 'home') });
+    expect(run.stderr).toContain(`kvarbook key new --name 'Test Engineer' --licence T-0 --jurisdiction Testland --keys '${keys}'`);
+  });
+
   it('refuses to seal with a wrong passphrase, and writes nothing', async () => {
     const { folder, env } = workspace();
     const run = await cli(['run', 'line.study.md', '--seal'], folder, { ...env, KVARBOOK_PASSPHRASE: 'not the right passphrase' });

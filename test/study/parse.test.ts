@@ -67,6 +67,15 @@ describe('parsing a study', () => {
     ]);
   });
 
+  it('runs a block fenced as typescript like one fenced as ts, options and all', () => {
+    const source = studyText({ body: '```typescript\nconst a = 1;\n```\n\n```TypeScript hide-code\nconst b = 2;\n```\n' });
+    const study = parseStudy('s.study.md', source);
+    expect(study.blocks.map((block) => [block.firstCodeLine, block.options])).toEqual([
+      [lineOf(source, 'const a'), { hideCode: false, noRun: false }],
+      [lineOf(source, 'const b'), { hideCode: true, noRun: false }],
+    ]);
+  });
+
   it('refuses an unknown block option, naming the allowed ones', async () => {
     const source = studyText({ body: '```ts hidden\nconst a = 1;\n```' });
     const [problem] = await diagnosticsOf(() => parseStudy('s.study.md', source));
