@@ -13,6 +13,7 @@ export const DIAGNOSTIC_CODES = {
   'front-matter-missing': 'the study does not start with a front matter block',
   'front-matter-unclosed': 'the front matter has no closing --- line',
   'front-matter-yaml': 'the front matter is not valid YAML',
+  'front-matter-flow-comma': 'an unquoted comma inside { } split a value into a key of its own',
   'front-matter-shape': 'the front matter is not a mapping of keys to values',
   'front-matter-unknown-key': 'the front matter has a key kvarbook does not know',
   'front-matter-missing-key': 'a required front matter key is missing',
