@@ -6,6 +6,7 @@ import { styleText } from 'node:util';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { runStudy, type RunProduct } from '../pipeline.ts';
 import { embeddedStudySource } from '../report/embed.ts';
+import { criteriaStatus } from '../report/html.ts';
 import { checkSealedReport, withStep, type CheckOutcome, type RerunRequest } from '../seal/check.ts';
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
 import { envelopeSha256 } from '../seal/manifest.ts';
@@ -113,7 +114,10 @@ function verdictLine(outcome: CheckOutcome, paint: (style: Parameters<typeof sty
   const word = verified ? paint(['bold', 'green'], 'VERIFIED') : paint(['bold', 'red'], 'NOT VERIFIED');
   const what = outcome.study ? `study ${outcome.study.id}, revision ${outcome.study.revision}` : 'no readable seal';
   const who = outcome.signer ? `, ${verified ? 'sealed' : 'seal signed'} by ${describeSigner(outcome.signer)}` : '';
-  return `verdict: ${word}: ${what}${who}`;
+  // What the seal says of the criteria; only a verified report's figures are vouched for.
+  const criteria = outcome.criteria ? criteriaStatus(outcome.criteria.notMet.length, outcome.criteria.total) : undefined;
+  const findings = criteria === undefined ? '' : verified ? `; figures verified; ${criteria}, as sealed` : `; the seal states ${criteria}`;
+  return `verdict: ${word}: ${what}${who}${findings}`;
 }
 
 function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: TrustedIdentities, terminal: Terminal, colour: boolean): void {

@@ -148,6 +148,10 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   terminal.say(`results: ${paths.results}`);
   if (sealed) terminal.say(`seal: ${paths.seal}`);
   terminal.say(`criteria: ${criteriaStatus(failed, criteria.length)}`);
+  if (sealed && failed > 0) {
+    const names = criteria.filter((criterion) => !criterion.passed).map((criterion) => criterion.name);
+    terminal.warn(`sealed with ${criteriaStatus(failed, criteria.length)}: ${names.join(', ')}`);
+  }
   if (pdfFailure) throw pdfFailure;
   if (options.pdf || meta.report.pdf) terminal.say(`pdf: ${paths.pdf}`);
   return 0;

@@ -150,6 +150,38 @@ describe('sealing and checking from the command line', () => {
   });
 });
 
+describe('a sealed study with a criterion not met', () => {
+  const failing = studyText({
+    body: '```ts\ncriterion("Receiving-end voltage", 1.09, { max: 1.05, unit: "pu" });\ncriterion("Angle across the line", 21, { max: 30, unit: "deg" });\ncriterion("Sending-end voltage", 0.93, { min: 0.95, unit: "pu" });\n```\n',
+  });
+  let space: SealWorkspace;
+  let sealing: Awaited<ReturnType<typeof cli>>;
+  beforeAll(async () => {
+    space = sealWorkspace('kvarbook-seal-');
+    writeFileSync(join(space.folder, 'line.study.md'), failing);
+    sealing = await cli(['run', 'line.study.md', '--seal'], space.folder, space.env);
+  });
+
+  it('is sealed, with a warning on the terminal naming the criteria not met', () => {
+    expect(sealing.status).toBe(0);
+    expect(existsSync(join(space.folder, 'build', 'TEST-1-r1.seal.json'))).toBe(true);
+    expect(sealing.stderr).toBe('kvarbook: warning: sealed with 2 of 3 criteria not met: Receiving-end voltage, Sending-end voltage\n');
+  });
+
+  it("says in the check's verdict how many criteria the seal records as not met", async () => {
+    const check = await cli(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
+    expect(check.status).toBe(0);
+    expect(check.stdout).toMatch(/^verdict: VERIFIED: .*; figures verified; 2 of 3 criteria not met, as sealed$/m);
+    const json = await cli(['check', 'build/TEST-1-r1.html', '--json'], space.folder, space.env);
+    expect(JSON.parse(json.stdout).criteria).toEqual({ total: 3, notMet: ['Receiving-end voltage', 'Sending-end voltage'] });
+  });
+
+  it('says in the title block how many criteria are not met', () => {
+    const html = readFileSync(join(space.folder, 'build', 'TEST-1-r1.html'), 'utf8');
+    expect(html).toContain('<dt>Status</dt><dd class="fail">2 of 3 criteria not met</dd>');
+  });
+});
+
 describe('keys', () => {
   it('gives the command that makes the engineer a signing key when there is none', async () => {
     const folder = scratchFolder('kvarbook-seal-');
