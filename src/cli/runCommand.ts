@@ -13,7 +13,7 @@ import { launchEnvironment } from './launchEnvironment.ts';
 import { typecheckCache } from './typecheckCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
-import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
+import { DRAFT_VARIANT, isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists, variantName } from './reportFiles.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 import type { Person, RunLimits } from '../study/model.ts';
@@ -23,6 +23,8 @@ import { keyNewCommandLine } from './keyCommand.ts';
 export interface RunOptions {
   out: string;
   set: string[];
+  /** The word a variant's file names carry instead of its overrides written out. */
+  variant?: string;
   typecheck: boolean;
   seal?: boolean;
   pdf?: boolean;
@@ -97,16 +99,27 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
       },
     ]);
   }
+  const variant = variantName(parseOverrideArguments(options.set), options.variant);
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();
   const { meta } = product.run.study;
-  const paths = reportPaths(options.out, meta.id, meta.revision);
   const sealed = options.seal ? await sealedFiles(product, options.keys as string) : undefined;
-  const folder = reportFolder(options.out, meta.id, meta.revision);
+  let paths = reportPaths(options.out, meta.id, meta.revision, variant);
+  let folder = reportFolder(options.out, meta.id, meta.revision, variant);
   await openReportFolder(folder, isSealedSet);
-  const previous = currentSet(folder);
-  const previousSealed = await isSealedSet(previous);
-  if (previousSealed && !options.replaceSealed) throw sealedReportExists(paths);
+  let previous = currentSet(folder);
+  let previousSealed = await isSealedSet(previous);
+  if (previousSealed && !options.replaceSealed) {
+    if (sealed) throw sealedReportExists(paths);
+    // A draft never touches the sealed report: it is written beside it, under a name of its own.
+    terminal.say(`the sealed report ${paths.html} is kept; this draft is written beside it`);
+    const draft = variant === undefined ? DRAFT_VARIANT : `${variant}-${DRAFT_VARIANT}`;
+    paths = reportPaths(options.out, meta.id, meta.revision, draft);
+    folder = reportFolder(options.out, meta.id, meta.revision, draft);
+    await openReportFolder(folder, isSealedSet);
+    previous = currentSet(folder);
+    previousSealed = await isSealedSet(previous);
+  }
   const html = sealed ? sealed.html : assembleReport(product.report, UNSEALED_NOTICE);
   const resultsJson = resultsJsonText(product);
   // Every file of the run goes into one fresh set, switched in only once all are written: a killed
@@ -127,7 +140,8 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
           studySource: product.run.study.source,
           resultsJson,
           ...(sealed ? { sealJson: sealed.seal } : {}),
-          htmlFileName: basename(paths.html),
+          // The PDF carries its files under the study's own names, as a checker's fresh print names them.
+          htmlFileName: basename(reportPaths('.', meta.id, meta.revision).html),
         });
         pending.write(basename(paths.pdf), pdf);
       } catch (error) {

@@ -146,6 +146,7 @@ export const DIAGNOSTIC_CODES = {
   'check-own-seal': 'the checker tried to counter-sign a report they sealed themselves',
   'check-unsignable': 'an outcome that did not verify cannot be counter-signed',
   'sealed-report-exists': 'a sealed report of the same id and revision exists already',
+  'variant-name': 'a --variant name is not a plain word a file name can carry',
   'output-folder-link': 'the output folder holds a link kvarbook did not make',
   'output-folder-entry': 'the output folder holds something kvarbook does not keep there',
   'passphrase-missing': 'a passphrase is needed, but there is no terminal and KVARBOOK_PASSPHRASE is not set',

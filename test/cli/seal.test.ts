@@ -64,11 +64,21 @@ describe('sealing and checking from the command line', () => {
     expect(Buffer.from(seal!.content).equals(readFileSync(join(space.folder, 'build/TEST-1-r1.seal.json')))).toBe(true);
   });
 
-  it('refuses to overwrite the sealed report, and leaves it as it was', async () => {
+  it('writes a draft beside the sealed report, and leaves the sealed one as it was', async () => {
     const before = readFileSync(join(space.folder, 'build/TEST-1-r1.html'));
-    const again = await cli(['run', 'line.study.md'], space.folder, space.env);
+    const draft = await cli(['run', 'line.study.md'], space.folder, space.env);
+    expect(draft.status).toBe(0);
+    expect(draft.stdout).toContain('the sealed report build/TEST-1-r1.html is kept; this draft is written beside it');
+    expect(draft.stdout).toContain('report: build/TEST-1-r1.draft.html');
+    expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
+    expect(readFileSync(join(space.folder, 'build/TEST-1-r1.draft.html'), 'utf8')).toContain('<strong>Not sealed.</strong>');
+  });
+
+  it('refuses to seal over the sealed report, and leaves it as it was', async () => {
+    const before = readFileSync(join(space.folder, 'build/TEST-1-r1.html'));
+    const again = await cli(['run', 'line.study.md', '--seal'], space.folder, space.env);
     expect(again.status).toBe(1);
-    expect(again.stderr).toContain('sealed report');
+    expect(again.stderr).toContain('sealed-report-exists');
     expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
   });
 
@@ -147,6 +157,21 @@ describe('sealing and checking from the command line', () => {
       expect(content).not.toMatch(/PRIVATE KEY/);
       for (const line of pemLines) expect(content).not.toContain(line);
     }
+  });
+});
+
+describe('a sealed variant', () => {
+  it('has files of its own, and its seal says it is a variant and which inputs are overridden', async () => {
+    const space = workspace();
+    const sealed = await cli(['run', 'line.study.md', '--seal', '--set', 'lineLength=280km'], space.folder, space.env);
+    expect(sealed.status).toBe(0);
+    const html = readFileSync(join(space.folder, 'build/TEST-1-r1.lineLength-280km.html'), 'utf8');
+    expect(html).toMatch(
+      /<section class="seal sealed" id="seal">[^]*<strong>This is a variant of the study<\/strong>: sealed with lineLength = 280 km in place/,
+    );
+    expect(existsSync(join(space.folder, 'build/TEST-1-r1.lineLength-280km.seal.json'))).toBe(true);
+    const check = await cli(['check', 'build/TEST-1-r1.lineLength-280km.html'], space.folder, space.env);
+    expect(check.stdout).toContain('verdict: VERIFIED');
   });
 });
 
