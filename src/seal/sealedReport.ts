@@ -3,7 +3,7 @@ import { SEAL_SLOT_END, SEAL_SLOT_START, assembleReport, type ReportParts } from
 import type { ResultsDocument } from '../report/studyRun.ts';
 import { formatLimits, formatQuantity, formatStated } from '../blocks/format.ts';
 import { jsonScript, jsonScriptTexts } from '../report/embed.ts';
-import { escapeHtml } from '../report/escape.ts';
+import { escapeHtml, hashHtml } from '../report/escape.ts';
 import { serializeCheckRecord, type CheckRecord } from './checkRecord.ts';
 import { serializeEnvelope, type SealEnvelope, type SealSubject } from './manifest.ts';
 import { sha256Hex } from './digest.ts';
@@ -66,12 +66,12 @@ function sealSection(envelope: SealEnvelope, checks: readonly CheckRecord[]): st
   const checkLines = checks
     .map((check) => {
       const who = check.statement.checker;
-      return `<p class="countersign"><strong>Checked</strong> by ${escapeHtml(who.name)}, licence ${escapeHtml(who.licence)} (${escapeHtml(who.jurisdiction)}), on ${escapeHtml(check.statement.checkedOn)}: <strong>${check.statement.verdict === 'verified' ? 'every figure re-computed and verified' : 'check FAILED'}</strong>. Key <span class="fingerprint">${escapeHtml(who.fingerprint)}</span>.</p>`;
+      return `<p class="countersign"><strong>Checked</strong> by ${escapeHtml(who.name)}, licence ${escapeHtml(who.licence)} (${escapeHtml(who.jurisdiction)}), on ${escapeHtml(check.statement.checkedOn)}: <strong>${check.statement.verdict === 'verified' ? 'every figure re-computed and verified' : 'check FAILED'}</strong>. Key <span class="fingerprint">${hashHtml(who.fingerprint)}</span>.</p>`;
     })
     .join('\n');
   return `<section class="seal sealed" id="seal">
 <p><strong>Sealed</strong> by ${escapeHtml(signer.name)}, licence ${escapeHtml(signer.licence)} (${escapeHtml(signer.jurisdiction)}), for the study dated ${escapeHtml(envelope.manifest.studyDate)}.</p>
-${variantLine(envelope)}<p>Signing key <span class="fingerprint">${escapeHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
+${variantLine(envelope)}<p>Signing key <span class="fingerprint">${hashHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
 ${checkLines}
 </section>`;
 }

@@ -167,7 +167,7 @@ describe('a sealed variant', () => {
     expect(sealed.status).toBe(0);
     const html = readFileSync(join(space.folder, 'build/TEST-1-r1.lineLength-280km.html'), 'utf8');
     expect(html).toMatch(
-      /<section class="seal sealed" id="seal">[^]*<strong>This is a variant of the study<\/strong>: sealed with lineLength = 280 km in place/,
+      /<section class="seal sealed" id="seal">[\s\S]*<strong>This is a variant of the study<\/strong>: sealed with lineLength = 280 km in place/,
     );
     expect(existsSync(join(space.folder, 'build/TEST-1-r1.lineLength-280km.seal.json'))).toBe(true);
     const check = await cli(['check', 'build/TEST-1-r1.lineLength-280km.html'], space.folder, space.env);
