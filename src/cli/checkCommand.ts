@@ -10,6 +10,7 @@ import { criteriaStatus } from '../report/html.ts';
 import { checkSealedReport, withStep, type CheckOutcome, type RerunRequest } from '../seal/check.ts';
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
 import { envelopeSha256 } from '../seal/manifest.ts';
+import { type SourceChange, sourceDifference } from '../seal/sourceDifference.ts';
 import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
 import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
@@ -120,7 +121,23 @@ function verdictLine(outcome: CheckOutcome, paint: (style: Parameters<typeof sty
   return `verdict: ${word}: ${what}${who}${findings}`;
 }
 
-function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: TrustedIdentities, terminal: Terminal, colour: boolean): void {
+/** Changed lines a terminal shows of a copy that differs throughout; --json gives every one. */
+const CHANGED_LINES_SHOWN = 200;
+
+interface SourceComparison {
+  /** The study file the checker named, as the lines say it. */
+  sourceName: string;
+  sourceChanges: SourceChange[];
+}
+
+function describeOutcome(
+  outcome: CheckOutcome,
+  { sourceName, sourceChanges }: SourceComparison,
+  trustFolder: string,
+  trust: TrustedIdentities,
+  terminal: Terminal,
+  colour: boolean,
+): void {
   const paint = (style: Parameters<typeof styleText>[0], text: string) => (colour ? styleText(style, text) : text);
   terminal.say(trustLine(trustFolder, trust));
   for (const skipped of trust.problems.filter((problem) => problem.file !== trustFolder))
@@ -135,6 +152,16 @@ function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: Trus
   }
   for (const name of outcome.comparison?.missing ?? []) terminal.say(`   ${name}: sealed, but the re-run did not produce it`);
   for (const name of outcome.comparison?.extra ?? []) terminal.say(`   ${name}: produced by the re-run, but not sealed`);
+  let shown = 0;
+  for (const change of sourceChanges) {
+    if (shown >= CHANGED_LINES_SHOWN) break;
+    terminal.say(`   study source, line ${change.sealedLine} as sealed, line ${change.sourceLine} in ${sourceName}:`);
+    for (const line of change.removed) terminal.say(`     - ${line}`);
+    for (const line of change.added) terminal.say(`     + ${line}`);
+    shown += change.removed.length + change.added.length;
+  }
+  const notShown = sourceChanges.reduce((sum, change) => sum + change.removed.length + change.added.length, 0) - shown;
+  if (notShown > 0) terminal.say(`   … and ${notShown} more changed lines (--json lists them all)`);
   if (outcome.bodyDifference) {
     terminal.say(`   report body, line ${outcome.bodyDifference.line}:`);
     terminal.say(`     sealed: ${outcome.bodyDifference.sealed}`);
@@ -160,12 +187,22 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
   });
   // A PDF is what its reader sees: it verifies only as the exact print of the verified report.
   if (pdf) outcome = withStep(outcome, await pdfAsPrintedStep(pdf, outcome, source));
+  // A copy the checker holds that is not the sealed source: which lines differ from the source the report carries.
+  const sourceChanges = options.source && embedded !== undefined && source !== undefined ? sourceDifference(embedded, source) : [];
   if (options.json) {
     const { rerun: _rerun, ...findings } = outcome;
     process.stdout.write(
-      `${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`,
+      `${JSON.stringify({ report: reportPath, ...findings, sourceDifference: sourceChanges, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`,
     );
-  } else describeOutcome(outcome, options.trust, trust, terminal, Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR);
+  } else
+    describeOutcome(
+      outcome,
+      { sourceName: options.source ?? '', sourceChanges },
+      options.trust,
+      trust,
+      terminal,
+      Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR,
+    );
   if (options.sign) await countersign(reportPath, html, outcome, options, terminal);
   return outcome.verdict === 'verified' ? 0 : 1;
 }

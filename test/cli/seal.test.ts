@@ -97,6 +97,23 @@ describe('sealing and checking from the command line', () => {
     expect(check.stdout).toContain('study source       FAIL');
   });
 
+  it('shows which lines of an edited copy of the study source differ from the sealed source', async () => {
+    const edited = study.replace('0.4 *', '0.41 *').replace('# Charging', '# Charging of the line');
+    writeFileSync(join(space.folder, 'edited.study.md'), edited);
+    const check = await cli(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md'], space.folder, space.env);
+    const sealedLines = study.split('\n');
+    const lineOfSealed = (needle: string) => sealedLines.findIndex((line) => line.includes(needle)) + 1;
+    expect(check.stdout).toContain(
+      `   study source, line ${lineOfSealed('# Charging')} as sealed, line ${lineOfSealed('# Charging')} in edited.study.md:`,
+    );
+    expect(check.stdout).toContain('     - # Charging\n     + # Charging of the line\n');
+    expect(check.stdout).toContain(
+      '     - const chargingMvar = 0.4 * inputs.lineLength.in("km");\n     + const chargingMvar = 0.41 * inputs.lineLength.in("km");\n',
+    );
+    const json = await cli(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md', '--json'], space.folder, space.env);
+    expect(JSON.parse(json.stdout).sourceDifference).toHaveLength(2);
+  });
+
   it('fails the check when the signer is not trusted', async () => {
     const check = await cli(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
     expect(check.status).toBe(1);
