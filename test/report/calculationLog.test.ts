@@ -1,6 +1,6 @@
 // The calculation log: every value of every solver call in full, long arrays pointed to in results.json, which holds every call whole.
 import { describe, expect, it } from 'vitest';
-import { runSource, studyText } from '../support/studies.ts';
+import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 
 const longLabel = `Northmoor – Caldera Bay ${'section '.repeat(40)}end`;
 const source = studyText({
@@ -45,5 +45,22 @@ describe('the calculation log', async () => {
     const curveCall = calls[1] as { returnedSummary: { upperBranch: unknown[] } };
     expect(Array.isArray(curveCall.returnedSummary.upperBranch)).toBe(true);
     expect(curveCall.returnedSummary.upperBranch.length).toBeGreaterThan(7);
+  });
+});
+
+describe('a value the calculation log cannot record whole', () => {
+  it('is refused at the solver call with a located error, not cut', async () => {
+    const looped = studyText({
+      body: [
+        '```ts',
+        'const options: Record<string, unknown> = { frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 4, lengthKm: 100 };',
+        'options.self = options;',
+        'solver.lineModel(options as never);',
+        '```',
+      ].join('\n'),
+    });
+    const [problem] = await diagnosticsOf(runSource(looped));
+    expect(problem).toMatchObject({ code: 'block-output-limit', at: { line: lineOf(looped, 'solver.lineModel') } });
+    expect(problem?.message).toContain('solver.lineModel: the calculation log records every value in full, and its arguments cannot be recorded');
   });
 });
