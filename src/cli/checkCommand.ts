@@ -11,7 +11,8 @@ import { checkSealedReport, withStep, type CheckOutcome, type RerunRequest } fro
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
 import { envelopeSha256 } from '../seal/manifest.ts';
 import { type SourceChange, sourceDifference } from '../seal/sourceDifference.ts';
-import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
+import { unlockStoredKey } from '../seal/keystore.ts';
+import { loadDefaultKeyOf } from './keyCommand.ts';
 import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
@@ -214,7 +215,7 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     throw new StudyFailure([
       { code: 'check-unsignable', message: 'there is no readable seal to counter-sign', hint: 'only a sealed report can be counter-signed' },
     ]);
-  const stored = loadDefaultKey(options.keys);
+  const stored = loadDefaultKeyOf(outcome.rerun?.run.study.meta.checker, options.keys);
   if (stored.identity.fingerprint === envelope.manifest.signer.fingerprint) {
     throw new StudyFailure([
       {

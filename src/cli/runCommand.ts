@@ -6,7 +6,7 @@ import { UNSEALED_NOTICE, assembleReport, criteriaStatus } from '../report/html.
 import { PendingSet, currentSet, openReportFolder } from '../output/reportSet.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { buildManifest, serializeEnvelope, signManifest, verifyEnvelope } from '../seal/manifest.ts';
-import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
+import { unlockStoredKey } from '../seal/keystore.ts';
 import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedReport.ts';
 import { installationFacts, reportStylesheet } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
@@ -16,9 +16,8 @@ import { readPassphrase } from './passphrase.ts';
 import { DRAFT_VARIANT, isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists, variantName } from './reportFiles.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
-import type { Person, RunLimits } from '../study/model.ts';
-import { SealError } from '../seal/errors.ts';
-import { keyNewCommandLine } from './keyCommand.ts';
+import type { RunLimits } from '../study/model.ts';
+import { loadDefaultKeyOf } from './keyCommand.ts';
 
 export interface RunOptions {
   out: string;
@@ -53,22 +52,10 @@ async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' |
   });
 }
 
-/** A folder without a key: the refusal gives the command that makes the engineer one. */
-function withKeyCommandHint<T>(load: () => T, engineer: Person, keysFolder: string): T {
-  try {
-    return load();
-  } catch (error) {
-    if (!(error instanceof SealError) || error.code !== 'seal-no-default-key') throw error;
-    throw new StudyFailure([
-      { ...error.diagnostics[0]!, hint: `make the signing key of ${engineer.name} first: ${keyNewCommandLine(engineer, keysFolder)}` },
-    ]);
-  }
-}
-
 /** Seal with the engineer's key, refusing a key that is not the engineer the study names. */
 async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ html: string; seal: string }> {
   const engineer = product.run.study.meta.engineer;
-  const stored = withKeyCommandHint(() => loadDefaultKey(keysFolder), engineer, keysFolder);
+  const stored = loadDefaultKeyOf(engineer, keysFolder);
   const signer = stored.identity;
   if (signer.name !== engineer.name || signer.licence !== engineer.licence || signer.jurisdiction !== engineer.jurisdiction) {
     throw new StudyFailure([

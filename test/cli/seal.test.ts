@@ -120,6 +120,15 @@ describe('sealing and checking from the command line', () => {
     expect(check.stdout).toContain('NOT in the trust folder');
   });
 
+  it("gives the command that makes the checker's key when counter-signing without one", async () => {
+    const signed = await cli(['check', 'build/TEST-1-r1.html', '--sign', '--keys', join(space.folder, 'no-keys')], space.folder, space.env);
+    expect(signed.status).toBe(1);
+    expect(signed.stderr).toContain('seal-no-default-key');
+    expect(signed.stderr).toContain(
+      `kvarbook key new --name <name> --licence <licence> --jurisdiction <jurisdiction> --keys ${join(space.folder, 'no-keys')}`,
+    );
+  });
+
   it('refuses to counter-sign with the key that sealed the report', async () => {
     const signed = await cli(['check', 'build/TEST-1-r1.html', '--sign'], space.folder, space.env);
     expect(signed.status).toBe(1);
