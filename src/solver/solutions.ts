@@ -1,6 +1,15 @@
 // Steady-state operating points of a two-port network: no load, receiving-end load, both end voltages, fixed sending voltage (Newton).
 import { Complex, angleDegOf, fromPolar, toPlain, type ComplexValue } from './complex.ts';
-import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
+import {
+  SolverDomainError,
+  assertFiniteResult,
+  forMessage,
+  loadForError,
+  optionalNumber,
+  requireChoice,
+  requireNumber,
+  requireObject,
+} from './errors.ts';
 import { requireInductiveSeriesPath } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import { abcdOf, elementsOf, labelOf, readTwoPort, type AbcdMatrix, type TwoPort } from './twoPort.ts';
@@ -263,9 +272,7 @@ export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load
   return new SolverDomainError({
     code: 'no-operating-point',
     quantity: 'load',
-    // The exact load stays in the diagnostic's value; the sentence a reader sees quotes it rounded.
-    value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
-    message: `load = P = ${forMessage(wToMw(load.re))} MW, Q = ${forMessage(varToMvar(load.im))} Mvar is outside the allowed range ${allowedRange}`,
+    ...loadForError(wToMw(load.re), varToMvar(load.im)),
     allowedRange,
     hint: 'No receiving voltage carries this load: it lies beyond the maximum loadability. Reduce the load, add shunt or series compensation, or raise the sending voltage.',
   });
