@@ -7,7 +7,7 @@ import { DEFAULT_DIGITS, formatCount, formatQuantity, formatStated } from './for
 import { type UnitProblem, convertQuantity, unitProblem } from '../study/units.ts';
 import type { CodesStartingWith } from '../diagnostics/codes.ts';
 import { Problem } from '../diagnostics/diagnostic.ts';
-import { summarise } from './summarise.ts';
+import { UnloggableValue, recordedValue } from './summarise.ts';
 import { freezeDeep } from '../execute/child/harden.ts';
 import { OUTPUT_LIMITS } from '../execute/limits.ts';
 import { TEXT_PROBLEM_HINTS, type TextRole, nameKey, outputTextProblem } from '../execute/outputText.ts';
@@ -210,8 +210,8 @@ export function createBlockApi(
     if (writtenCharacters > OUTPUT_LIMITS.studyOutputBytes) {
       throw new BlockApiError(
         'block-output-limit',
-        `the study has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all (results, tables, charts, printed text), which is all a report holds`,
-        'print less (console.log inside a loop adds up), or summarise long series in a table or a chart',
+        `the study has written more than ${OUTPUT_LIMITS.studyOutputBytes / 1024 / 1024} MB of output in all (results, tables, charts, printed text, and every solver call, which the calculation log records in full), which is all a report holds`,
+        'print less (console.log inside a loop adds up), summarise long series in a table or a chart, or call the solver fewer times (each call inside a long loop is logged whole)',
       );
     }
     const position = recorder.callerPosition();
@@ -398,8 +398,25 @@ export function createBlockApi(
     return new Figure(scalar, requireUnit('figure', String(value), unit), requireDigits('figure', String(value), digits));
   }
 
+  const logged = (functionName: string, what: string, value: unknown) => {
+    try {
+      return recordedValue(value);
+    } catch (error) {
+      if (!(error instanceof UnloggableValue)) throw error;
+      throw new BlockApiError(
+        'block-output-limit',
+        `solver.${functionName}: the calculation log records every value in full, and ${what} cannot be recorded: ${error.message}`,
+        'pass the solver plain data: numbers, texts, arrays and objects that do not refer to themselves',
+      );
+    }
+  };
   const solver = wrapSolver(solverModule, (functionName, args, returned) =>
-    emit({ kind: 'solver-call', functionName, argumentsSummary: summarise(args), returnedSummary: summarise(returned) }),
+    emit({
+      kind: 'solver-call',
+      functionName,
+      argumentsSummary: logged(functionName, 'its arguments', args),
+      returnedSummary: logged(functionName, 'its result', returned),
+    }),
   );
 
   const console = {

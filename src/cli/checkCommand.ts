@@ -6,10 +6,13 @@ import { styleText } from 'node:util';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { runStudy, type RunProduct } from '../pipeline.ts';
 import { embeddedStudySource } from '../report/embed.ts';
+import { criteriaStatus } from '../report/html.ts';
 import { checkSealedReport, withStep, type CheckOutcome, type RerunRequest } from '../seal/check.ts';
 import { serializeCheckRecord, signCheckRecord } from '../seal/checkRecord.ts';
 import { envelopeSha256 } from '../seal/manifest.ts';
-import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
+import { type SourceChange, sourceDifference } from '../seal/sourceDifference.ts';
+import { unlockStoredKey } from '../seal/keystore.ts';
+import { loadDefaultKeyOf } from './keyCommand.ts';
 import { describeSigner, loadTrustedIdentities, type TrustedIdentities } from '../seal/trust.ts';
 import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
@@ -86,10 +89,29 @@ function verdictLine(outcome: CheckOutcome, paint: (style: Parameters<typeof sty
   const word = verified ? paint(['bold', 'green'], 'VERIFIED') : paint(['bold', 'red'], 'NOT VERIFIED');
   const what = outcome.study ? `study ${outcome.study.id}, revision ${outcome.study.revision}` : 'no readable seal';
   const who = outcome.signer ? `, ${verified ? 'sealed' : 'seal signed'} by ${describeSigner(outcome.signer)}` : '';
-  return `verdict: ${word}: ${what}${who}`;
+  // What the seal says of the criteria; only a verified report's figures are vouched for.
+  const criteria = outcome.criteria ? criteriaStatus(outcome.criteria.notMet.length, outcome.criteria.total) : undefined;
+  const findings = criteria === undefined ? '' : verified ? `; figures verified; ${criteria}, as sealed` : `; the seal states ${criteria}`;
+  return `verdict: ${word}: ${what}${who}${findings}`;
 }
 
-function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: TrustedIdentities, terminal: Terminal, colour: boolean): void {
+/** Changed lines a terminal shows of a copy that differs throughout; --json gives every one. */
+const CHANGED_LINES_SHOWN = 200;
+
+interface SourceComparison {
+  /** The study file the checker named, as the lines say it. */
+  sourceName: string;
+  sourceChanges: SourceChange[];
+}
+
+function describeOutcome(
+  outcome: CheckOutcome,
+  { sourceName, sourceChanges }: SourceComparison,
+  trustFolder: string,
+  trust: TrustedIdentities,
+  terminal: Terminal,
+  colour: boolean,
+): void {
   const paint = (style: Parameters<typeof styleText>[0], text: string) => (colour ? styleText(style, text) : text);
   terminal.say(trustLine(trustFolder, trust));
   for (const skipped of trust.problems.filter((problem) => problem.file !== trustFolder))
@@ -104,6 +126,16 @@ function describeOutcome(outcome: CheckOutcome, trustFolder: string, trust: Trus
   }
   for (const name of outcome.comparison?.missing ?? []) terminal.say(`   ${name}: sealed, but the re-run did not produce it`);
   for (const name of outcome.comparison?.extra ?? []) terminal.say(`   ${name}: produced by the re-run, but not sealed`);
+  let shown = 0;
+  for (const change of sourceChanges) {
+    if (shown >= CHANGED_LINES_SHOWN) break;
+    terminal.say(`   study source, line ${change.sealedLine} as sealed, line ${change.sourceLine} in ${sourceName}:`);
+    for (const line of change.removed) terminal.say(`     - ${line}`);
+    for (const line of change.added) terminal.say(`     + ${line}`);
+    shown += change.removed.length + change.added.length;
+  }
+  const notShown = sourceChanges.reduce((sum, change) => sum + change.removed.length + change.added.length, 0) - shown;
+  if (notShown > 0) terminal.say(`   … and ${notShown} more changed lines (--json lists them all)`);
   if (outcome.bodyDifference) {
     terminal.say(`   report body, line ${outcome.bodyDifference.line}:`);
     terminal.say(`     sealed: ${outcome.bodyDifference.sealed}`);
@@ -129,12 +161,22 @@ export async function checkCommand(reportPath: string, options: CheckOptions, te
   });
   // A PDF is what its reader sees: it verifies only as the exact print of the verified report.
   if (pdf) outcome = withStep(outcome, await pdfAsPrintedStep(pdf, outcome, source));
+  // A copy the checker holds that is not the sealed source: which lines differ from the source the report carries.
+  const sourceChanges = options.source && embedded !== undefined && source !== undefined ? sourceDifference(embedded, source) : [];
   if (options.json) {
     const { rerun: _rerun, ...findings } = outcome;
     process.stdout.write(
-      `${JSON.stringify({ report: reportPath, ...findings, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`,
+      `${JSON.stringify({ report: reportPath, ...findings, sourceDifference: sourceChanges, trustFolder: { path: options.trust, state: trust.folder, identities: trust.identities.length }, trustProblems: trust.problems }, null, 2)}\n`,
     );
-  } else describeOutcome(outcome, options.trust, trust, terminal, Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR);
+  } else
+    describeOutcome(
+      outcome,
+      { sourceName: options.source ?? '', sourceChanges },
+      options.trust,
+      trust,
+      terminal,
+      Boolean(process.stdout.isTTY) && !launchEnvironment().NO_COLOR,
+    );
   if (options.sign) await countersign(reportPath, html, outcome, options, terminal);
   return outcome.verdict === 'verified' ? 0 : 1;
 }
@@ -146,7 +188,7 @@ async function countersign(reportPath: string, html: string, outcome: CheckOutco
     throw new StudyFailure([
       { code: 'check-unsignable', message: 'there is no readable seal to counter-sign', hint: 'only a sealed report can be counter-signed' },
     ]);
-  const stored = loadDefaultKey(options.keys);
+  const stored = loadDefaultKeyOf(outcome.rerun?.run.study.meta.checker, options.keys);
   if (stored.identity.fingerprint === envelope.manifest.signer.fingerprint) {
     throw new StudyFailure([
       {

@@ -1,9 +1,13 @@
 // `kvarbook key`: make an engineer's signing key, and show the public identity others put in their trust folder.
 import { writeFileSync } from 'node:fs';
 import { createSigningKey } from '../seal/keys.ts';
-import { exportIdentity, loadDefaultKey, saveKey } from '../seal/keystore.ts';
+import { type StoredKey, exportIdentity, loadDefaultKey, saveKey } from '../seal/keystore.ts';
+import { SealError } from '../seal/errors.ts';
+import { StudyFailure } from '../diagnostics/diagnostic.ts';
+import { homeFolders } from './homeFolders.ts';
 import { readPassphrase } from './passphrase.ts';
 import type { Terminal } from './terminal.ts';
+import type { Person } from '../study/model.ts';
 
 export interface KeyNewOptions {
   name: string;
@@ -29,4 +33,29 @@ export async function keyShowCommand(options: { keys: string; out?: string }, te
     terminal.say(`public identity written to ${options.out}`);
   } else process.stdout.write(identity);
   return 0;
+}
+
+/** A word as a POSIX shell reads it back unchanged: bare when it holds only safe characters, else in single quotes. */
+function shellWord(word: string): string {
+  return /^[\w.,:@%+=/-]+$/.test(word) ? word : `'${word.replaceAll("'", "'\\''")}'`;
+}
+
+/** The `kvarbook key new` line that makes `person` a signing key in `keysFolder`, to paste as it stands (placeholders for what is not known). */
+export function keyNewCommandLine(person: Person | undefined, keysFolder: string): string {
+  const words = ['kvarbook', 'key', 'new', '--name', person ? shellWord(person.name) : '<name>'];
+  words.push('--licence', person?.licence ? shellWord(person.licence) : '<licence>');
+  words.push('--jurisdiction', person?.jurisdiction ? shellWord(person.jurisdiction) : '<jurisdiction>');
+  if (keysFolder !== homeFolders().keys) words.push('--keys', shellWord(keysFolder));
+  return words.join(' ');
+}
+
+/** The default key of `keysFolder`; a folder without one is refused with the command that makes `person` one. */
+export function loadDefaultKeyOf(person: Person | undefined, keysFolder: string): StoredKey {
+  try {
+    return loadDefaultKey(keysFolder);
+  } catch (error) {
+    if (!(error instanceof SealError) || error.code !== 'seal-no-default-key') throw error;
+    const whose = person ? `the signing key of ${person.name}` : 'your signing key';
+    throw new StudyFailure([{ ...error.diagnostics[0]!, hint: `make ${whose} first: ${keyNewCommandLine(person, keysFolder)}` }]);
+  }
 }

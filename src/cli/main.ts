@@ -78,6 +78,7 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
       .argument('<study>', 'the study file (.study.md)')
       .option('-o, --out <dir>', 'folder for the report files', 'build')
       .option('-s, --set <name=value>', 'override an input for this run, e.g. --set lineLength=280km (repeatable)', collect, [])
+      .option('--variant <name>', 'the word in the file names of a run with --set (default: the overrides written out)')
       .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)'))
       .option('--pdf', 'also print the report to PDF with the system Chromium (or set report.pdf in the front matter)')
       .option('--seal', "seal the report with the engineer's signing key")

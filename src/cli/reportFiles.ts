@@ -5,6 +5,8 @@ import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { RunProduct } from '../pipeline.ts';
 import { readSealedHtml } from '../seal/sealedReport.ts';
 import { SUPERSEDED, type ReportFolder, type ReportSet } from '../output/reportSet.ts';
+import { sha256Hex } from '../seal/digest.ts';
+import type { InputOverride } from '../study/inputs.ts';
 
 export interface ReportPaths {
   base: string;
@@ -29,8 +31,51 @@ export function resultsJsonText(product: Pick<RunProduct, 'results'>): string {
   return `${JSON.stringify(product.results, byFileName, 2)}\n`;
 }
 
-export function reportPaths(outFolder: string, studyId: string, revision: number): ReportPaths {
-  const base = join(outFolder, `${studyId}-r${revision}`);
+/** A variant's own word in its file names: letters, digits, "_" and "-"; never a dot, which separates the parts of a name. */
+const VARIANT_NAME = /^[A-Za-z0-9][A-Za-z0-9_-]{0,63}$/;
+const MAX_VARIANT_LENGTH = 64;
+/** The word of a draft written beside a sealed report of the same id and revision. */
+export const DRAFT_VARIANT = 'draft';
+
+/**
+ * The word that sets a variant's files apart from the base case's: `--variant` as given, else the overrides written
+ * out (`lineLength=280 km` -> `lineLength-280km`, sorted by input, "." as "p"), so that the same overrides write the same
+ * files. A list too long for a file name keeps its start and a hash of the whole. Undefined for the base case.
+ */
+export function variantName(overrides: readonly InputOverride[], variant: string | undefined): string | undefined {
+  if (variant !== undefined) {
+    if (!VARIANT_NAME.test(variant)) {
+      throw new StudyFailure([
+        {
+          code: 'variant-name',
+          message: `--variant "${variant}" cannot name report files`,
+          hint: 'use letters, digits, "_" and "-" only (at most 64, starting with a letter or digit), e.g. --variant light-load',
+          quantity: '--variant',
+          expected: 'letters, digits, "_" and "-", at most 64',
+          actual: variant,
+        },
+      ]);
+    }
+    return variant;
+  }
+  if (overrides.length === 0) return undefined;
+  const word = (text: string) =>
+    text
+      .replace(/\s+/g, '')
+      .replaceAll('.', 'p')
+      .replace(/[^A-Za-z0-9-]+/g, '_');
+  const written = [...overrides]
+    .sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0))
+    .map((override) => `${word(override.name)}-${word(override.text)}`)
+    .join('_');
+  if (written.length <= MAX_VARIANT_LENGTH) return written;
+  const hash = sha256Hex(written).slice(0, 12);
+  return `${written.slice(0, MAX_VARIANT_LENGTH - hash.length - 1)}-${hash}`;
+}
+
+/** The files of a report of one study id and revision, or of one of its variants (a word between the revision and the kind). */
+export function reportPaths(outFolder: string, studyId: string, revision: number, variant?: string): ReportPaths {
+  const base = join(outFolder, `${studyId}-r${revision}${variant === undefined ? '' : `.${variant}`}`);
   return {
     base,
     html: `${base}.html`,
@@ -43,8 +88,8 @@ export function reportPaths(outFolder: string, studyId: string, revision: number
 }
 
 /** The output folder as a set of report files of one study id and revision. */
-export function reportFolder(outFolder: string, studyId: string, revision: number): ReportFolder {
-  const paths = reportPaths(outFolder, studyId, revision);
+export function reportFolder(outFolder: string, studyId: string, revision: number, variant?: string): ReportFolder {
+  const paths = reportPaths(outFolder, studyId, revision, variant);
   return {
     out: outFolder,
     base: basename(paths.base),
@@ -75,8 +120,8 @@ export function sealedReportExists(paths: ReportPaths): StudyFailure {
   return new StudyFailure([
     {
       code: 'sealed-report-exists',
-      message: `${paths.html} is a sealed report of this study id and revision; kvarbook will not overwrite it`,
-      hint: `raise "revision" in the front matter for a new issue of the study, or pass --replace-sealed to move the sealed set to ${SUPERSEDED}/ and write a new one`,
+      message: `${paths.html} is a sealed report of this study id and revision; kvarbook will not seal over it`,
+      hint: `raise "revision" in the front matter for a new issue of the study, or pass --replace-sealed to move the sealed set to ${SUPERSEDED}/ and write a new one (a run without --seal writes a draft beside it)`,
     },
   ]);
 }

@@ -6,21 +6,24 @@ import { UNSEALED_NOTICE, assembleReport, criteriaStatus } from '../report/html.
 import { PendingSet, currentSet, openReportFolder } from '../output/reportSet.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { buildManifest, serializeEnvelope, signManifest, verifyEnvelope } from '../seal/manifest.ts';
-import { loadDefaultKey, unlockStoredKey } from '../seal/keystore.ts';
+import { unlockStoredKey } from '../seal/keystore.ts';
 import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedReport.ts';
 import { installationFacts, reportStylesheet } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { typecheckCache } from './typecheckCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
-import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
+import { DRAFT_VARIANT, isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists, variantName } from './reportFiles.ts';
 import { printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 import type { RunLimits } from '../study/model.ts';
+import { loadDefaultKeyOf } from './keyCommand.ts';
 
 export interface RunOptions {
   out: string;
   set: string[];
+  /** The word a variant's file names carry instead of its overrides written out. */
+  variant?: string;
   typecheck: boolean;
   seal?: boolean;
   pdf?: boolean;
@@ -57,8 +60,8 @@ export async function produceStudy(
 
 /** Seal with the engineer's key, refusing a key that is not the engineer the study names. */
 async function sealedFiles(product: RunProduct, keysFolder: string): Promise<{ html: string; seal: string }> {
-  const stored = loadDefaultKey(keysFolder);
   const engineer = product.run.study.meta.engineer;
+  const stored = loadDefaultKeyOf(engineer, keysFolder);
   const signer = stored.identity;
   if (signer.name !== engineer.name || signer.licence !== engineer.licence || signer.jurisdiction !== engineer.jurisdiction) {
     throw new StudyFailure([
@@ -89,16 +92,27 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
       },
     ]);
   }
+  const variant = variantName(parseOverrideArguments(options.set), options.variant);
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();
   const { meta } = product.run.study;
-  const paths = reportPaths(options.out, meta.id, meta.revision);
   const sealed = options.seal ? await sealedFiles(product, options.keys as string) : undefined;
-  const folder = reportFolder(options.out, meta.id, meta.revision);
+  let paths = reportPaths(options.out, meta.id, meta.revision, variant);
+  let folder = reportFolder(options.out, meta.id, meta.revision, variant);
   await openReportFolder(folder, isSealedSet);
-  const previous = currentSet(folder);
-  const previousSealed = await isSealedSet(previous);
-  if (previousSealed && !options.replaceSealed) throw sealedReportExists(paths);
+  let previous = currentSet(folder);
+  let previousSealed = await isSealedSet(previous);
+  if (previousSealed && !options.replaceSealed) {
+    if (sealed) throw sealedReportExists(paths);
+    // A draft never touches the sealed report: it is written beside it, under a name of its own.
+    terminal.say(`the sealed report ${paths.html} is kept; this draft is written beside it`);
+    const draft = variant === undefined ? DRAFT_VARIANT : `${variant}-${DRAFT_VARIANT}`;
+    paths = reportPaths(options.out, meta.id, meta.revision, draft);
+    folder = reportFolder(options.out, meta.id, meta.revision, draft);
+    await openReportFolder(folder, isSealedSet);
+    previous = currentSet(folder);
+    previousSealed = await isSealedSet(previous);
+  }
   const html = sealed ? sealed.html : assembleReport(product.report, UNSEALED_NOTICE);
   const resultsJson = resultsJsonText(product);
   // Every file of the run goes into one fresh set, switched in only once all are written: a killed
@@ -119,7 +133,8 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
           studySource: product.run.study.source,
           resultsJson,
           ...(sealed ? { sealJson: sealed.seal } : {}),
-          htmlFileName: basename(paths.html),
+          // The PDF carries its files under the study's own names, as a checker's fresh print names them.
+          htmlFileName: basename(reportPaths('.', meta.id, meta.revision).html),
         });
         pending.write(basename(paths.pdf), pdf);
       } catch (error) {
@@ -140,6 +155,10 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   terminal.say(`results: ${paths.results}`);
   if (sealed) terminal.say(`seal: ${paths.seal}`);
   terminal.say(`criteria: ${criteriaStatus(failed, criteria.length)}`);
+  if (sealed && failed > 0) {
+    const names = criteria.filter((criterion) => !criterion.passed).map((criterion) => criterion.name);
+    terminal.warn(`sealed with ${criteriaStatus(failed, criteria.length)}: ${names.join(', ')}`);
+  }
   if (pdfFailure) throw pdfFailure;
   if (options.pdf || meta.report.pdf) terminal.say(`pdf: ${paths.pdf}`);
   return 0;

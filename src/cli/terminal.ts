@@ -4,6 +4,8 @@ import { excerptAround } from './excerpt.ts';
 
 export interface Terminal {
   say(line: string): void;
+  /** Something the user must know though the command succeeded: one line on stderr. */
+  warn(line: string): void;
   progress(line: string): void;
   progressDone(): void;
   /** Lends the terminal a study's text, so that every problem located in that study prints with its lines. */
@@ -96,6 +98,10 @@ export function processTerminal(streams: Streams = { out: process.stdout, err: p
     say: (line) => {
       clear();
       streams.out.write(`${printable(line, true)}\n`);
+    },
+    warn: (line) => {
+      clear();
+      streams.err.write(`kvarbook: warning: ${printable(line)}\n`);
     },
     progress: (line) => {
       if (!interactive) return;

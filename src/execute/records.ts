@@ -71,7 +71,7 @@ export interface TextRecord {
 export interface SolverCallRecord {
   kind: 'solver-call';
   functionName: string;
-  /** Arguments and return value, with long arrays summarised so the log stays readable. */
+  /** Arguments and return value in full, as the calculation log records them (the names are kept for the records' shape). */
   argumentsSummary: unknown;
   returnedSummary: unknown;
 }

@@ -5,9 +5,9 @@ import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { LocatedRecord } from '../execute/session.ts';
 import type { CriterionRecord, ResultRecord, TableRecord } from '../execute/records.ts';
 import { columnFormat, displayUnit, formatLimits, formatQuantity, formatStated } from '../blocks/format.ts';
-import { type StudyRun, cautionsOf, recordsOf } from './studyRun.ts';
+import { type StudyRun, calculationLogSteps, cautionsOf, recordsOf, solverCallOptions } from './studyRun.ts';
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
-import { escapeHtml } from './escape.ts';
+import { escapeHtml, hashHtml } from './escape.ts';
 import { describeLimits } from './provenance.ts';
 
 // The study body's markdown-it, with the report's rules (below) registered once.
@@ -299,58 +299,72 @@ function inputsTable(run: StudyRun): string {
   return `<table class="data inputs"><thead><tr><th>Input</th><th>Value</th><th>Allowed range</th><th>Source</th><th>Description</th></tr></thead><tbody>\n${rows}\n</tbody></table>`;
 }
 
-const LOG_TEXT_LIMIT = 420;
+/** Items of an array the log line shows; a longer array is shown by its size and where results.json holds it. */
+const LOG_INLINE_ITEMS = 7;
+/** Levels of nesting the log line writes out; deeper values are pointed to in results.json. */
+const LOG_INLINE_DEPTH = 3;
 
-/** A solver argument or result as a reader scans it: names and values, two-ports by their label, long arrays by their ends. */
-function logText(value: unknown, depth = 0): string {
-  if (value === null || value === undefined) return '—';
-  if (typeof value === 'number') return formatStated(value, 5);
-  if (typeof value === 'boolean') return value ? 'yes' : 'no';
-  if (typeof value === 'string') return value;
-  if (Array.isArray(value)) return `[${value.map((item) => logText(item, depth + 1)).join(', ')}]`;
-  if (typeof value !== 'object') return String(value);
-  const record = value as Record<string, unknown>;
-  if (typeof record.kind === 'string' && 'A' in record && 'B' in record)
-    return `${record.kind}${typeof record.label === 'string' ? ` “${record.label}”` : ''}`;
-  if (typeof record.re === 'number' && typeof record.im === 'number' && Object.keys(record).length === 2) {
-    return `${formatStated(record.re, 5)} ${record.im < 0 ? '−' : '+'} j${formatStated(Math.abs(record.im), 5)}`;
-  }
-  if (typeof record.items === 'number' && Array.isArray(record.first) && Array.isArray(record.last)) {
-    return `${record.items} values: ${(record.first as unknown[]).map((item) => logText(item, depth + 1)).join(', ')} … ${(record.last as unknown[]).map((item) => logText(item, depth + 1)).join(', ')}`;
-  }
-  if (depth >= 2) return '{…}';
-  const fields = Object.entries(record).map(([key, item]) => `${key} ${logText(item, depth + 1)}`);
-  return depth === 0 ? fields.join('; ') : `{${fields.join(', ')}}`;
+/** Where results.json holds a value the log line points to: the solver call's step and the value's path in it. */
+interface LogPlace {
+  step: number;
+  path: string;
 }
 
-function compactLogText(value: unknown): string {
-  const text = logText(value);
-  return text.length > LOG_TEXT_LIMIT ? `${text.slice(0, LOG_TEXT_LIMIT)}…` : text;
+function pathTo(place: LogPlace, key: string | number): LogPlace {
+  const part = typeof key === 'number' ? `[${key}]` : /^[A-Za-z_$][\w$]*$/.test(key) ? `.${key}` : `[${JSON.stringify(key)}]`;
+  return { step: place.step, path: `${place.path}${part}` };
+}
+
+function pointer(what: string, place: LogPlace): string {
+  return `(${what}, in full in results.json: solverCallLog step ${place.step}, ${place.path})`;
+}
+
+/**
+ * A solver argument or result as the log line writes it: every text whole and every number to 15 significant figures
+ * (as the inputs table gives them); a two-port an argument names by its label (the call that made it is logged in full);
+ * an array longer than a line can hold, or a value nested deeper, by what it is and where results.json holds it whole.
+ */
+function logText(value: unknown, place: LogPlace, asArgument: boolean, depth = 0): string {
+  if (value === null || value === undefined) return '—';
+  if (typeof value === 'number') return formatStated(value, 15);
+  if (typeof value === 'boolean') return value ? 'yes' : 'no';
+  if (typeof value === 'string') return value;
+  if (typeof value !== 'object') return String(value);
+  if (Array.isArray(value)) {
+    // Items that would each be pointed to are pointed to as one array.
+    const nestedItems = depth + 1 >= LOG_INLINE_DEPTH && value.some((item) => typeof item === 'object' && item !== null);
+    if (value.length > LOG_INLINE_ITEMS || nestedItems) return pointer(`${value.length} items`, place);
+    return `[${value.map((item, index) => logText(item, pathTo(place, index), asArgument, depth + 1)).join(', ')}]`;
+  }
+  const record = value as Record<string, unknown>;
+  if (asArgument && typeof record.kind === 'string' && 'A' in record && 'B' in record)
+    return `${record.kind}${typeof record.label === 'string' ? ` “${record.label}”` : ''}`;
+  if (typeof record.re === 'number' && typeof record.im === 'number' && Object.keys(record).length === 2) {
+    return `${formatStated(record.re, 15)} ${record.im < 0 ? '−' : '+'} j${formatStated(Math.abs(record.im), 15)}`;
+  }
+  if (depth >= LOG_INLINE_DEPTH) return pointer('an object', place);
+  const fields = Object.entries(record).map(([key, item]) => `${key} ${logText(item, pathTo(place, key), asArgument, depth + 1)}`);
+  return depth === 0 ? fields.join('; ') : `{${fields.join(', ')}}`;
 }
 
 function calculationLog(run: StudyRun): string {
   const rows: string[] = [];
-  let step = 0;
-  for (const outcome of run.outcome.blocks) {
-    for (const record of outcome.records) {
-      let what: string;
-      let detail: string;
-      if (record.kind === 'result') {
-        what = `result <strong>${escapeHtml(record.name)}</strong>`;
-        detail = escapeHtml(formatQuantity(record.value, record.unit, record.digits));
-      } else if (record.kind === 'criterion') {
-        what = `criterion <strong>${escapeHtml(record.name)}</strong>`;
-        detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(formatLimits(record))}; ${record.passed ? 'meets' : 'fails'}`;
-      } else if (record.kind === 'solver-call') {
-        what = `solver <code>${escapeHtml(record.functionName)}</code>`;
-        // Solver functions take one options object; show it, not a one-element argument list.
-        const args =
-          Array.isArray(record.argumentsSummary) && record.argumentsSummary.length === 1 ? record.argumentsSummary[0] : record.argumentsSummary;
-        detail = `<div class="io"><span class="label">in</span> ${escapeHtml(compactLogText(args))}</div><div class="io"><span class="label">out</span> ${escapeHtml(compactLogText(record.returnedSummary))}</div>`;
-      } else continue;
-      step += 1;
-      rows.push(`<tr><td class="num">${step}</td><td>${record.at ? record.at.line : ''}</td><td>${what}</td><td>${detail}</td></tr>`);
+  for (const { step, record } of calculationLogSteps(run)) {
+    let what: string;
+    let detail: string;
+    if (record.kind === 'result') {
+      what = `result <strong>${escapeHtml(record.name)}</strong>`;
+      detail = escapeHtml(formatQuantity(record.value, record.unit, record.digits));
+    } else if (record.kind === 'criterion') {
+      what = `criterion <strong>${escapeHtml(record.name)}</strong>`;
+      detail = `${escapeHtml(formatQuantity(record.value, record.unit, record.digits))}; required ${escapeHtml(formatLimits(record))}; ${record.passed ? 'meets' : 'fails'}`;
+    } else {
+      what = `solver <code>${escapeHtml(record.functionName)}</code>`;
+      const given = logText(solverCallOptions(record), { step, path: 'arguments' }, true);
+      const returned = logText(record.returnedSummary, { step, path: 'returned' }, false);
+      detail = `<div class="io"><span class="label">in</span> ${escapeHtml(given)}</div><div class="io"><span class="label">out</span> ${escapeHtml(returned)}</div>`;
     }
+    rows.push(`<tr><td class="num">${step}</td><td>${record.at ? record.at.line : ''}</td><td>${what}</td><td>${detail}</td></tr>`);
   }
   if (rows.length === 0) return '<p class="quiet">No results, criteria or solver calls were recorded.</p>';
   return `<table class="log"><thead><tr><th>#</th><th>Line</th><th>Entry</th><th>Values</th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`;
@@ -363,8 +377,8 @@ function provenanceList(run: StudyRun): string {
     item('kvarbook', escapeHtml(p.kvarbookVersion)),
     item('Node.js', escapeHtml(p.nodeVersion)),
     item('Study file', `<code>${escapeHtml(p.studyFile)}</code>`),
-    item('SHA-256 of the study source', `<code class="hash">${escapeHtml(p.studySourceSha256)}</code>`),
-    item('SHA-256 of package-lock.json', `<code class="hash">${escapeHtml(p.lockfileSha256)}</code>`),
+    item('SHA-256 of the study source', `<code class="hash">${hashHtml(p.studySourceSha256)}</code>`),
+    item('SHA-256 of package-lock.json', `<code class="hash">${hashHtml(p.lockfileSha256)}</code>`),
     item('Type check of the blocks', p.typeChecked ? 'done' : 'skipped at the author’s request'),
     item('Isolation of the blocks', escapeHtml(p.isolation)),
     item('Limits', escapeHtml(describeLimits(p))),
@@ -449,7 +463,7 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts, stylesh
     {
       id: 'calculation-log',
       title: 'Calculation log',
-      content: `<p class="quiet">Every named result, criterion and solver call, in the order the study made them, with the study line it came from.</p>
+      content: `<p class="quiet">Every named result, criterion and solver call, in the order the study made them, with the study line it came from. Every value is given in full; a long array, or a value nested deeper than a line can show, is named with its place in the attached results.json (its solverCallLog holds every solver call whole, by step).</p>
 ${calculationLog(run)}`,
     },
     { id: 'provenance', title: 'Provenance', content: provenanceList(run) },

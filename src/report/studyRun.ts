@@ -22,6 +22,36 @@ export function recordsOf<K extends LocatedRecord['kind']>(run: StudyRun, kind: 
   );
 }
 
+/** One step of the calculation log: a result, a criterion or a solver call, numbered in the order the study made them. */
+export interface LogStep {
+  step: number;
+  record: Located<Extract<LocatedRecord, { kind: 'result' | 'criterion' | 'solver-call' }>>;
+}
+
+export function calculationLogSteps(run: StudyRun): LogStep[] {
+  const steps: LogStep[] = [];
+  for (const block of run.outcome.blocks)
+    for (const record of block.records)
+      if (record.kind === 'result' || record.kind === 'criterion' || record.kind === 'solver-call')
+        steps.push({ step: steps.length + 1, record: record as LogStep['record'] });
+  return steps;
+}
+
+/** What a solver call was given: solver functions take one options object, logged as that object rather than a list of one. */
+export function solverCallOptions(record: SolverCallRecord): unknown {
+  const args = record.argumentsSummary;
+  return Array.isArray(args) && args.length === 1 ? args[0] : args;
+}
+
+/** A solver call as results.json carries it: every argument and every returned value in full, by its log step. */
+export interface SolverCallEntry {
+  step: number;
+  functionName: string;
+  at?: SourceLocation;
+  arguments: unknown;
+  returned: unknown;
+}
+
 export interface CautionEntry {
   text: string;
   standing: boolean;
@@ -54,6 +84,8 @@ export interface ResultsDocument {
   criteria: Located<Omit<CriterionRecord, 'position'>>[];
   cautions: CautionEntry[];
   solverCalls: number;
+  /** The solver calls of the calculation log in full; the report's log points here for what it does not show inline. */
+  solverCallLog: SolverCallEntry[];
   provenance: Provenance;
 }
 
@@ -82,6 +114,19 @@ export function resultsDocument(run: StudyRun): ResultsDocument {
     criteria: recordsOf(run, 'criterion'),
     cautions: cautionsOf(run),
     solverCalls: recordsOf(run, 'solver-call').length as number,
+    solverCallLog: calculationLogSteps(run).flatMap(({ step, record }) =>
+      record.kind === 'solver-call'
+        ? [
+            {
+              step,
+              functionName: record.functionName,
+              ...(record.at ? { at: record.at } : {}),
+              arguments: solverCallOptions(record),
+              returned: record.returnedSummary,
+            },
+          ]
+        : [],
+    ),
     provenance: run.provenance,
   };
 }

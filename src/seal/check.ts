@@ -68,6 +68,8 @@ export interface CheckOutcome {
   /** From the re-run: how many calculation blocks there are, and which keep their code out of the report. */
   blocks: { total: number; hidden: HiddenBlock[] } | null;
   bodyDifference: BodyDifference | null;
+  /** The criteria as the seal records them: how many, and the names of those not met; null when no seal could be read. */
+  criteria: { total: number; notMet: string[] } | null;
   /** The re-run itself, for steps the edge adds (the PDF); not part of any record. */
   rerun: RunProduct | null;
 }
@@ -87,6 +89,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
       study: null,
       blocks: null,
       bodyDifference: null,
+      criteria: null,
       rerun: null,
     };
   }
@@ -217,6 +220,9 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
     study: manifest ? { id: manifest.studyId, revision: manifest.revision, title: manifest.title } : null,
     blocks: rerun ? { total: rerun.run.study.blocks.length, hidden: hiddenBlocks(rerun.run.study.blocks) } : null,
     bodyDifference,
+    criteria: manifest
+      ? { total: manifest.criteria.length, notMet: manifest.criteria.filter((criterion) => !criterion.passed).map((criterion) => criterion.name) }
+      : null,
     rerun,
   };
 }

@@ -1,9 +1,9 @@
 // A sealed HTML report: the seal and check records in the seal slot, and reading them back byte for byte.
 import { SEAL_SLOT_END, SEAL_SLOT_START, assembleReport, type ReportParts } from '../report/html.ts';
 import type { ResultsDocument } from '../report/studyRun.ts';
-import { formatLimits } from '../blocks/format.ts';
+import { formatLimits, formatQuantity, formatStated } from '../blocks/format.ts';
 import { jsonScript, jsonScriptTexts } from '../report/embed.ts';
-import { escapeHtml } from '../report/escape.ts';
+import { escapeHtml, hashHtml } from '../report/escape.ts';
 import { serializeCheckRecord, type CheckRecord } from './checkRecord.ts';
 import { serializeEnvelope, type SealEnvelope, type SealSubject } from './manifest.ts';
 import { sha256Hex } from './digest.ts';
@@ -53,17 +53,25 @@ export function sealSubject(results: ResultsDocument, bodySha256: string): SealS
   };
 }
 
+/** A seal over overridden inputs is a variant's, and says so with the values it was sealed with (signed in the manifest). */
+function variantLine(envelope: SealEnvelope): string {
+  const overridden = Object.entries(envelope.manifest.effectiveInputs).filter(([, input]) => input.source === 'overridden');
+  if (overridden.length === 0) return '';
+  const values = overridden.map(([name, input]) => `${escapeHtml(name)} = ${escapeHtml(formatQuantity(formatStated(input.value, 15), input.unit))}`);
+  return `<p class="variant"><strong>This is a variant of the study</strong>: sealed with ${values.join(', ')} in place of the values the study gives.</p>\n`;
+}
+
 function sealSection(envelope: SealEnvelope, checks: readonly CheckRecord[]): string {
   const signer = envelope.manifest.signer;
   const checkLines = checks
     .map((check) => {
       const who = check.statement.checker;
-      return `<p class="countersign"><strong>Checked</strong> by ${escapeHtml(who.name)}, licence ${escapeHtml(who.licence)} (${escapeHtml(who.jurisdiction)}), on ${escapeHtml(check.statement.checkedOn)}: <strong>${check.statement.verdict === 'verified' ? 'every figure re-computed and verified' : 'check FAILED'}</strong>. Key <span class="fingerprint">${escapeHtml(who.fingerprint)}</span>.</p>`;
+      return `<p class="countersign"><strong>Checked</strong> by ${escapeHtml(who.name)}, licence ${escapeHtml(who.licence)} (${escapeHtml(who.jurisdiction)}), on ${escapeHtml(check.statement.checkedOn)}: <strong>${check.statement.verdict === 'verified' ? 'every figure re-computed and verified' : 'check FAILED'}</strong>. Key <span class="fingerprint">${hashHtml(who.fingerprint)}</span>.</p>`;
     })
     .join('\n');
   return `<section class="seal sealed" id="seal">
 <p><strong>Sealed</strong> by ${escapeHtml(signer.name)}, licence ${escapeHtml(signer.licence)} (${escapeHtml(signer.jurisdiction)}), for the study dated ${escapeHtml(envelope.manifest.studyDate)}.</p>
-<p>Signing key <span class="fingerprint">${escapeHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
+${variantLine(envelope)}<p>Signing key <span class="fingerprint">${hashHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
 ${checkLines}
 </section>`;
 }

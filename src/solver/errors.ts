@@ -21,14 +21,22 @@ export interface SolverDomainErrorDetails {
   value: number | string | null;
   allowedRange: string;
   hint: string;
+  /** The value as the sentence quotes it, when `value` is a text holding exact numbers (the diagnostic keeps those). */
+  shownValue?: string;
   /** Replaces the standard "quantity = value is outside ..." sentence when the situation reads better otherwise. */
   message?: string;
 }
 
+/** A number in the sentence is rounded for the reader; the diagnostic's `actual` keeps it exact. */
 function formatValue(value: number | string | null): string {
   if (value === null) return 'missing';
-  if (typeof value === 'number') return String(value);
+  if (typeof value === 'number') return forMessage(value);
   return value;
+}
+
+/** A load as an error gives it: exact for the diagnostic's value, rounded for the sentence. */
+export function loadForError(pMw: number, qMvar: number): { value: string; shownValue: string } {
+  return { value: `P = ${pMw} MW, Q = ${qMvar} Mvar`, shownValue: `P = ${forMessage(pMw)} MW, Q = ${forMessage(qMvar)} Mvar` };
 }
 
 /**
@@ -48,7 +56,7 @@ export class SolverDomainError extends Problem {
       details.message ??
       (details.value === null
         ? `${details.quantity} is missing; it must be in the allowed range ${details.allowedRange}`
-        : `${details.quantity} = ${formatValue(details.value)} is outside the allowed range ${details.allowedRange}`);
+        : `${details.quantity} = ${details.shownValue ?? formatValue(details.value)} is outside the allowed range ${details.allowedRange}`);
     super(
       {
         code: details.code,

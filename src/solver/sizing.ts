@@ -4,6 +4,7 @@ import {
   SolverDomainError,
   assertFiniteResult,
   forMessage,
+  loadForError,
   optionalNumber,
   requireArray,
   requireChoice,
@@ -489,8 +490,8 @@ export function svcRange(options: {
       throw new SolverDomainError({
         code: 'no-operating-point',
         quantity: `loadCases[${index}] ('${label}')`,
-        value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
-        allowedRange: `loads for which some SVC output holds the bus near ${referenceVoltageKv} kV`,
+        ...loadForError(wToMw(load.re), varToMvar(load.im)),
+        allowedRange: `loads for which some SVC output holds the bus near ${forMessage(referenceVoltageKv)} kV`,
         hint: 'The bus voltage cannot be held on the SVC characteristic for this load with this sending voltage; the load lies beyond the network transfer capability.',
       });
     }

@@ -1,6 +1,15 @@
 // Steady-state operating points of a two-port network: no load, receiving-end load, both end voltages, fixed sending voltage (Newton).
 import { Complex, angleDegOf, fromPolar, toPlain, type ComplexValue } from './complex.ts';
-import { SolverDomainError, assertFiniteResult, forMessage, optionalNumber, requireChoice, requireNumber, requireObject } from './errors.ts';
+import {
+  SolverDomainError,
+  assertFiniteResult,
+  forMessage,
+  loadForError,
+  optionalNumber,
+  requireChoice,
+  requireNumber,
+  requireObject,
+} from './errors.ts';
 import { requireInductiveSeriesPath } from './elements.ts';
 import { VOLTAGE_RANGE_KV } from './lineModels.ts';
 import { abcdOf, elementsOf, labelOf, readTwoPort, type AbcdMatrix, type TwoPort } from './twoPort.ts';
@@ -259,11 +268,12 @@ export function deliveredReactiveVa(abcd: AbcdMatrix, sendingLineV: number, busV
 
 export function beyondNoseError(abcd: AbcdMatrix, sendingVoltageKv: number, load: Complex): SolverDomainError {
   const multiple = noseLoadMultiple(abcd, kvToV(sendingVoltageKv), load);
+  const allowedRange = `up to P = ${forMessage(wToMw(multiple * load.re))} MW, Q = ${forMessage(varToMvar(multiple * load.im))} Mvar at this power factor (the nose of the P-V curve at Vs = ${forMessage(sendingVoltageKv)} kV)`;
   return new SolverDomainError({
     code: 'no-operating-point',
     quantity: 'load',
-    value: `P = ${wToMw(load.re)} MW, Q = ${varToMvar(load.im)} Mvar`,
-    allowedRange: `up to P = ${forMessage(wToMw(multiple * load.re))} MW, Q = ${forMessage(varToMvar(multiple * load.im))} Mvar at this power factor (the nose of the P-V curve at Vs = ${sendingVoltageKv} kV)`,
+    ...loadForError(wToMw(load.re), varToMvar(load.im)),
+    allowedRange,
     hint: 'No receiving voltage carries this load: it lies beyond the maximum loadability. Reduce the load, add shunt or series compensation, or raise the sending voltage.',
   });
 }

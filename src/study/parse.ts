@@ -1,7 +1,7 @@
 // Parse stage: study source text -> Study (front matter, inputs, calculation blocks, inline values), or located diagnostics.
 import type { Token } from 'markdown-it';
-import { LineCounter, parseDocument, isMap, type Document } from 'yaml';
-import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
+import { LineCounter, parseDocument, isMap, isScalar, visit, type Document, type Pair } from 'yaml';
+import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnostics/diagnostic.ts';
 import { createMarkdown, INLINE_VALUE_TOKEN } from './markdown.ts';
 import { readInputs } from './inputs.ts';
 import { readMeta } from './meta.ts';
@@ -10,7 +10,8 @@ import type { YamlPlace } from './yamlFields.ts';
 import { sha256Hex } from '../seal/digest.ts';
 
 const FENCE_LINE = /^---\s*$/;
-const CALC_LANGUAGE = 'ts';
+/** The fence languages a calculation block is written in: an author who writes the name out means the same block. */
+const CALC_LANGUAGES: readonly string[] = ['ts', 'typescript'];
 const BLOCK_OPTION_WORDS = { 'hide-code': 'hideCode', 'no-run': 'noRun' } as const;
 
 export function parseStudy(file: string, source: string): Study {
@@ -41,27 +42,34 @@ export function parseStudy(file: string, source: string): Study {
   const yamlFirstLine = 2;
   const lineCounter = new LineCounter();
   const document = parseDocument(yamlText, { lineCounter, prettyErrors: false, uniqueKeys: true });
+  const span = (from: number, to: number): SourceLocation => {
+    const start = lineCounter.linePos(from);
+    const end = lineCounter.linePos(to);
+    return { file, line: start.line + yamlFirstLine - 1, column: start.col, endLine: end.line + yamlFirstLine - 1, endColumn: end.col };
+  };
   const place: YamlPlace = {
     at(node, fallbackLine = yamlFirstLine) {
       const offset = node?.range?.[0];
       if (offset === undefined) return { file, line: fallbackLine };
-      const { line, col } = lineCounter.linePos(offset);
       // The end of the node's value (not of a comment after it): a caret can span a scalar.
-      const end = lineCounter.linePos(node?.range?.[1] ?? offset);
-      return { file, line: line + yamlFirstLine - 1, column: col, endLine: end.line + yamlFirstLine - 1, endColumn: end.col };
+      return span(offset, node?.range?.[1] ?? offset);
     },
   };
-  for (const error of document.errors) {
-    const { line, col } = lineCounter.linePos(error.pos[0]);
-    const studyLine = line + yamlFirstLine - 1;
-    diagnostics.push({
-      code: 'front-matter-yaml',
-      message: `the front matter is not valid YAML: ${error.message.split('\n')[0]}`,
-      at: { file, line: studyLine, column: col },
-      hint: 'check indentation and quoting; a value with a colon needs quotes',
-    });
+  // The parser's later errors follow from its first (a missing quote also leaves a mapping unclosed): one mistake, one error.
+  const [yamlError] = document.errors;
+  if (yamlError) {
+    const { line, col } = lineCounter.linePos(yamlError.pos[0]);
+    throw new StudyFailure([
+      {
+        code: 'front-matter-yaml',
+        message: `the front matter is not valid YAML: ${yamlError.message.split('\n')[0]}`,
+        at: { file, line: line + yamlFirstLine - 1, column: col },
+        hint: 'check indentation and quoting; a value with a colon needs quotes',
+      },
+    ]);
   }
-  if (diagnostics.length > 0) throw new StudyFailure(diagnostics);
+  const commas = flowCommaProblems(document, yamlText, span);
+  if (commas.length > 0) throw new StudyFailure(commas);
   if (!isMap(document.contents)) {
     throw new StudyFailure([
       {
@@ -96,6 +104,45 @@ export function parseStudy(file: string, source: string): Study {
   };
 }
 
+/**
+ * In a `{ }` mapping a comma ends the value, so `{ value: 1,000 MW }` is valid YAML with a key "000 MW" and no value: the
+ * study would fail on that key and on the value "1", far from the cause. A key without a value in a `{ }` mapping means
+ * nothing in a study; each is reported once, as the comma it is, spanning the value as written.
+ */
+function flowCommaProblems(document: Document, yamlText: string, span: (from: number, to: number) => SourceLocation): Diagnostic[] {
+  const problems: Diagnostic[] = [];
+  visit(document, {
+    Map(_, map) {
+      if (!map.flow) return;
+      const pairs = map.items as Pair[];
+      const stray = (pair: Pair | undefined) => pair !== undefined && pair.value === null && isScalar(pair.key) && pair.key.range !== undefined;
+      pairs.forEach((pair, index) => {
+        // Several commas in one value ("1,000,000 MW") leave a run of stray keys: one problem, at the last.
+        if (!stray(pair) || stray(pairs[index + 1]) || !isScalar(pair.key) || !pair.key.range) return;
+        let first = index;
+        while (stray(pairs[first - 1])) first -= 1;
+        const previous = pairs[first - 1];
+        // Where the value the comma cut short starts: the previous pair's value, else the stray key itself.
+        const cut = previous && isScalar(previous.key) && isScalar(previous.value) && previous.value.range ? previous : undefined;
+        const from = cut ? (cut.value as { range: [number, number] }).range[0] : (pairs[first]!.key as { range: [number, number] }).range[0];
+        const written = yamlText.slice(from, pair.key.range[1]);
+        const key = cut ? String((cut.key as { value: unknown }).value) : undefined;
+        const quoted = key ? `${key}: "${written}"` : `"${written}"`;
+        const unseparated = /^\d{1,3}(,\d{3})+(?!\d)/.test(written)
+          ? ` (or write the number without the separator: ${written.replaceAll(',', '')})`
+          : '';
+        problems.push({
+          code: 'front-matter-flow-comma',
+          message: `the comma in "${written}" ends the value inside { }: YAML reads "${String(pair.key.value)}" as a key of its own`,
+          at: span(from, pair.key.range[1]),
+          hint: `inside { } a comma separates keys; put a value that holds a comma in quotes: ${quoted}${unseparated}`,
+        });
+      });
+    },
+  });
+  return problems;
+}
+
 function collectBlocksAndInlines(
   file: string,
   lines: string[],
@@ -115,7 +162,7 @@ function collectBlocksAndInlines(
     if (token.type === 'fence' && token.map) {
       const fenceLine = token.map[0] + bodyFirstLine;
       const [language, ...words] = token.info.trim().split(/\s+/);
-      if (language !== CALC_LANGUAGE) continue;
+      if (!CALC_LANGUAGES.includes(language?.toLowerCase() ?? '')) continue;
       checkFenceClosed(file, lines, token, fenceLine, bodyFirstLine, diagnostics);
       const options = { hideCode: false, noRun: false };
       for (const word of words) {
@@ -126,7 +173,7 @@ function collectBlocksAndInlines(
             code: 'block-option-unknown',
             message: `unknown calculation block option "${word}"`,
             at: { file, line: fenceLine, column: 1 },
-            hint: `the options after \`ts\` are: ${Object.keys(BLOCK_OPTION_WORDS).join(', ')}`,
+            hint: `the options after \`${language}\` are: ${Object.keys(BLOCK_OPTION_WORDS).join(', ')}`,
           });
         }
       }

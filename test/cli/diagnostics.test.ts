@@ -2,7 +2,7 @@
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { kvarbook, scratchFolder } from '../support/cli.ts';
+import { kvarbook, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { lineOf, studyText } from '../support/studies.ts';
 
 function runFailing(source: string): string {
@@ -41,6 +41,20 @@ describe('diagnostics at the command line', () => {
     expect(stderr).toMatch(markedLine(source, line));
     // The caret spans the date, from its first character to its last.
     expect(stderr).toContain(`| ${' '.repeat('date: '.length)}${'^'.repeat('2026-13-45'.length)}\n`);
+  });
+
+  it('prints a YAML mistake in the front matter once, with its study lines and the cause in the hint', async () => {
+    const source = studyText({ inputs: '  peakLoad: { value: 1,200 MW, quantity: active power, description: Winter peak }', body: 'Text.\n' });
+    const folder = scratchFolder();
+    writeFileSync(join(folder, 'line.study.md'), source);
+    const { status, stderr } = await kvarbookInProcess(['run', 'line.study.md', '--no-typecheck'], folder);
+    expect(status).toBe(1);
+    const line = lineOf(source, 'value: 1,200 MW');
+    expect(stderr.match(/ error: /g)).toHaveLength(1);
+    expect(stderr).toMatch(new RegExp(`^line\\.study\\.md:${line}:\\d+: error: .*\\[front-matter-flow-comma\\]$`, 'm'));
+    expect(stderr).toMatch(markedLine(source, line));
+    expect(stderr).toContain(`| ${' '.repeat('  peakLoad: { value: '.length)}${'^'.repeat('1,200 MW'.length)}\n`);
+    expect(stderr).toContain('hint: inside { } a comma separates keys; put a value that holds a comma in quotes: value: "1,200 MW"');
   });
 
   it('prints the study lines of an input outside its declared range', () => {

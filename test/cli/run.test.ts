@@ -27,8 +27,8 @@ describe('kvarbook on the command line', () => {
     const { status, stdout, stderr } = kvarbook(['run', 'line.study.md', '--set', 'lineLength=280km'], folder);
     expect(stderr).toBe('');
     expect(status).toBe(0);
-    expect(stdout).toContain('build/TEST-1-r1.html');
-    const results = JSON.parse(readFileSync(join(folder, 'build/TEST-1-r1.results.json'), 'utf8'));
+    expect(stdout).toContain('build/TEST-1-r1.lineLength-280km.html');
+    const results = JSON.parse(readFileSync(join(folder, 'build/TEST-1-r1.lineLength-280km.results.json'), 'utf8'));
     expect(results.results[0]).toMatchObject({ name: 'length', value: 280, unit: 'km' });
     expect(results.inputs[0]).toMatchObject({ name: 'lineLength', source: 'overridden' });
   });

@@ -64,11 +64,21 @@ describe('sealing and checking from the command line', () => {
     expect(Buffer.from(seal!.content).equals(readFileSync(join(space.folder, 'build/TEST-1-r1.seal.json')))).toBe(true);
   });
 
-  it('refuses to overwrite the sealed report, and leaves it as it was', async () => {
+  it('writes a draft beside the sealed report, and leaves the sealed one as it was', async () => {
     const before = readFileSync(join(space.folder, 'build/TEST-1-r1.html'));
-    const again = await cli(['run', 'line.study.md'], space.folder, space.env);
+    const draft = await cli(['run', 'line.study.md'], space.folder, space.env);
+    expect(draft.status).toBe(0);
+    expect(draft.stdout).toContain('the sealed report build/TEST-1-r1.html is kept; this draft is written beside it');
+    expect(draft.stdout).toContain('report: build/TEST-1-r1.draft.html');
+    expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
+    expect(readFileSync(join(space.folder, 'build/TEST-1-r1.draft.html'), 'utf8')).toContain('<strong>Not sealed.</strong>');
+  });
+
+  it('refuses to seal over the sealed report, and leaves it as it was', async () => {
+    const before = readFileSync(join(space.folder, 'build/TEST-1-r1.html'));
+    const again = await cli(['run', 'line.study.md', '--seal'], space.folder, space.env);
     expect(again.status).toBe(1);
-    expect(again.stderr).toContain('sealed report');
+    expect(again.stderr).toContain('sealed-report-exists');
     expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html')).equals(before)).toBe(true);
   });
 
@@ -87,10 +97,36 @@ describe('sealing and checking from the command line', () => {
     expect(check.stdout).toContain('study source       FAIL');
   });
 
+  it('shows which lines of an edited copy of the study source differ from the sealed source', async () => {
+    const edited = study.replace('0.4 *', '0.41 *').replace('# Charging', '# Charging of the line');
+    writeFileSync(join(space.folder, 'edited.study.md'), edited);
+    const check = await cli(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md'], space.folder, space.env);
+    const sealedLines = study.split('\n');
+    const lineOfSealed = (needle: string) => sealedLines.findIndex((line) => line.includes(needle)) + 1;
+    expect(check.stdout).toContain(
+      `   study source, line ${lineOfSealed('# Charging')} as sealed, line ${lineOfSealed('# Charging')} in edited.study.md:`,
+    );
+    expect(check.stdout).toContain('     - # Charging\n     + # Charging of the line\n');
+    expect(check.stdout).toContain(
+      '     - const chargingMvar = 0.4 * inputs.lineLength.in("km");\n     + const chargingMvar = 0.41 * inputs.lineLength.in("km");\n',
+    );
+    const json = await cli(['check', 'build/TEST-1-r1.html', '--source', 'edited.study.md', '--json'], space.folder, space.env);
+    expect(JSON.parse(json.stdout).sourceDifference).toHaveLength(2);
+  });
+
   it('fails the check when the signer is not trusted', async () => {
     const check = await cli(['check', 'build/TEST-1-r1.html', '--trust', scratchFolder()], space.folder, space.env);
     expect(check.status).toBe(1);
     expect(check.stdout).toContain('NOT in the trust folder');
+  });
+
+  it("gives the command that makes the checker's key when counter-signing without one", async () => {
+    const signed = await cli(['check', 'build/TEST-1-r1.html', '--sign', '--keys', join(space.folder, 'no-keys')], space.folder, space.env);
+    expect(signed.status).toBe(1);
+    expect(signed.stderr).toContain('seal-no-default-key');
+    expect(signed.stderr).toContain(
+      `kvarbook key new --name <name> --licence <licence> --jurisdiction <jurisdiction> --keys ${join(space.folder, 'no-keys')}`,
+    );
   });
 
   it('refuses to counter-sign with the key that sealed the report', async () => {
@@ -150,7 +186,72 @@ describe('sealing and checking from the command line', () => {
   });
 });
 
+describe('a sealed variant', () => {
+  it('has files of its own, and its seal says it is a variant and which inputs are overridden', async () => {
+    const space = workspace();
+    const sealed = await cli(['run', 'line.study.md', '--seal', '--set', 'lineLength=280km'], space.folder, space.env);
+    expect(sealed.status).toBe(0);
+    const html = readFileSync(join(space.folder, 'build/TEST-1-r1.lineLength-280km.html'), 'utf8');
+    expect(html).toMatch(
+      /<section class="seal sealed" id="seal">[\s\S]*<strong>This is a variant of the study<\/strong>: sealed with lineLength = 280 km in place/,
+    );
+    expect(existsSync(join(space.folder, 'build/TEST-1-r1.lineLength-280km.seal.json'))).toBe(true);
+    const check = await cli(['check', 'build/TEST-1-r1.lineLength-280km.html'], space.folder, space.env);
+    expect(check.stdout).toContain('verdict: VERIFIED');
+  });
+});
+
+describe('a sealed study with a criterion not met', () => {
+  const failing = studyText({
+    body: '```ts\ncriterion("Receiving-end voltage", 1.09, { max: 1.05, unit: "pu" });\ncriterion("Angle across the line", 21, { max: 30, unit: "deg" });\ncriterion("Sending-end voltage", 0.93, { min: 0.95, unit: "pu" });\n```\n',
+  });
+  let space: SealWorkspace;
+  let sealing: Awaited<ReturnType<typeof cli>>;
+  beforeAll(async () => {
+    space = sealWorkspace('kvarbook-seal-');
+    writeFileSync(join(space.folder, 'line.study.md'), failing);
+    sealing = await cli(['run', 'line.study.md', '--seal'], space.folder, space.env);
+  });
+
+  it('is sealed, with a warning on the terminal naming the criteria not met', () => {
+    expect(sealing.status).toBe(0);
+    expect(existsSync(join(space.folder, 'build', 'TEST-1-r1.seal.json'))).toBe(true);
+    expect(sealing.stderr).toBe('kvarbook: warning: sealed with 2 of 3 criteria not met: Receiving-end voltage, Sending-end voltage\n');
+  });
+
+  it("says in the check's verdict how many criteria the seal records as not met", async () => {
+    const check = await cli(['check', 'build/TEST-1-r1.html'], space.folder, space.env);
+    expect(check.status).toBe(0);
+    expect(check.stdout).toMatch(/^verdict: VERIFIED: .*; figures verified; 2 of 3 criteria not met, as sealed$/m);
+    const json = await cli(['check', 'build/TEST-1-r1.html', '--json'], space.folder, space.env);
+    expect(JSON.parse(json.stdout).criteria).toEqual({ total: 3, notMet: ['Receiving-end voltage', 'Sending-end voltage'] });
+  });
+
+  it('says in the title block how many criteria are not met', () => {
+    const html = readFileSync(join(space.folder, 'build', 'TEST-1-r1.html'), 'utf8');
+    expect(html).toContain('<dt>Status</dt><dd class="fail">2 of 3 criteria not met</dd>');
+  });
+});
+
 describe('keys', () => {
+  it('gives the command that makes the engineer a signing key when there is none', async () => {
+    const folder = scratchFolder('kvarbook-seal-');
+    writeFileSync(join(folder, 'line.study.md'), study.replace('name: Test Engineer', "name: Test O'Engineer"));
+    const run = await cli(['run', 'line.study.md', '--seal'], folder, { KVARBOOK_HOME: join(folder, 'home'), KVARBOOK_PASSPHRASE: PASSPHRASE });
+    expect(run.status).toBe(1);
+    expect(run.stderr).toContain('seal-no-default-key');
+    expect(run.stderr).toContain(`kvarbook key new --name 'Test O'\\''Engineer' --licence T-0 --jurisdiction Testland`);
+    expect(existsSync(join(folder, 'build'))).toBe(false);
+  });
+
+  it('names the keys folder in the command when it is not the default one', async () => {
+    const folder = scratchFolder('kvarbook-seal-');
+    writeFileSync(join(folder, 'line.study.md'), study);
+    const keys = join(folder, 'elsewhere keys');
+    const run = await cli(['run', 'line.study.md', '--seal', '--keys', keys], folder, { KVARBOOK_HOME: join(folder, 'home') });
+    expect(run.stderr).toContain(`kvarbook key new --name 'Test Engineer' --licence T-0 --jurisdiction Testland --keys '${keys}'`);
+  });
+
   it('refuses to seal with a wrong passphrase, and writes nothing', async () => {
     const { folder, env } = workspace();
     const run = await cli(['run', 'line.study.md', '--seal'], folder, { ...env, KVARBOOK_PASSPHRASE: 'not the right passphrase' });

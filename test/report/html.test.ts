@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { STANDING_CAUTIONS } from '../../src/report/cautions.ts';
 import { UNSEALED_NOTICE, assembleReport } from '../../src/report/html.ts';
 import { embeddedStudySource } from '../../src/report/embed.ts';
-import { runSource, studyText } from '../support/studies.ts';
+import { TEST_STYLESHEET, runSource, studyText } from '../support/studies.ts';
 
 const source = studyText({
   inputs: '  lineLength: { value: 320 km, min: 10 km, max: 800 km, description: Route length }',
@@ -84,9 +84,14 @@ describe('the HTML report', async () => {
 
   it('records provenance: versions, hashes and limits', () => {
     const provenance = html.slice(html.indexOf('id="provenance"'));
-    expect(provenance).toContain(product.run.study.sourceSha256);
+    expect(provenance).toContain(`<code class="hash">${product.run.study.sourceSha256.match(/.{16}/g)!.join('<wbr>')}</code>`);
     expect(provenance).toContain('0.0.0-test');
     expect(provenance).toContain('s per block');
+  });
+
+  it('lets a hash break only between groups of 16 characters', () => {
+    expect(TEST_STYLESHEET).toMatch(/\.hash \{[^}]*word-break: keep-all/);
+    expect(TEST_STYLESHEET).not.toMatch(/\.hash \{[^}]*break-all/);
   });
 
   it('never prints NaN or Infinity', () => {

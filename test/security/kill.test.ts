@@ -92,9 +92,14 @@ function timed(args: string[], folder: string, env: NodeJS.ProcessEnv = {}): num
   return Date.now() - started;
 }
 
-/** The earlier set a killed run would replace, written by the command line in this process: only the runs killed, timed or recovering are processes. */
+/**
+ * The earlier set a killed run would replace, of the same files but a shorter line, written by the command line in this
+ * process: only the runs killed, timed or recovering are processes. (A run with --set would write files of its own.)
+ */
 async function earlierSet(args: string[], folder: string, env: NodeJS.ProcessEnv = {}): Promise<void> {
+  writeFileSync(join(folder, 'line.study.md'), minimalStudy.replace('lineLength: 320 km', 'lineLength: 100 km'));
   const run = await kvarbookInProcess(args, folder, env);
+  writeFileSync(join(folder, 'line.study.md'), minimalStudy);
   expect(run.status, run.stderr).toBe(0);
 }
 
@@ -106,7 +111,7 @@ describe('killing kvarbook while it writes a report', () => {
   it(`shows the earlier set or the new one, never a mix, after each of ${KILLS.plain} kills of a plain run`, async () => {
     const folder = scratchFolder('kvarbook-kill-');
     writeFileSync(join(folder, 'line.study.md'), minimalStudy);
-    await earlierSet([...RUN_ARGUMENTS, '--set', 'lineLength=100km'], folder);
+    await earlierSet([...RUN_ARGUMENTS], folder);
     const old = visible(folder);
     const reference = scratchFolder('kvarbook-kill-reference-');
     writeFileSync(join(reference, 'line.study.md'), minimalStudy);
@@ -131,7 +136,7 @@ describe('killing kvarbook while it writes a report', () => {
     writeFileSync(join(reference, 'line.study.md'), minimalStudy);
     const fullRunMs = timed([...RUN_ARGUMENTS, '--pdf'], reference);
     const fresh = visible(reference);
-    await earlierSet([...RUN_ARGUMENTS, '--pdf', '--set', 'lineLength=100km'], template);
+    await earlierSet([...RUN_ARGUMENTS, '--pdf'], template);
     const old = visible(template);
     expect(old.has('TEST-1-r1.pdf') && fresh.has('TEST-1-r1.pdf')).toBe(true);
 
@@ -157,7 +162,7 @@ describe('killing kvarbook while it writes a report', () => {
   it(`shows the unsealed set or the sealed one, whole, after each of ${KILLS.seal} kills of run --seal`, async () => {
     const space = sealWorkspace('kvarbook-kill-seal-');
     writeFileSync(join(space.folder, 'line.study.md'), minimalStudy);
-    await earlierSet(['run', 'line.study.md', '--set', 'lineLength=100km'], space.folder, space.env);
+    await earlierSet(['run', 'line.study.md'], space.folder, space.env);
     const old = visible(space.folder);
     // Ed25519 signatures are deterministic: the same key seals the same run to the same bytes.
     const reference = scratchPath(`${space.folder}-reference`);
@@ -178,7 +183,7 @@ describe('killing kvarbook while it writes a report', () => {
     const space = sealWorkspace('kvarbook-kill-replace-');
     writeFileSync(join(space.folder, 'line.study.md'), minimalStudy);
     const replace = ['run', 'line.study.md', '--seal', '--pdf', '--replace-sealed'];
-    await earlierSet(['run', 'line.study.md', '--seal', '--pdf', '--set', 'lineLength=100km'], space.folder, space.env);
+    await earlierSet(['run', 'line.study.md', '--seal', '--pdf'], space.folder, space.env);
     const sealedA = visible(space.folder);
     const reference = scratchPath(`${space.folder}-reference`);
     cpSync(space.folder, reference, { recursive: true, verbatimSymlinks: true });

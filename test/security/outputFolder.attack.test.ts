@@ -81,20 +81,22 @@ describe('nothing lost', () => {
   it('never leaves the PDF of an earlier run beside the HTML of a later one', async () => {
     const folder = studyFolder('kvarbook-stale-pdf-');
     expect((await kvarbookInProcess(['run', 'line.study.md', '--no-typecheck', '--pdf'], folder)).status).toBe(0);
-    expect(kvarbook(['run', 'line.study.md', '--no-typecheck', '--set', 'lineLength=100km'], folder).status).toBe(0);
+    writeFileSync(join(folder, 'line.study.md'), study.replace('lineLength: 320 km', 'lineLength: 100 km'));
+    expect(kvarbook(['run', 'line.study.md', '--no-typecheck'], folder).status).toBe(0);
     expect(readFileSync(join(folder, 'build', 'TEST-1-r1.html'), 'utf8')).toContain('40.00 Mvar');
     expect(existsSync(join(folder, 'build', 'TEST-1-r1.pdf'))).toBe(false);
   });
 
-  it('never overwrites a sealed PDF, even when the HTML and the seal file beside it were deleted', async () => {
+  it('never overwrites a sealed PDF, even when the HTML and the seal file beside it were deleted: a draft goes beside it', async () => {
     const space = sealWorkspace('kvarbook-sealed-pdf-');
     writeFileSync(join(space.folder, 'line.study.md'), study);
     expect((await kvarbookInProcess(['run', 'line.study.md', '--seal', '--pdf'], space.folder, space.env)).status).toBe(0);
     const sealedPdf = readFileSync(join(space.folder, 'build', 'TEST-1-r1.pdf'));
     for (const name of ['TEST-1-r1.html', 'TEST-1-r1.seal.json']) rmSync(join(space.folder, 'build', name));
     const again = kvarbook(['run', 'line.study.md', '--no-typecheck', '--pdf'], space.folder, space.env);
-    expect(again.status).toBe(1);
-    expect(again.stderr).toContain('sealed-report-exists');
+    expect(again.status).toBe(0);
+    expect(again.stdout).toContain('report: build/TEST-1-r1.draft.html');
+    expect(existsSync(join(space.folder, 'build', 'TEST-1-r1.draft.pdf'))).toBe(true);
     expect(readFileSync(join(space.folder, 'build', 'TEST-1-r1.pdf')).equals(sealedPdf)).toBe(true);
   });
 });

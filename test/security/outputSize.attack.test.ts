@@ -28,6 +28,19 @@ describe('no one output is unbounded', () => {
     expect(problem.message).toContain('caution');
   });
 
+  it('refuses a solver call whose arguments, logged in full, would outgrow the report, at the call', async () => {
+    const label = `'x'.repeat(${OUTPUT_LIMITS.studyOutputBytes + 1})`;
+    const problem = await refusedAt(
+      studyText({
+        body: fence(
+          `const label = ${label};\nsolver.lineModel({ frequencyHz: 50, seriesResistanceOhmPerKm: 0.03, seriesReactanceOhmPerKm: 0.3, shuntSusceptanceUsPerKm: 4, lengthKm: 100, label });`,
+        ),
+      }),
+      'solver.lineModel',
+    );
+    expect(problem.message).toContain('every solver call, which the calculation log records in full');
+  });
+
   it('refuses a result name longer than a name', async () => {
     await refusedAt(studyText({ body: fence(`result('${'n'.repeat(OUTPUT_LIMITS.nameCharacters + 1)}', 1);`) }), "result('nnn");
   });

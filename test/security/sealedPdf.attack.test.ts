@@ -61,7 +61,7 @@ describe('attacks on a sealed PDF', () => {
       expect(sealed.status, sealed.stderr).toBe(0);
     }
     sealedPdf = readFileSync(join(space.folder, 'build/TEST-1-r1.pdf'));
-    otherPdf = readFileSync(join(space.folder, 'other/TEST-1-r1.pdf'));
+    otherPdf = readFileSync(join(space.folder, 'other/TEST-1-r1.lineLength-100km.pdf'));
   });
 
   function check(name: string, pdf: Uint8Array) {

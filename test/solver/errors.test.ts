@@ -22,6 +22,13 @@ describe('SolverDomainError', () => {
     expect(error.hint.length).toBeGreaterThan(0);
   });
 
+  test('quotes a number rounded in its sentence and keeps it exact in its value', () => {
+    const lengthKm = 5000.000000000123;
+    const error = caught(() => lineModel({ ...perKm, lengthKm }));
+    expect(error.message).toMatch(/^lengthKm = 5000 is outside the allowed range/);
+    expect(error.diagnostics[0]?.actual).toBe(lengthKm);
+  });
+
   test('rejects zero frequency', () => {
     expect(caught(() => lineModel({ ...perKm, frequencyHz: 0, lengthKm: 100 })).quantity).toBe('frequencyHz');
   });

@@ -101,4 +101,19 @@ describe('solveFixedSendingVoltage', () => {
     expect(attempt).toThrow(expect.objectContaining({ code: 'no-operating-point' }));
     expect(attempt).toThrow(/load = P = 20000 MW, Q = .* Mvar is outside the allowed range up to P = \d+/);
   });
+
+  test('quotes the load beyond the nose rounded, and keeps its exact value in the diagnostic', () => {
+    const load = { pMw: 20000, powerFactor: 0.95, powerFactorSense: 'lagging' as const };
+    const error = (() => {
+      try {
+        solveFixedSendingVoltage({ network: lossy, sendingVoltageKv: 765, load });
+      } catch (caught) {
+        return caught as SolverDomainError;
+      }
+      throw new Error('expected no-operating-point');
+    })();
+    expect(error.message).toContain('P = 20000 MW, Q = 6573.68 Mvar');
+    expect(error.message).not.toMatch(/6573\.68\d{3}/);
+    expect(error.diagnostics[0]?.actual).toMatch(/^P = 20000 MW, Q = 6573\.68\d{3,} Mvar$/);
+  });
 });

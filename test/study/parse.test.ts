@@ -27,6 +27,42 @@ describe('parsing a study', () => {
     expect(problem?.at?.line).toBeGreaterThanOrEqual(lineOf(source, 'limits:'));
   });
 
+  it('gives one error for one YAML mistake', async () => {
+    const source = studyText({ inputs: '  lineLength: { value: "320 km, description: Route length }', body: '' });
+    const problems = await diagnosticsOf(() => parseStudy('s.study.md', source));
+    expect(problems).toHaveLength(1);
+    expect(problems[0]).toMatchObject({ code: 'front-matter-yaml', at: { line: lineOf(source, 'lineLength:') } });
+  });
+
+  it('names an unquoted comma in a number inside { } as the cause, in one error spanning the value', async () => {
+    const source = studyText({ inputs: '  peak: { value: 1,000 MW, quantity: active power }', body: '' });
+    const problems = await diagnosticsOf(() => parseStudy('s.study.md', source));
+    expect(problems).toHaveLength(1);
+    const line = source.split('\n')[lineOf(source, 'peak:') - 1]!;
+    expect(problems[0]).toMatchObject({
+      code: 'front-matter-flow-comma',
+      at: { line: lineOf(source, 'peak:'), column: line.indexOf('1,000') + 1, endColumn: line.indexOf(', quantity') + 1 },
+    });
+    expect(problems[0]?.message).toContain('"1,000 MW"');
+    expect(problems[0]?.hint).toContain('value: "1,000 MW"');
+    expect(problems[0]?.hint).toContain('1000 MW');
+  });
+
+  it('gives one error for a value cut by several commas', async () => {
+    const source = studyText({ inputs: '  peak: { value: 1,000,000 kW, quantity: active power }', body: '' });
+    const problems = await diagnosticsOf(() => parseStudy('s.study.md', source));
+    expect(problems).toHaveLength(1);
+    expect(problems[0]?.hint).toContain('value: "1,000,000 kW" (or write the number without the separator: 1000000 kW)');
+  });
+
+  it('names an unquoted comma in a text inside { } as the cause', async () => {
+    const source = studyText({ inputs: '  peak: { value: 100 MW, description: Winter peak, radial }', body: '' });
+    const problems = await diagnosticsOf(() => parseStudy('s.study.md', source));
+    expect(problems).toHaveLength(1);
+    expect(problems[0]?.code).toBe('front-matter-flow-comma');
+    expect(problems[0]?.hint).toContain('description: "Winter peak, radial"');
+  });
+
   it('names a misspelt front-matter key and where it is', async () => {
     const source = studyText({ frontMatter: 'revison: 2', body: '' });
     const [problem] = await diagnosticsOf(() => parseStudy('s.study.md', source));
@@ -64,6 +100,15 @@ describe('parsing a study', () => {
       [lineOf(source, 'const a'), { hideCode: false, noRun: false }],
       [lineOf(source, 'const b'), { hideCode: true, noRun: false }],
       [lineOf(source, 'never()'), { hideCode: false, noRun: true }],
+    ]);
+  });
+
+  it('runs a block fenced as typescript like one fenced as ts, options and all', () => {
+    const source = studyText({ body: '```typescript\nconst a = 1;\n```\n\n```TypeScript hide-code\nconst b = 2;\n```\n' });
+    const study = parseStudy('s.study.md', source);
+    expect(study.blocks.map((block) => [block.firstCodeLine, block.options])).toEqual([
+      [lineOf(source, 'const a'), { hideCode: false, noRun: false }],
+      [lineOf(source, 'const b'), { hideCode: true, noRun: false }],
     ]);
   });
 
