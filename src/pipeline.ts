@@ -27,7 +27,15 @@ export interface RunRequest {
   stylesheet: string;
   /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
   typecheckCache?: TypecheckCache;
+  /** Charts drawn by earlier runs, kept by the edge; every run draws anew when absent. */
+  chartCache?: ChartCache;
   hooks?: ExecutionHooks;
+}
+
+/** The SVG of a chart specification (as JSON text) that this same kvarbook drew before without a problem. */
+export interface ChartCache {
+  read(specJson: string): string | undefined;
+  write(specJson: string, svg: string): void;
 }
 
 export interface RunProduct {
@@ -47,7 +55,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   // The calculation child is forked now, so that its start overlaps the transpile and the type check.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
   const calculation = startCalculation(study, granted.limits);
-  const charts = new ChartDrawing(study.file);
+  const charts = new ChartDrawing(study.file, request.chartCache);
   let outcome: ExecutionOutcome;
   try {
     // 3. Transpile every block and inline value; declarations found for the shared scope.
@@ -124,22 +132,31 @@ function requireReportSize(run: StudyRun, report: ReportParts): void {
  */
 class ChartDrawing {
   private readonly file: string;
+  private readonly cache: ChartCache | undefined;
   private renderer: LimitedWorker | undefined;
   private closed = false;
-  private readonly drawn: { record: Extract<LocatedRecord, { kind: 'chart' }>; svg: Promise<unknown> }[] = [];
+  /** Each chart in study order; `specJson` is set for a chart drawn in this run, which finish() keeps in the cache. */
+  private readonly drawn: { record: Extract<LocatedRecord, { kind: 'chart' }>; svg: Promise<unknown>; specJson?: string }[] = [];
 
-  constructor(file: string) {
+  constructor(file: string, cache: ChartCache | undefined) {
     this.file = file;
+    this.cache = cache;
   }
 
   draw(records: readonly LocatedRecord[]): void {
     for (const record of records) {
       if (record.kind !== 'chart' || this.closed) continue;
+      const specJson = this.cache ? JSON.stringify(record.spec) : undefined;
+      const cached = specJson === undefined ? undefined : this.cache?.read(specJson);
+      if (cached !== undefined) {
+        this.drawn.push({ record, svg: Promise.resolve(cached) });
+        continue;
+      }
       this.renderer ??= openLimitedWorker(partModule('chartWorker'), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
       const svg = this.renderer.call(record.spec);
       // Looked at in finish(), in order; a run that fails before then never looks.
       svg.catch(() => undefined);
-      this.drawn.push({ record, svg });
+      this.drawn.push({ record, svg, ...(specJson === undefined ? {} : { specJson }) });
     }
   }
 
@@ -148,12 +165,13 @@ class ChartDrawing {
     const rendered: RenderedCharts = new Map();
     const problems: Diagnostic[] = [];
     try {
-      for (const { record, svg: drawing } of this.drawn) {
+      for (const { record, svg: drawing, specJson } of this.drawn) {
         const at = record.at ?? { file: this.file, line: 1 };
         try {
           const svg = await drawing;
           if (typeof svg !== 'string') throw new Error('the chart worker answered without an SVG');
           rendered.set(record, svg);
+          if (specJson !== undefined) this.cache?.write(specJson, svg);
         } catch (error) {
           const limited = error instanceof WorkerLimitError;
           problems.push({

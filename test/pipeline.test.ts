@@ -1,6 +1,7 @@
 // The run of one study: the calculation child starts before the type check ends and charts are drawn while blocks run, yet a run reports exactly what the stages one after another would.
 import { describe, expect, it } from 'vitest';
-import { diagnosticsOf, lineOf, runSource, studyText } from './support/studies.ts';
+import { runStudy, type ChartCache } from '../src/pipeline.ts';
+import { TEST_ENVIRONMENT, TEST_STYLESHEET, diagnosticsOf, lineOf, runSource, studyText } from './support/studies.ts';
 
 const fence = (...lines: string[]) => ['```ts', ...lines, '```'].join('\n');
 const points = '[{ x: 1, y: 2 }, { x: 2, y: 3 }]';
@@ -31,5 +32,37 @@ describe('a run whose stages overlap', () => {
     const source = studyText({ body: [fence(goodChart), fence("result('after', 1);"), fence(goodChart.replace('Good', 'Also good'))].join('\n\n') });
     const product = await runSource(source);
     expect(product.report.body.match(/<svg/g)).toHaveLength(2);
+  });
+});
+
+describe('a run with a chart cache', () => {
+  /** A cache in memory that answers `known` for every specification it was not given. */
+  const memoryCache = (known?: string) => {
+    const kept = new Map<string, string>();
+    const cache: ChartCache = { read: (spec) => kept.get(spec) ?? known, write: (spec, svg) => void kept.set(spec, svg) };
+    return { cache, kept };
+  };
+  const run = (source: string, chartCache: ChartCache) =>
+    runStudy({
+      file: 'test.study.md',
+      source,
+      overrides: [],
+      typecheck: false,
+      environment: TEST_ENVIRONMENT,
+      stylesheet: TEST_STYLESHEET,
+      chartCache,
+    });
+
+  it('keeps each chart it drew, and not one that cannot be drawn', async () => {
+    const { cache, kept } = memoryCache();
+    await diagnosticsOf(run(studyText({ body: [fence(goodChart), fence(refusedChart)].join('\n\n') }), cache));
+    expect([...kept.keys()].map((spec) => JSON.parse(spec).mark)).toEqual(['line']);
+    expect([...kept.values()][0]).toMatch(/^<svg/);
+  });
+
+  it('puts a chart the cache holds into the report without drawing it', async () => {
+    const { cache } = memoryCache('<svg class="from-the-cache"></svg>');
+    const product = await run(studyText({ body: fence(goodChart) }), cache);
+    expect(product.report.body).toContain('<svg class="from-the-cache"></svg>');
   });
 });

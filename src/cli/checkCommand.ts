@@ -15,6 +15,7 @@ import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
 import { installationFacts, reportStylesheet } from './environment.ts';
 import { typecheckCache } from './typecheckCache.ts';
+import { chartCache } from './chartCache.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
@@ -78,6 +79,7 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         environment: request.environment,
         stylesheet: reportStylesheet(),
         typecheckCache: typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion),
+        chartCache: chartCache(launchEnvironment(), installationFacts()),
       });
     } catch (error) {
       if (error instanceof StudyFailure)

@@ -11,6 +11,7 @@ import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedR
 import { installationFacts, reportStylesheet } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { typecheckCache } from './typecheckCache.ts';
+import { chartCache } from './chartCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
@@ -43,6 +44,7 @@ async function produceStudy(studyPath: string, options: Pick<RunOptions, 'set' |
     environment,
     stylesheet: reportStylesheet(),
     typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
+    chartCache: chartCache(launchEnvironment(), environment),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),
     },
