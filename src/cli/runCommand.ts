@@ -15,7 +15,7 @@ import { chartCache } from './chartCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists } from './reportFiles.ts';
-import { printStudyPdf } from './printPdf.ts';
+import { loadPrinterAhead, printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 import type { RunLimits } from '../study/model.ts';
 
@@ -85,6 +85,7 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
       },
     ]);
   }
+  if (options.pdf) loadPrinterAhead();
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();
   const { meta } = product.run.study;
