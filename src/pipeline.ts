@@ -69,15 +69,20 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
     }
     // 4. Type-check against the block API, unless the author skipped it while drafting; 5. execute in the sandboxed
     // child, within the study's limits as far as the run's ceilings grant them. The blocks run while the type check
-    // works, and its problems come first, as if it had run alone; each chart is drawn as soon as its block is done.
+    // works, and its problems come first, as if it had run alone; each chart is drawn as soon as its block is done,
+    // but not before the type check is (the compiler and Vega at once would add to the run's peak memory).
+    let typeChecked = !request.typecheck;
+    const held: LocatedRecord[][] = [];
     const checked = request.typecheck ? typecheckStudy(study, undefined, request.typecheckCache) : Promise.resolve();
     const executed = executeStudy(study, inputs, blocks, inlines, {
-      hooks: { ...request.hooks, onBlockDone: (block) => charts.draw(block.records) },
+      hooks: { ...request.hooks, onBlockDone: (block) => (typeChecked ? charts.draw(block.records) : held.push(block.records)) },
       granted,
       started: calculation,
     });
     executed.catch(() => undefined);
     await checked;
+    typeChecked = true;
+    for (const records of held) charts.draw(records);
     outcome = await executed;
   } catch (error) {
     calculation.close();
