@@ -2,10 +2,11 @@
 import { readFileSync, rmSync } from 'node:fs';
 import { dirname, join, relative } from 'node:path';
 import { generateDtsBundle } from 'dts-bundle-generator';
-import { build, stop } from 'esbuild';
+import { type Plugin, build, stop } from 'esbuild';
 import { inputHashes, inputsUnchanged, installationFiles, readInputHashes, writeAtomically } from '../src/bundleRecord.ts';
 import { BLOCK_API_DECLARATIONS, BUNDLE_FOLDER, BUNDLE_PARTS, type BundlePart, installedPath } from '../src/installation.ts';
 import { CHILD_BUILD_OPTIONS } from '../src/execute/childBundle.ts';
+import { SCHEMA_DEFINITIONS_READ } from '../src/report/chart/vegaLiteNames.ts';
 
 const RECORD = installedPath(join(BUNDLE_FOLDER, 'build-inputs.json'));
 /** Besides the bundles' own sources, the bundle depends on how it is built. */
@@ -42,6 +43,7 @@ export async function buildKvarbook(): Promise<void> {
       legalComments: 'none',
       logLevel: 'warning',
       metafile: true,
+      plugins: [vegaLiteSchemaNames],
     });
     const child = await build({ ...CHILD_BUILD_OPTIONS, outfile: join(folder, BUNDLE_PARTS.child.bundle), metafile: true, logLevel: 'warning' });
     writeAtomically(installedPath(BLOCK_API_DECLARATIONS), blockApiDeclarations());
@@ -53,6 +55,18 @@ export async function buildKvarbook(): Promise<void> {
     await stop();
   }
 }
+
+/** Vega-Lite's JSON schema as the chart worker reads it: only the definitions `src/report/chart/vegaLiteNames.ts` names. */
+const vegaLiteSchemaNames: Plugin = {
+  name: 'vega-lite-schema-names',
+  setup(builder) {
+    builder.onLoad({ filter: /[\\/]vega-lite-schema\.json$/ }, ({ path }) => {
+      const { definitions } = JSON.parse(readFileSync(path, 'utf8')) as { definitions: Record<string, unknown> };
+      const read = Object.fromEntries(SCHEMA_DEFINITIONS_READ.map((name) => [name, definitions[name]]));
+      return { contents: JSON.stringify({ definitions: read }), loader: 'json' };
+    });
+  },
+};
 
 const GLOBALS_ENTRY = 'src/execute/blockGlobals.d.ts';
 

@@ -5,10 +5,10 @@ import { parseStudy } from './study/parse.ts';
 import { type InputOverride, effectiveInputs } from './study/inputs.ts';
 import { releaseTranspiler, transpileBlocks, transpileInlines } from './execute/transpile.ts';
 import { type TypecheckCache, typecheckStudy } from './execute/typecheck.ts';
-import { type ExecutionHooks, executeStudy } from './execute/session.ts';
+import { type ExecutionHooks, type ExecutionOutcome, type LocatedRecord, executeStudy, startCalculation } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
-import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
-import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
+import { type ResultsDocument, type StudyRun, resultsDocument } from './report/studyRun.ts';
+import { type LimitedWorker, WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
 import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from './execute/limits.ts';
 import type { RunLimits } from './study/model.ts';
 import { partModule } from './installation.ts';
@@ -27,9 +27,17 @@ export interface RunRequest {
   stylesheet: string;
   /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
   typecheckCache?: TypecheckCache;
+  /** Charts drawn by earlier runs, kept by the edge; every run draws anew when absent. */
+  chartCache?: ChartCache;
   hooks?: ExecutionHooks;
   /** Ends the run early, between stages and inside the execution (the live preview's superseded runs). */
   signal?: AbortSignal;
+}
+
+/** The SVG of a chart specification (as JSON text) that this same kvarbook drew before without a problem. */
+export interface ChartCache {
+  read(specJson: string): string | undefined;
+  write(specJson: string, svg: string): void;
 }
 
 export interface RunProduct {
@@ -46,26 +54,47 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   const study = parseStudy(request.file, request.source);
   // 2. Inputs: front matter values with command-line overrides, unit- and range-checked.
   const inputs = effectiveInputs(study.inputs, request.overrides);
-  // 3. Transpile every block and inline value; declarations found for the shared scope.
-  let blocks: ReturnType<typeof transpileBlocks>;
-  let inlines: ReturnType<typeof transpileInlines>;
-  try {
-    blocks = transpileBlocks(study);
-    inlines = transpileInlines(study);
-  } finally {
-    releaseTranspiler();
-  }
-  // 4. Type-check against the block API, unless the author skipped it while drafting.
-  if (request.typecheck) await typecheckStudy(study, undefined, request.typecheckCache);
-  request.signal?.throwIfAborted();
-  // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
+  // The calculation child is forked now, so that its start overlaps the transpile and the type check.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
-  const outcome = await executeStudy(study, inputs, blocks, inlines, {
-    ...(request.hooks ? { hooks: request.hooks } : {}),
-    ...(request.signal ? { signal: request.signal } : {}),
-    granted,
-  });
-  request.signal?.throwIfAborted();
+  const calculation = startCalculation(study, granted.limits);
+  const charts = new ChartDrawing(study.file, request.chartCache);
+  let outcome: ExecutionOutcome;
+  try {
+    // 3. Transpile every block and inline value; declarations found for the shared scope.
+    let blocks: ReturnType<typeof transpileBlocks>;
+    let inlines: ReturnType<typeof transpileInlines>;
+    try {
+      blocks = transpileBlocks(study);
+      inlines = transpileInlines(study);
+    } finally {
+      releaseTranspiler();
+    }
+    // 4. Type-check against the block API, unless the author skipped it while drafting; 5. execute in the sandboxed
+    // child, within the study's limits as far as the run's ceilings grant them. The blocks run while the type check
+    // works, and its problems come first, as if it had run alone; each chart is drawn as soon as its block is done,
+    // but not before the type check is (the compiler and Vega at once would add to the run's peak memory).
+    let typeChecked = !request.typecheck;
+    const held: LocatedRecord[][] = [];
+    const checked = request.typecheck ? typecheckStudy(study, undefined, request.typecheckCache) : Promise.resolve();
+    const executed = executeStudy(study, inputs, blocks, inlines, {
+      hooks: { ...request.hooks, onBlockDone: (block) => (typeChecked ? charts.draw(block.records) : held.push(block.records)) },
+      ...(request.signal ? { signal: request.signal } : {}),
+      granted,
+      started: calculation,
+    });
+    executed.catch(() => undefined);
+    await checked;
+    request.signal?.throwIfAborted();
+    typeChecked = true;
+    for (const records of held) charts.draw(records);
+    outcome = await executed;
+    request.signal?.throwIfAborted();
+  } catch (error) {
+    calculation.close();
+    await charts.close();
+    throw error;
+  }
+  calculation.close();
   const run: StudyRun = {
     study,
     inputs,
@@ -81,9 +110,9 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
     },
   };
   // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
-  const charts = await renderCharts(run);
+  const rendered = await charts.finish();
   // 7. Render the report and the results document, within the size a report may have.
-  const report = renderReportParts(run, charts, request.stylesheet);
+  const report = renderReportParts(run, rendered, request.stylesheet);
   requireReportSize(run, report);
   return { run, report, results: resultsDocument(run) };
 }
@@ -107,37 +136,75 @@ function requireReportSize(run: StudyRun, report: ReportParts): void {
   ]);
 }
 
-/** Charts are drawn by Vega in a limited worker: a specification that asks for endless work ends that worker, not the run's host. */
-async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
-  const rendered: RenderedCharts = new Map();
-  const problems: Diagnostic[] = [];
-  const chartRecords = recordsOf(run, 'chart');
-  if (chartRecords.length === 0) return rendered;
-  const renderer = openLimitedWorker(partModule('chartWorker'), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
-  try {
-    for (const record of chartRecords) {
-      const at = record.at ?? { file: run.study.file, line: 1 };
-      try {
-        const svg = await renderer.call(record.spec);
-        if (typeof svg !== 'string') throw new Error('the chart worker answered without an SVG');
-        rendered.set(record, svg);
-      } catch (error) {
-        const limited = error instanceof WorkerLimitError;
-        problems.push({
-          code: limited ? 'chart-limit' : 'chart-spec',
-          message: `chart "${record.caption}" cannot be drawn: ${limited ? `drawing it ${(error as Error).message}` : (error as Error).message}`,
-          at,
-          hint: limited
-            ? `a chart is drawn within ${HOST_STAGE_LIMITS.chart.callSeconds} s and ${HOST_STAGE_LIMITS.chart.heapMb} MB; draw fewer points or split the chart`
-            : 'the specification must be valid Vega-Lite with inline data (values); see the charts.* builders',
-        });
-        // A worker past its limits is gone; the charts after it are not drawn.
-        if (limited) break;
-      }
-    }
-  } finally {
-    await renderer.close();
+/**
+ * Charts are drawn by Vega in a limited worker: a specification that asks for endless work ends that worker, not the
+ * run's host. The worker starts with the first chart and draws each in turn while the blocks after it run.
+ */
+class ChartDrawing {
+  private readonly file: string;
+  private readonly cache: ChartCache | undefined;
+  private renderer: LimitedWorker | undefined;
+  private closed = false;
+  /** Each chart in study order; `specJson` is set for a chart drawn in this run, which finish() keeps in the cache. */
+  private readonly drawn: { record: Extract<LocatedRecord, { kind: 'chart' }>; svg: Promise<unknown>; specJson?: string }[] = [];
+
+  constructor(file: string, cache: ChartCache | undefined) {
+    this.file = file;
+    this.cache = cache;
   }
-  if (problems.length > 0) throw new StudyFailure(problems);
-  return rendered;
+
+  draw(records: readonly LocatedRecord[]): void {
+    for (const record of records) {
+      if (record.kind !== 'chart' || this.closed) continue;
+      const specJson = this.cache ? JSON.stringify(record.spec) : undefined;
+      const cached = specJson === undefined ? undefined : this.cache?.read(specJson);
+      if (cached !== undefined) {
+        this.drawn.push({ record, svg: Promise.resolve(cached) });
+        continue;
+      }
+      this.renderer ??= openLimitedWorker(partModule('chartWorker'), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
+      const svg = this.renderer.call(record.spec);
+      // Looked at in finish(), in order; a run that fails before then never looks.
+      svg.catch(() => undefined);
+      this.drawn.push({ record, svg, ...(specJson === undefined ? {} : { specJson }) });
+    }
+  }
+
+  /** The SVG of every chart, or every chart's problem up to the first that ran past the worker's limits. */
+  async finish(): Promise<RenderedCharts> {
+    const rendered: RenderedCharts = new Map();
+    const problems: Diagnostic[] = [];
+    try {
+      for (const { record, svg: drawing, specJson } of this.drawn) {
+        const at = record.at ?? { file: this.file, line: 1 };
+        try {
+          const svg = await drawing;
+          if (typeof svg !== 'string') throw new Error('the chart worker answered without an SVG');
+          rendered.set(record, svg);
+          if (specJson !== undefined) this.cache?.write(specJson, svg);
+        } catch (error) {
+          const limited = error instanceof WorkerLimitError;
+          problems.push({
+            code: limited ? 'chart-limit' : 'chart-spec',
+            message: `chart "${record.caption}" cannot be drawn: ${limited ? `drawing it ${(error as Error).message}` : (error as Error).message}`,
+            at,
+            hint: limited
+              ? `a chart is drawn within ${HOST_STAGE_LIMITS.chart.callSeconds} s and ${HOST_STAGE_LIMITS.chart.heapMb} MB; draw fewer points or split the chart`
+              : 'the specification must be valid Vega-Lite with inline data (values); see the charts.* builders',
+          });
+          // A worker past its limits is gone; the charts after it are not drawn.
+          if (limited) break;
+        }
+      }
+    } finally {
+      await this.close();
+    }
+    if (problems.length > 0) throw new StudyFailure(problems);
+    return rendered;
+  }
+
+  async close(): Promise<void> {
+    this.closed = true;
+    await this.renderer?.close();
+  }
 }

@@ -18,6 +18,7 @@ import { sealedReportHtml, readSealedHtml } from '../seal/sealedReport.ts';
 import { addToSet } from '../output/reportSet.ts';
 import { installationFacts, reportStylesheet } from './environment.ts';
 import { typecheckCache } from './typecheckCache.ts';
+import { chartCache } from './chartCache.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { readPassphrase } from './passphrase.ts';
 import { readStudyFile } from './readStudy.ts';
@@ -54,6 +55,7 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         environment: request.environment,
         stylesheet: reportStylesheet(),
         typecheckCache: typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion),
+        chartCache: chartCache(launchEnvironment(), installationFacts()),
       });
     } catch (error) {
       if (error instanceof StudyFailure)

@@ -19,6 +19,11 @@ export interface PdfInputs {
   htmlFileName: string;
 }
 
+/** Starts loading the printer's code (puppeteer-core and pdf-lib, about a third of a second) while the study runs, so that a print waits for Chromium alone. */
+export function loadPrinterAhead(): void {
+  import('../report/pdf/index.ts').catch(() => undefined);
+}
+
 export async function printStudyPdf(inputs: PdfInputs): Promise<Uint8Array> {
   const { findChromium, printReportPdf } = await import('../report/pdf/index.ts');
   const chromium = findChromium(launchEnvironment());

@@ -11,10 +11,11 @@ import { reportBodySha256, sealSubject, sealedReportHtml } from '../seal/sealedR
 import { installationFacts, reportStylesheet } from './environment.ts';
 import { launchEnvironment } from './launchEnvironment.ts';
 import { typecheckCache } from './typecheckCache.ts';
+import { chartCache } from './chartCache.ts';
 import { readStudyFile } from './readStudy.ts';
 import { readPassphrase } from './passphrase.ts';
 import { DRAFT_VARIANT, isSealedSet, reportFolder, reportPaths, resultsJsonText, sealedReportExists, variantName } from './reportFiles.ts';
-import { printStudyPdf } from './printPdf.ts';
+import { loadPrinterAhead, printStudyPdf } from './printPdf.ts';
 import type { Terminal } from './terminal.ts';
 import type { RunLimits } from '../study/model.ts';
 import { loadDefaultKeyOf } from './keyCommand.ts';
@@ -52,6 +53,7 @@ export async function produceStudy(
     stylesheet: reportStylesheet(),
     typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
     ...(options.signal ? { signal: options.signal } : {}),
+    chartCache: chartCache(launchEnvironment(), environment),
     hooks: {
       onBlockStart: (block, position, count) => terminal.progress(`block ${position + 1}/${count} (line ${block.block.fenceLine})`),
     },
@@ -93,6 +95,7 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
     ]);
   }
   const variant = variantName(parseOverrideArguments(options.set), options.variant);
+  if (options.pdf) loadPrinterAhead();
   const product = await produceStudy(studyPath, options, terminal);
   terminal.progressDone();
   const { meta } = product.run.study;

@@ -14,14 +14,15 @@ export function cacheFolder(env: NodeJS.ProcessEnv): string {
   return env.KVARBOOK_CACHE ?? join(env.XDG_CACHE_HOME ?? join(homedir(), '.cache'), 'kvarbook');
 }
 
-/**
- * What the check ran against, besides the study: kvarbook's version, TypeScript's, and the block API's declarations
- * (the build's record of its sources; from the sources, every file under src/, which a developer may have just changed).
- */
+/** kvarbook's own code as it runs: the build's record of its sources; from the sources, every file under src/, which a developer may have just changed. */
+export function installationCodeSha256(): string {
+  return RUNS_FROM_SOURCE ? sourceTreeSha256() : sha256Hex(readFileSync(installedPath(join(BUNDLE_FOLDER, 'build-inputs.json'))));
+}
+
+/** What the check ran against, besides the study: kvarbook's version, TypeScript's, and the block API's declarations (kvarbook's code). */
 function checkerIdentity(kvarbookVersion: string): string {
   const typescriptVersion = (JSON.parse(readFileSync(installedPath('node_modules/typescript/package.json'), 'utf8')) as { version: string }).version;
-  const declarations = RUNS_FROM_SOURCE ? sourceTreeSha256() : sha256Hex(readFileSync(installedPath(join(BUNDLE_FOLDER, 'build-inputs.json'))));
-  return `kvarbook ${kvarbookVersion}\ntypescript ${typescriptVersion}\n${declarations}`;
+  return `kvarbook ${kvarbookVersion}\ntypescript ${typescriptVersion}\n${installationCodeSha256()}`;
 }
 
 function sourceTreeSha256(): string {

@@ -31,6 +31,8 @@ export interface ExecutionOutcome {
 export interface ExecutionHooks {
   /** Told before each block runs, for a progress line. */
   onBlockStart?: (block: TranspiledBlock, position: number, count: number) => void;
+  /** Told of each block's records as soon as they are checked, so later stages (the charts) can start while blocks still run. */
+  onBlockDone?: (outcome: BlockOutcome) => void;
 }
 
 const HOST_FRAME_HINT = 'the error comes from the block at this line';
@@ -71,6 +73,31 @@ export interface ExecutionOptions {
   granted?: GrantedLimits;
   /** Ends the run early (a newer save superseded it): the child is killed at once and the run fails. */
   signal?: AbortSignal;
+  /** A child started earlier with the same limits (`startCalculation`); one is started here when absent. */
+  started?: CalculationProcess;
+}
+
+/** A calculation child forked ahead of its first block; closing it ends the child. */
+export interface CalculationProcess {
+  readonly conversation: Conversation;
+  close(): void;
+}
+
+/**
+ * Forks the calculation child. Node's start and the child's loading of the block library take a few hundred
+ * milliseconds, so the pipeline forks it as soon as the study's limits are known and transpiles and type-checks
+ * meanwhile; the child runs nothing of the study until its blocks are sent.
+ */
+export function startCalculation(study: Study, limits: RunLimits): CalculationProcess {
+  const bundlePath = childBundlePath();
+  const child = fork(bundlePath, [], {
+    execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, limits.heapMb),
+    env: childEnvironment(),
+    stdio: ['ignore', 'ignore', 'pipe', 'ipc'],
+    serialization: 'json',
+  });
+  const conversation = new Conversation(child, residentLimitBytes(limits.heapMb));
+  return { conversation, close: () => conversation.close() };
 }
 
 export async function executeStudy(
@@ -83,14 +110,8 @@ export async function executeStudy(
   const hooks = options.hooks ?? {};
   const granted = options.granted ?? { limits: study.meta.limits, asked: {} };
   const limits = granted.limits;
-  const bundlePath = childBundlePath();
-  const child = fork(bundlePath, [], {
-    execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, limits.heapMb),
-    env: childEnvironment(),
-    stdio: ['ignore', 'ignore', 'pipe', 'ipc'],
-    serialization: 'json',
-  });
-  const conversation = new Conversation(child, residentLimitBytes(limits.heapMb));
+  const calculation = options.started ?? startCalculation(study, limits);
+  const { conversation } = calculation;
   const studyDeadline = Date.now() + limits.studySeconds * 1000;
   const stop = () => conversation.close();
   options.signal?.addEventListener('abort', stop, { once: true });
@@ -175,13 +196,15 @@ export async function executeStudy(
       if (reply.type === 'block-failed' && reply.blockIndex === block.blockIndex)
         throw new StudyFailure([blockFailure(study, block, sanitizeErrorReport(reply.error), granted)]);
       if (reply.type !== 'block-done' || reply.blockIndex !== block.blockIndex) throw new StudyFailure([outOfTurn(at)]);
-      outcome.blocks.push({ blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at, written)) });
+      const done = { blockIndex: block.blockIndex, records: locate(study, block, sanitizeRecords(reply.records, study, at, written)) };
+      outcome.blocks.push(done);
+      hooks.onBlockDone?.(done);
       await evaluateInlinesAfter(position + 1);
     }
     return outcome;
   } finally {
     options.signal?.removeEventListener('abort', stop);
-    conversation.close();
+    calculation.close();
   }
 }
 

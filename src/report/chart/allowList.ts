@@ -442,7 +442,7 @@ function check(rule: Rule, value: unknown, path: string, budget: Budget): void {
           'The chart carries more data than a report chart draws',
         );
       }
-      value.forEach((row, index) => checkRow(row, join(path, String(index))));
+      value.forEach((row, index) => checkRow(row, path, index));
       return;
     case 'map': {
       if (typeName(value) !== 'object') refuse(path, value, rule.what);
@@ -477,17 +477,27 @@ function check(rule: Rule, value: unknown, path: string, budget: Budget): void {
   }
 }
 
-/** A data row: a plain value, or one level of named plain values. */
-function checkRow(row: unknown, path: string): void {
+/** Whether a value is one `scalar` takes, decided without building its path: this runs once per data point. */
+function plainScalar(value: unknown): boolean {
+  return (
+    (typeof value === 'number' && Number.isFinite(value)) ||
+    (typeof value === 'string' && value.length <= MAX_TEXT) ||
+    typeof value === 'boolean' ||
+    value === null
+  );
+}
+
+/** A data row (the `index`th of the rows at `rowsPath`): a plain value, or one level of named plain values. */
+function checkRow(row: unknown, rowsPath: string, index: number): void {
   if (typeName(row) !== 'object') {
-    check(scalar, row, path, { rows: 0 });
+    if (!plainScalar(row)) check(scalar, row, join(rowsPath, String(index)), { rows: 0 });
     return;
   }
   const fields = Object.entries(row as Record<string, unknown>);
-  if (fields.length > MAX_ROW_FIELDS) refuse(path, `${fields.length} fields`, `at most ${MAX_ROW_FIELDS} fields in a row`);
+  if (fields.length > MAX_ROW_FIELDS) refuse(join(rowsPath, String(index)), `${fields.length} fields`, `at most ${MAX_ROW_FIELDS} fields in a row`);
   for (const [key, item] of fields) {
-    if (key.length > 200) refuse(join(path, key.slice(0, 40)), key, 'field names of at most 200 characters');
-    check(scalar, item, join(path, key), { rows: 0 });
+    if (key.length > 200) refuse(join(join(rowsPath, String(index)), key.slice(0, 40)), key, 'field names of at most 200 characters');
+    if (!plainScalar(item)) check(scalar, item, join(join(rowsPath, String(index)), key), { rows: 0 });
   }
 }
 

@@ -2,9 +2,9 @@
 import { compile, type TopLevelSpec } from 'vega-lite';
 import { parse, View, resetSVGDefIds, textMetrics, type Loader, type LoggerInterface, type Spec as VegaSpec } from 'vega';
 import { expressionInterpreter } from 'vega-interpreter';
-import vegaLiteSchema from 'vega-lite/vega-lite-schema.json' with { type: 'json' };
 import { ChartSpecError, describeValue } from './errors.ts';
 import { requireAllowedChartSpec } from './allowList.ts';
+import { knownFieldTypes, knownMarks } from './vegaLiteNames.ts';
 
 export { ChartSpecError } from './errors.ts';
 import { chartBaseConfig } from './theme.ts';
@@ -167,16 +167,7 @@ function compileToVega(vegaLiteSpec: Record<string, unknown>): VegaSpec {
 }
 
 // Vega-Lite fails on an unknown mark or field type with an internal TypeError that does not say where
-// the problem is, so these two common slips are checked first against the enums of Vega-Lite's own
-// JSON schema (which therefore always match the installed version).
-const knownMarks = new Set<string>([
-  ...vegaLiteSchema.definitions.Mark.enum,
-  vegaLiteSchema.definitions.BoxPlot.const,
-  vegaLiteSchema.definitions.ErrorBar.const,
-  vegaLiteSchema.definitions.ErrorBand.const,
-]);
-const knownFieldTypes = new Set<string>(vegaLiteSchema.definitions.Type.enum);
-
+// the problem is, so these two common slips are checked first (against `vegaLiteNames.ts`).
 function rejectUnknownMarksAndTypes(node: unknown, path: string): void {
   if (Array.isArray(node)) {
     node.forEach((child, index) => rejectUnknownMarksAndTypes(child, joinPath(path, String(index))));
