@@ -1,17 +1,20 @@
-// The run of one study, stage by stage: parse -> inputs -> transpile -> type-check -> execute -> charts -> render.
+// The run of one study, stage by stage: parse -> inputs -> transpile -> type-check -> execute -> sensitivity -> charts -> render.
 import type { Diagnostic } from './diagnostics/diagnostic.ts';
 import { StudyFailure } from './diagnostics/diagnostic.ts';
 import { parseStudy } from './study/parse.ts';
 import { type InputOverride, effectiveInputs } from './study/inputs.ts';
 import { releaseTranspiler, transpileBlocks, transpileInlines } from './execute/transpile.ts';
 import { type TypecheckCache, typecheckStudy } from './execute/typecheck.ts';
-import { type ExecutionHooks, executeStudy } from './execute/session.ts';
+import { type ExecutionHooks, type LocatedRecord, executeStudy } from './execute/session.ts';
 import { type RenderedCharts, type ReportParts, renderReportParts } from './report/html.ts';
 import { type ResultsDocument, type StudyRun, recordsOf, resultsDocument } from './report/studyRun.ts';
 import { WorkerLimitError, openLimitedWorker } from './execute/limitedWorker.ts';
 import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from './execute/limits.ts';
 import type { RunLimits } from './study/model.ts';
 import { partModule } from './installation.ts';
+import { requireNamedFigures, sensitivityOutcome } from './sensitivity/outcome.ts';
+import { runVariants } from './sensitivity/variants.ts';
+import { sensitivityCharts } from './report/sensitivity.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -28,6 +31,8 @@ export interface RunRequest {
   /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
   typecheckCache?: TypecheckCache;
   hooks?: ExecutionHooks;
+  /** Also run the study with each uncertain input at each end of its range (the front matter's `sensitivity:`). */
+  sensitivity?: boolean;
   /** Ends the run early, between stages and inside the execution (the live preview's superseded runs). */
   signal?: AbortSignal;
 }
@@ -66,6 +71,32 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
     granted,
   });
   request.signal?.throwIfAborted();
+  // 6. Sensitivity: the named figures exist in every run; with --sensitivity, each range's ends run too, a few processes at a time.
+  const plan = study.sensitivity;
+  if (plan) requireNamedFigures(plan, outcome);
+  if (request.sensitivity && !plan) {
+    throw new StudyFailure([
+      {
+        code: 'sensitivity-no-plan',
+        message: '--sensitivity was asked, but the front matter declares no "sensitivity" section',
+        at: { file: study.file, line: 1 },
+        hint: 'name the uncertain inputs and the results to follow, e.g.\nsensitivity:\n  inputs:\n    lineLength: { low: -1 %, high: +1 % }\n  results: [Open-end voltage]',
+      },
+    ]);
+  }
+  const variants =
+    request.sensitivity && plan
+      ? await runVariants({
+          study,
+          plan,
+          overrides: request.overrides,
+          asRun: inputs,
+          execute: (variantInputs) =>
+            executeStudy(study, variantInputs, blocks, inlines, { ...(request.signal ? { signal: request.signal } : {}), granted }),
+        })
+      : undefined;
+  request.signal?.throwIfAborted();
+  const sensitivity = variants && plan ? sensitivityOutcome(plan, { outcome, inputs }, variants) : undefined;
   const run: StudyRun = {
     study,
     inputs,
@@ -79,10 +110,11 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
       typeChecked: request.typecheck,
       isolation: ISOLATION_DESCRIPTION,
     },
+    ...(sensitivity ? { sensitivity: { outcome: sensitivity, charts: sensitivityCharts(sensitivity) } } : {}),
   };
-  // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
+  // 7. Charts: Vega-Lite to SVG, each failure located at its chart() call.
   const charts = await renderCharts(run);
-  // 7. Render the report and the results document, within the size a report may have.
+  // 8. Render the report and the results document, within the size a report may have.
   const report = renderReportParts(run, charts, request.stylesheet);
   requireReportSize(run, report);
   return { run, report, results: resultsDocument(run) };
@@ -111,7 +143,7 @@ function requireReportSize(run: StudyRun, report: ReportParts): void {
 async function renderCharts(run: StudyRun): Promise<RenderedCharts> {
   const rendered: RenderedCharts = new Map();
   const problems: Diagnostic[] = [];
-  const chartRecords = recordsOf(run, 'chart');
+  const chartRecords: Extract<LocatedRecord, { kind: 'chart' }>[] = [...recordsOf(run, 'chart'), ...(run.sensitivity?.charts ?? [])];
   if (chartRecords.length === 0) return rendered;
   const renderer = openLimitedWorker(partModule('chartWorker'), 'renderChartSvg', HOST_STAGE_LIMITS.chart);
   try {

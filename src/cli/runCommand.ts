@@ -28,12 +28,14 @@ export interface RunOptions {
   keys?: string;
   /** The most the run grants whatever the study asks. */
   ceilings?: RunLimits;
+  /** Also run each uncertain input at the ends of its range (the front matter's `sensitivity:`). */
+  sensitivity?: boolean;
 }
 
 /** The study run in this process to its report in memory (`run` writes it; `preview` serves it); `signal` ends it early. */
 export async function produceStudy(
   studyPath: string,
-  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'> & { signal?: AbortSignal },
+  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings' | 'sensitivity'> & { signal?: AbortSignal },
   terminal: Terminal,
 ): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
@@ -45,6 +47,7 @@ export async function produceStudy(
     overrides: parseOverrideArguments(options.set),
     typecheck: options.typecheck,
     ...(options.ceilings ? { ceilings: options.ceilings } : {}),
+    ...(options.sensitivity ? { sensitivity: true } : {}),
     environment,
     stylesheet: reportStylesheet(),
     typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
@@ -140,6 +143,13 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   terminal.say(`results: ${paths.results}`);
   if (sealed) terminal.say(`seal: ${paths.seal}`);
   terminal.say(`criteria: ${criteriaStatus(failed, criteria.length)}`);
+  const sensitivity = product.results.sensitivity;
+  if (sensitivity) {
+    const flipping = sensitivity.criteria.filter((criterion) => criterion.flips.length > 0).map((criterion) => `"${criterion.name}"`);
+    terminal.say(
+      `sensitivity: ${sensitivity.runs} runs at the ends of ${sensitivity.inputs.length} ${sensitivity.inputs.length === 1 ? 'range' : 'ranges'}; ${flipping.length ? `outcome flips within the ranges: ${flipping.join(', ')}` : 'no followed criterion flips'}`,
+    );
+  }
   if (pdfFailure) throw pdfFailure;
   if (options.pdf || meta.report.pdf) terminal.say(`pdf: ${paths.pdf}`);
   return 0;

@@ -7,6 +7,7 @@ import { escapeHtml } from '../report/escape.ts';
 import { serializeCheckRecord, type CheckRecord } from './checkRecord.ts';
 import { serializeEnvelope, type SealEnvelope, type SealSubject } from './manifest.ts';
 import { sha256Hex } from './digest.ts';
+import { sensitivityFigures } from '../sensitivity/outcome.ts';
 
 const SEAL_SCRIPT_OPEN = '<script type="application/json" id="kvarbook-seal">';
 const CHECK_SCRIPT_OPEN = '<script type="application/json" class="kvarbook-check">';
@@ -46,6 +47,7 @@ export function sealSubject(results: ResultsDocument, bodySha256: string): SealS
       limits: formatLimits(criterion),
     })),
     cautions: results.cautions.map((caution) => caution.text),
+    ...(results.sensitivity ? { sensitivity: sensitivityFigures(results.sensitivity) } : {}),
     kvarbookVersion: results.provenance.kvarbookVersion,
     nodeVersion: results.provenance.nodeVersion,
     lockfileSha256: results.provenance.lockfileSha256,

@@ -5,6 +5,7 @@ import { type Diagnostic, StudyFailure } from '../diagnostics/diagnostic.ts';
 import { createMarkdown, INLINE_VALUE_TOKEN } from './markdown.ts';
 import { readInputs } from './inputs.ts';
 import { readMeta } from './meta.ts';
+import { readSensitivity } from './sensitivity.ts';
 import type { CalcBlock, InlineExpression, Study } from './model.ts';
 import type { YamlPlace } from './yamlFields.ts';
 import { sha256Hex } from '../seal/digest.ts';
@@ -75,6 +76,7 @@ export function parseStudy(file: string, source: string): Study {
 
   const meta = readMeta(document as Document.Parsed, place, diagnostics);
   const inputs = readInputs(document as Document.Parsed, place, diagnostics);
+  const sensitivity = readSensitivity(document as Document.Parsed, place, diagnostics, inputs);
 
   const bodyFirstLine = closing + 2;
   const body = lines.slice(closing + 1).join('\n');
@@ -89,6 +91,7 @@ export function parseStudy(file: string, source: string): Study {
     sourceSha256: sha256Hex(source),
     meta,
     inputs,
+    ...(sensitivity ? { sensitivity } : {}),
     blocks,
     inlines,
     bodyTokens,
