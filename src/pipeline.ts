@@ -13,7 +13,7 @@ import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from 
 import type { RunLimits } from './study/model.ts';
 import { partModule } from './installation.ts';
 import { requireNamedFigures, sensitivityOutcome } from './sensitivity/outcome.ts';
-import { runVariants } from './sensitivity/variants.ts';
+import { runSensitivity } from './sensitivity/variants.ts';
 import { sensitivityCharts } from './report/sensitivity.ts';
 
 export interface RunRequest {
@@ -71,7 +71,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
     granted,
   });
   request.signal?.throwIfAborted();
-  // 6. Sensitivity: the named figures exist in every run; with --sensitivity, each range's ends run too, a few processes at a time.
+  // 6. Sensitivity: the named figures exist in every run; with --sensitivity, each range's ends (and the samples) run too, a few processes at a time.
   const plan = study.sensitivity;
   if (plan) requireNamedFigures(plan, outcome);
   if (request.sensitivity && !plan) {
@@ -84,9 +84,9 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
       },
     ]);
   }
-  const variants =
+  const sensitivityRuns =
     request.sensitivity && plan
-      ? await runVariants({
+      ? await runSensitivity({
           study,
           plan,
           overrides: request.overrides,
@@ -96,7 +96,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
         })
       : undefined;
   request.signal?.throwIfAborted();
-  const sensitivity = variants && plan ? sensitivityOutcome(plan, { outcome, inputs }, variants) : undefined;
+  const sensitivity = sensitivityRuns && plan ? sensitivityOutcome(plan, { outcome, inputs }, sensitivityRuns) : undefined;
   const run: StudyRun = {
     study,
     inputs,

@@ -147,7 +147,7 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   if (sensitivity) {
     const flipping = sensitivity.criteria.filter((criterion) => criterion.flips.length > 0).map((criterion) => `"${criterion.name}"`);
     terminal.say(
-      `sensitivity: ${sensitivity.runs} runs at the ends of ${sensitivity.inputs.length} ${sensitivity.inputs.length === 1 ? 'range' : 'ranges'}; ${flipping.length ? `outcome flips within the ranges: ${flipping.join(', ')}` : 'no followed criterion flips'}`,
+      `sensitivity: ${sensitivity.runs} runs at the ends of ${sensitivity.inputs.length} ${sensitivity.inputs.length === 1 ? 'range' : 'ranges'}${sensitivity.sampled ? ` and ${sensitivity.sampled.samples} samples (seed ${sensitivity.sampled.seed})` : ''}; ${flipping.length ? `outcome flips within the ranges: ${flipping.join(', ')}` : 'no followed criterion flips'}`,
     );
   }
   if (pdfFailure) throw pdfFailure;

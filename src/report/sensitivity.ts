@@ -2,7 +2,7 @@
 import type { ChartRecord } from '../execute/records.ts';
 import { tornadoChart } from '../blocks/charts.ts';
 import { formatQuantity, formatStated } from '../blocks/format.ts';
-import type { CriterionEndOutcome, CriterionSensitivity, RangeEnd, SensitivityOutcome } from '../sensitivity/outcome.ts';
+import type { CriterionEndOutcome, CriterionSensitivity, RangeEnd, SampledOutcome, SensitivityOutcome } from '../sensitivity/outcome.ts';
 import type { StudySensitivity } from './studyRun.ts';
 import { escapeHtml } from './escape.ts';
 
@@ -99,12 +99,60 @@ export function sensitivityAppendix(sensitivity: StudySensitivity, svgs: readonl
       ),
     );
   }
+  if (outcome.sampled) parts.push(sampledSection(outcome.sampled, numbering));
   return parts.join('\n');
+}
+
+function sampledSection(sampled: SampledOutcome, numbering: Numbering): string {
+  const parts = [
+    '<h3>Sampled run</h3>',
+    `<p class="quiet">${sampled.samples} samples from seed ${sampled.seed}: in each, every uncertain input above is drawn at once, independently and uniformly between the ends of its range, from one seeded xoroshiro128+ stream, so every run draws the same samples. A uniform draw within the ranges is an assumption, not knowledge of how the inputs are distributed; the spread shows what the ranges allow together.</p>`,
+    table(
+      numbering,
+      `Spread of each followed result over the ${sampled.samples} samples`,
+      ['Result', 'Mean', 'Standard deviation', 'Lowest', '5th percentile', '95th percentile', 'Highest'],
+      sampled.results.map(
+        (result) =>
+          `<tr><td>${escapeHtml(result.name)}</td>${[
+            result.mean,
+            result.standardDeviation,
+            result.min,
+            result.percentile5,
+            result.percentile95,
+            result.max,
+          ]
+            .map((value) => `<td class="num">${figure(value, result.unit, result.digits)}</td>`)
+            .join('')}</tr>`,
+      ),
+    ),
+  ];
+  if (sampled.criteria.length > 0) {
+    parts.push(
+      table(
+        numbering,
+        `Share of the ${sampled.samples} samples in which each followed criterion is met`,
+        ['Criterion', 'Met in', 'Estimated probability met'],
+        sampled.criteria.map(
+          (criterion) =>
+            `<tr><td>${escapeHtml(criterion.name)}</td><td class="num">${criterion.met} of ${sampled.samples}</td><td class="num">${escapeHtml(percent(criterion.probability))}</td></tr>`,
+        ),
+      ),
+    );
+  }
+  return parts.join('\n');
+}
+
+function percent(share: number): string {
+  return `${formatStated(share * 100, 3)} %`;
 }
 
 /** Under the criteria summary: each followed criterion whose outcome flips within the ranges, or that none does. */
 export function flipsSummary(sensitivity: StudySensitivity, appendixHeading: string): string {
-  const { criteria, inputs } = sensitivity.outcome;
+  const { criteria, inputs, sampled } = sensitivity.outcome;
+  const share = (name: string) => {
+    const entry = sampled?.criteria.find((candidate) => candidate.name === name);
+    return entry && sampled ? `; met in ${escapeHtml(percent(entry.probability))} of ${sampled.samples} samples` : '';
+  };
   if (criteria.length === 0) return '';
   const endText = (input: string, end: RangeEnd) => {
     const range = inputs.find((candidate) => candidate.input === input)!;
@@ -116,7 +164,7 @@ export function flipsSummary(sensitivity: StudySensitivity, appendixHeading: str
   }
   const items = flipping.map(
     (criterion) =>
-      `<li><strong>${escapeHtml(criterion.name)}</strong> ${criterion.asRun.passed ? 'meets' : 'fails'} as run but ${criterion.asRun.passed ? 'fails' : 'meets'} with ${criterion.flips.map((flip) => endText(flip.input, flip.end)).join(', or with ')}</li>`,
+      `<li><strong>${escapeHtml(criterion.name)}</strong> ${criterion.asRun.passed ? 'meets' : 'fails'} as run but ${criterion.asRun.passed ? 'fails' : 'meets'} with ${criterion.flips.map((flip) => endText(flip.input, flip.end)).join(', or with ')}${share(criterion.name)}</li>`,
   );
   return `<div class="sensitivity-flips"><p><strong>Outcome not settled within the uncertainty ranges</strong> (${escapeHtml(appendixHeading)}):</p><ul>\n${items.join('\n')}\n</ul></div>`;
 }

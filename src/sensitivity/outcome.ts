@@ -21,6 +21,17 @@ export interface VariantOutcome {
   outcome: ExecutionOutcome;
 }
 
+/** One sampled run: every ranged input drawn at once. */
+export interface Sample {
+  index: number;
+  quantities: { input: string; quantity: ParsedQuantity }[];
+}
+
+export interface SensitivityRuns {
+  ends: VariantOutcome[];
+  samples: { sample: Sample; outcome: ExecutionOutcome }[];
+}
+
 export interface InputRange {
   input: string;
   declared: string;
@@ -61,12 +72,42 @@ export interface CriterionSensitivity {
   flips: { input: string; end: RangeEnd }[];
 }
 
+export interface SampledResult {
+  name: string;
+  unit: string;
+  digits: number;
+  mean: number;
+  /** The sample standard deviation (divided by n − 1). */
+  standardDeviation: number;
+  min: number;
+  /** Nearest-rank percentiles: the ⌈p·n⌉-th smallest value. */
+  percentile5: number;
+  percentile95: number;
+  max: number;
+}
+
+export interface SampledCriterion {
+  name: string;
+  /** How many samples meet it, and that count over the samples: the estimated probability that it is met. */
+  met: number;
+  probability: number;
+}
+
+export interface SampledOutcome {
+  samples: number;
+  seed: number;
+  results: SampledResult[];
+  criteria: SampledCriterion[];
+}
+
 export interface SensitivityOutcome {
-  /** Runs beyond the one as run: two per range. */
+  /** Runs at the ends of the ranges, beyond the one as run: two per range. */
   runs: number;
   inputs: InputRange[];
   results: ResultSensitivity[];
   criteria: CriterionSensitivity[];
+  /** Present when the front matter asks for samples. */
+  sampled?: SampledOutcome;
 }
 
 function namedRecords<K extends 'result' | 'criterion'>(
@@ -121,8 +162,9 @@ export function requireNamedFigures(plan: SensitivityPlan, outcome: ExecutionOut
 export function sensitivityOutcome(
   plan: SensitivityPlan,
   asRun: { outcome: ExecutionOutcome; inputs: readonly { name: string; value: number; unit: string }[] },
-  variants: readonly VariantOutcome[],
+  runs: SensitivityRuns,
 ): SensitivityOutcome {
+  const variants = runs.ends;
   const baseResults = namedRecords(asRun.outcome, 'result');
   const baseCriteria = namedRecords(asRun.outcome, 'criterion');
   const ofVariant = (input: string, end: RangeEnd) => {
@@ -130,12 +172,12 @@ export function sensitivityOutcome(
     if (!found) throw new Error(`no run with ${input} at its ${end} end`);
     return { variant: found.variant, results: namedRecords(found.outcome, 'result'), criteria: namedRecords(found.outcome, 'criterion') };
   };
-  const runs = plan.ranges.map((range) => ({ range, low: ofVariant(range.input, 'low'), high: ofVariant(range.input, 'high') }));
-  const lost = (what: string, named: { name: string; at: Diagnostic['at'] }, variant: Variant): never => {
+  const byRange = plan.ranges.map((range) => ({ range, low: ofVariant(range.input, 'low'), high: ofVariant(range.input, 'high') }));
+  const lost = (what: string, named: { name: string; at: Diagnostic['at'] }, where: string): never => {
     throw new StudyFailure([
       {
         code: 'sensitivity-variant-failed',
-        message: `with ${variant.input} at the ${variant.end} end of its range (${describe(variant.quantity)}) the run produced no numeric ${what} "${named.name}"`,
+        message: `${where} the run produced no numeric ${what} "${named.name}"`,
         ...(named.at ? { at: named.at } : {}),
         hint: 'a followed figure must come out at every end of every range; narrow the range or follow another figure',
       },
@@ -143,7 +185,7 @@ export function sensitivityOutcome(
   };
   const inputs = plan.ranges.map((range): InputRange => {
     const input = asRun.inputs.find((candidate) => candidate.name === range.input)!;
-    const { low, high } = runs.find((run) => run.range === range)!;
+    const { low, high } = byRange.find((run) => run.range === range)!;
     return {
       input: range.input,
       declared: range.declared,
@@ -156,9 +198,9 @@ export function sensitivityOutcome(
     const base = baseResults.get(named.name) as ResultRecord;
     const valueAt = (found: { variant: Variant; results: Map<string, ResultRecord> }) => {
       const value = found.results.get(named.name)?.value;
-      return typeof value === 'number' ? value : lost('result', named, found.variant);
+      return typeof value === 'number' ? value : lost('result', named, endText(found.variant));
     };
-    const swings = runs.map(({ range, low, high }) => {
+    const swings = byRange.map(({ range, low, high }) => {
       const [lowValue, highValue] = [valueAt(low), valueAt(high)];
       return { input: range.input, low: lowValue, high: highValue, effect: Math.abs(highValue - lowValue) };
     });
@@ -170,13 +212,64 @@ export function sensitivityOutcome(
     const base = baseCriteria.get(named.name) as CriterionRecord;
     const endOf = (found: { variant: Variant; criteria: Map<string, CriterionRecord> }): CriterionEndOutcome => {
       const record = found.criteria.get(named.name);
-      return record ? { value: record.value, passed: record.passed } : lost('criterion', named, found.variant);
+      return record ? { value: record.value, passed: record.passed } : lost('criterion', named, endText(found.variant));
     };
-    const ends = runs.map(({ range, low, high }) => ({ input: range.input, low: endOf(low), high: endOf(high) }));
+    const ends = byRange.map(({ range, low, high }) => ({ input: range.input, low: endOf(low), high: endOf(high) }));
     const flips = ends.flatMap((entry) => RANGE_ENDS.filter((end) => entry[end].passed !== base.passed).map((end) => ({ input: entry.input, end })));
     return { name: named.name, unit: base.unit, digits: base.digits, asRun: { value: base.value, passed: base.passed }, ends, flips };
   });
-  return { runs: variants.length, inputs, results, criteria };
+  const sampled = plan.sampling ? sampledOutcome(plan, plan.sampling, runs.samples, baseResults, lost) : undefined;
+  return { runs: variants.length, inputs, results, criteria, ...(sampled ? { sampled } : {}) };
+}
+
+function sampledOutcome(
+  plan: SensitivityPlan,
+  sampling: { samples: number; seed: number },
+  samples: SensitivityRuns['samples'],
+  baseResults: Map<string, ResultRecord>,
+  lost: (what: string, named: { name: string; at: Diagnostic['at'] }, where: string) => never,
+): SampledOutcome {
+  const gathered = samples.map(({ sample, outcome }) => ({
+    sample,
+    results: namedRecords(outcome, 'result'),
+    criteria: namedRecords(outcome, 'criterion'),
+  }));
+  const inSample = (sample: Sample) => `in sample ${sample.index + 1} of the sampled run`;
+  const results = plan.results.map((named): SampledResult => {
+    const base = baseResults.get(named.name)!;
+    const values = gathered.map(({ sample, results: byName }) => {
+      const value = byName.get(named.name)?.value;
+      return typeof value === 'number' ? value : lost('result', named, inSample(sample));
+    });
+    const n = values.length;
+    const mean = values.reduce((sum, value) => sum + value, 0) / n;
+    const variance = values.reduce((sum, value) => sum + (value - mean) ** 2, 0) / (n - 1);
+    const sorted = [...values].sort((a, b) => a - b);
+    const rank = (share: number) => sorted[Math.max(0, Math.ceil(share * n) - 1)]!;
+    return {
+      name: named.name,
+      unit: base.unit,
+      digits: base.digits,
+      mean,
+      standardDeviation: Math.sqrt(variance),
+      min: sorted[0]!,
+      percentile5: rank(0.05),
+      percentile95: rank(0.95),
+      max: sorted[n - 1]!,
+    };
+  });
+  const criteria = plan.criteria.map((named): SampledCriterion => {
+    const met = gathered.filter(({ sample, criteria: byName }) => {
+      const record = byName.get(named.name);
+      return record ? record.passed : lost('criterion', named, inSample(sample));
+    }).length;
+    return { name: named.name, met, probability: met / gathered.length };
+  });
+  return { samples: sampling.samples, seed: sampling.seed, results, criteria };
+}
+
+function endText(variant: Variant): string {
+  return `with ${variant.input} at the ${variant.end} end of its range (${describe(variant.quantity)})`;
 }
 
 export interface SensitivityFigure {
@@ -206,5 +299,19 @@ export function sensitivityFigures(outcome: SensitivityOutcome): SensitivityFigu
         ]),
       ),
     ),
+    ...(outcome.sampled
+      ? [
+          ...outcome.sampled.results.flatMap((result) =>
+            (['mean', 'standardDeviation', 'min', 'percentile5', 'percentile95', 'max'] as const).map((statistic) => ({
+              name: `sampled: "${result.name}" ${statistic}`,
+              ...withUnit(result[statistic], result.unit),
+            })),
+          ),
+          ...outcome.sampled.criteria.map((criterion) => ({
+            name: `sampled: criterion "${criterion.name}" probability met`,
+            value: criterion.probability,
+          })),
+        ]
+      : []),
   ];
 }

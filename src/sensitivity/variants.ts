@@ -1,11 +1,14 @@
-// The one-at-a-time runs: each uncertain input at each end of its range through the override mechanism, a few calculation processes at a time.
+// The sensitivity runs: each uncertain input at each end of its range, and the seeded samples, through the override mechanism, a few calculation processes at a time.
 import { availableParallelism } from 'node:os';
+import { uniformFloat64 } from 'pure-rand/distribution/uniformFloat64';
+import { xoroshiro128plus } from 'pure-rand/generator/xoroshiro128plus';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import type { ExecutionOutcome } from '../execute/session.ts';
 import { type EffectiveInput, type InputOverride, describe, effectiveInputs } from '../study/inputs.ts';
 import type { SensitivityPlan, Study } from '../study/model.ts';
 import { endsProblem, rangeEnds } from '../study/sensitivity.ts';
-import { RANGE_ENDS, type Variant, type VariantOutcome } from './outcome.ts';
+import { parseQuantity } from '../study/units.ts';
+import { RANGE_ENDS, type Sample, type SensitivityRuns, type Variant } from './outcome.ts';
 
 /** More processes than this gain nothing on a study's small runs and cost memory. */
 const MAX_PARALLEL_RUNS = 4;
@@ -20,42 +23,83 @@ export interface VariantRequest {
   execute: (inputs: EffectiveInput[]) => Promise<ExecutionOutcome>;
 }
 
-/** The variants of a plan about the inputs as run; a range that no longer fits a --set value is refused at the range. */
-export function variantsOf(plan: SensitivityPlan, asRun: readonly EffectiveInput[]): Variant[] {
-  return plan.ranges.flatMap((range) => {
+/** The two ends of every range about the inputs as run; a range that no longer fits a --set value is refused at the range. */
+function rangesAbout(plan: SensitivityPlan, asRun: readonly EffectiveInput[]) {
+  return plan.ranges.map((range) => {
     const input = asRun.find((candidate) => candidate.name === range.input)!;
     const base = { value: input.value, unit: input.unit, si: input.si };
     const problem = endsProblem(range, base, input);
     if (problem) throw new StudyFailure([{ ...problem, at: range.at }]);
-    const ends = rangeEnds(range, base);
-    return RANGE_ENDS.map((end) => ({ input: range.input, end, quantity: ends[end] }));
+    return { range, ends: rangeEnds(range, base) };
   });
 }
 
-export async function runVariants(request: VariantRequest): Promise<VariantOutcome[]> {
+function variantsOf(plan: SensitivityPlan, asRun: readonly EffectiveInput[]): Variant[] {
+  return rangesAbout(plan, asRun).flatMap(({ range, ends }) => RANGE_ENDS.map((end) => ({ input: range.input, end, quantity: ends[end] })));
+}
+
+/**
+ * The samples of a sampled run: for each sample in turn, each range in the front matter's order draws one number, uniform
+ * between the range's ends, from one xoroshiro128+ stream seeded by the study's seed; the same seed draws the same samples.
+ */
+export function samplesOf(plan: SensitivityPlan, asRun: readonly EffectiveInput[]): Sample[] {
+  if (!plan.sampling) return [];
+  const ranges = rangesAbout(plan, asRun);
+  const generator = xoroshiro128plus(plan.sampling.seed);
+  return Array.from({ length: plan.sampling.samples }, (_, index) => ({
+    index,
+    quantities: ranges.map(({ range, ends }) => {
+      const value = ends.low.value + uniformFloat64(generator) * (ends.high.value - ends.low.value);
+      return { input: range.input, quantity: parseQuantity(ends.low.unit ? `${value} ${ends.low.unit}` : String(value)) };
+    }),
+  }));
+}
+
+export async function runSensitivity(request: VariantRequest): Promise<SensitivityRuns> {
   const variants = variantsOf(request.plan, request.asRun);
-  const width = Math.max(1, Math.min(availableParallelism(), MAX_PARALLEL_RUNS, variants.length));
-  const outcomes: VariantOutcome[] = new Array(variants.length);
+  const samples = samplesOf(request.plan, request.asRun);
+  const jobs = [
+    ...variants.map((variant) => ({
+      changes: [{ input: variant.input, quantity: variant.quantity }],
+      what: `with ${variant.input} at the ${variant.end} end of its sensitivity range (${describe(variant.quantity)})`,
+    })),
+    ...samples.map((sample) => ({
+      changes: sample.quantities,
+      what: `in sample ${sample.index + 1} of the sampled run (${sample.quantities.map((entry) => `${entry.input} = ${describe(entry.quantity)}`).join(', ')})`,
+    })),
+  ];
+  const outcomes = await inPool(jobs, async (job) => {
+    const changed = new Set(job.changes.map((change) => change.input));
+    const overrides = [
+      ...request.overrides.filter((override) => !changed.has(override.name)),
+      ...job.changes.map((change) => ({ name: change.input, text: describe(change.quantity) })),
+    ];
+    try {
+      return await request.execute(effectiveInputs(request.study.inputs, overrides));
+    } catch (error) {
+      if (!(error instanceof StudyFailure)) throw error;
+      throw new StudyFailure(error.diagnostics.map((diagnostic) => ({ ...diagnostic, message: `${job.what}: ${diagnostic.message}` })));
+    }
+  });
+  return {
+    ends: variants.map((variant, index) => ({ variant, outcome: outcomes[index]! })),
+    samples: samples.map((sample, index) => ({ sample, outcome: outcomes[variants.length + index]! })),
+  };
+}
+
+/** Each job in its own run, as many at once as the machine has cores (at most MAX_PARALLEL_RUNS); outcomes in the jobs' order. */
+async function inPool<T, R>(jobs: readonly T[], run: (job: T) => Promise<R>): Promise<R[]> {
+  const width = Math.max(1, Math.min(availableParallelism(), MAX_PARALLEL_RUNS, jobs.length));
+  const outcomes: R[] = new Array(jobs.length);
   let next = 0;
-  // Each worker takes the next variant until none is left; results land at their variant's index, so the order is the plan's.
   const worker = async () => {
-    for (let index = next++; index < variants.length; index = next++) {
-      const variant = variants[index]!;
-      const text = describe(variant.quantity);
-      const overrides = [...request.overrides.filter((override) => override.name !== variant.input), { name: variant.input, text }];
-      const inputs = effectiveInputs(request.study.inputs, overrides);
+    for (let index = next++; index < jobs.length; index = next++) {
       try {
-        outcomes[index] = { variant, outcome: await request.execute(inputs) };
+        outcomes[index] = await run(jobs[index]!);
       } catch (error) {
         // The first failure ends the sweep: no worker starts another run.
-        next = variants.length;
-        if (!(error instanceof StudyFailure)) throw error;
-        throw new StudyFailure(
-          error.diagnostics.map((diagnostic) => ({
-            ...diagnostic,
-            message: `with ${variant.input} at the ${variant.end} end of its sensitivity range (${text}): ${diagnostic.message}`,
-          })),
-        );
+        next = jobs.length;
+        throw error;
       }
     }
   };

@@ -80,6 +80,8 @@ export interface SensitivityPlan {
   ranges: SensitivityRange[];
   results: NamedFigure[];
   criteria: NamedFigure[];
+  /** A sampled run besides the ends: `samples` draws of every ranged input at once, uniform within its range, from `seed`. */
+  sampling?: { samples: number; seed: number };
   at: SourceLocation;
 }
 

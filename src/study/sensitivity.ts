@@ -6,7 +6,10 @@ import { allowedRange, describe, outOfRange } from './inputs.ts';
 import { type FieldReader, type YamlPlace, keyOf, nodeOf, pairsOf, readMap, readNumber, rejectUnknownKeys } from './yamlFields.ts';
 import { type ParsedQuantity, UnitProblem, parseQuantity, sameDimension } from './units.ts';
 
-const SECTION_KEYS = ['inputs', 'results', 'criteria'] as const;
+const SECTION_KEYS = ['inputs', 'results', 'criteria', 'samples', 'seed'] as const;
+/** Each sample is a whole run of the study: a bound on the work one front matter can ask for. */
+export const MAX_SAMPLES = 1000;
+const MAX_SEED = 2 ** 32 - 1;
 const RANGE_KEYS = ['low', 'high', 'factor'] as const;
 const PERCENT = /^([+-]?(?:\d+\.?\d*|\.\d+))\s*%$/;
 /** A factor beyond this is no longer an uncertainty but another study. */
@@ -54,8 +57,25 @@ export function readSensitivity(
   }
   const results = readNames(reader, section, 'results', true);
   const criteria = readNames(reader, section, 'criteria', false);
+  const samples = readNumber(reader, section, 'samples', '"sensitivity"', { min: 2, max: MAX_SAMPLES, integer: true });
+  const seed = readNumber(reader, section, 'seed', '"sensitivity"', { min: 0, max: MAX_SEED, integer: true });
+  const [givenSamples, givenSeed] = [nodeOf(section, 'samples') !== undefined, nodeOf(section, 'seed') !== undefined];
+  if (givenSamples !== givenSeed) {
+    diagnostics.push({
+      code: 'front-matter-missing-key',
+      message: `"sensitivity" gives ${givenSamples ? '"samples" but no "seed"' : '"seed" but no "samples"'}`,
+      at: place.at(section),
+      hint: 'a sampled run needs both, so that it draws the same samples every time: e.g. "samples: 200" and "seed: 1"',
+    });
+  }
   if (diagnostics.length > before) return undefined;
-  return { ranges, results, criteria, at: place.at(nodeOf(root, 'sensitivity')) };
+  return {
+    ranges,
+    results,
+    criteria,
+    ...(samples !== undefined && seed !== undefined ? { sampling: { samples, seed } } : {}),
+    at: place.at(nodeOf(root, 'sensitivity')),
+  };
 }
 
 function readRange(reader: FieldReader, name: string, node: YamlNode | null, at: SourceLocation, spec: InputSpec): SensitivityRange | undefined {

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { sealWorkspace, type SealWorkspace } from '../security/sealWorkspace.ts';
-import { lineStudy } from '../sensitivity/lineStudy.ts';
+import { DEFAULT_SENSITIVITY, lineStudy } from '../sensitivity/lineStudy.ts';
 import { readSealedHtml, sealedReportHtml } from '../../src/seal/sealedReport.ts';
 import { buildManifest, signManifest, type SealEnvelope } from '../../src/seal/manifest.ts';
 
@@ -13,7 +13,7 @@ describe('a study sealed with its sensitivity runs', () => {
   let runOutput: string;
   beforeAll(async () => {
     space = sealWorkspace('kvarbook-sensitivity-');
-    writeFileSync(join(space.folder, 'line.study.md'), lineStudy());
+    writeFileSync(join(space.folder, 'line.study.md'), lineStudy(`${DEFAULT_SENSITIVITY}\n  samples: 6\n  seed: 11`));
     const sealed = await kvarbookInProcess(['run', 'line.study.md', '--sensitivity', '--seal'], space.folder, space.env);
     expect(sealed.stderr).toBe('');
     expect(sealed.status).toBe(0);
@@ -21,7 +21,9 @@ describe('a study sealed with its sensitivity runs', () => {
   });
 
   it('says on the terminal how many runs were made and which criterion flips', () => {
-    expect(runOutput).toContain('sensitivity: 4 runs at the ends of 2 ranges; outcome flips within the ranges: "Open-end voltage limit"');
+    expect(runOutput).toContain(
+      'sensitivity: 4 runs at the ends of 2 ranges and 6 samples (seed 11); outcome flips within the ranges: "Open-end voltage limit"',
+    );
   });
 
   it('seals every sensitivity figure, and writes them to the results document', () => {
@@ -29,11 +31,13 @@ describe('a study sealed with its sensitivity runs', () => {
     const names = seal.manifest.sensitivity.map((figure: { name: string }) => figure.name);
     expect(names).toContain('sensitivity: "Open-end voltage" with lineLength at its high end');
     expect(names).toContain('sensitivity: criterion "Open-end voltage limit" met with seriesReactance at its high end');
+    expect(names).toContain('sampled: "Open-end voltage" percentile95');
+    expect(names).toContain('sampled: criterion "Open-end voltage limit" probability met');
     const results = JSON.parse(readFileSync(join(space.folder, 'build/TEST-1-r1.results.json'), 'utf8'));
     expect(results.sensitivity.runs).toBe(4);
   });
 
-  it('verifies on check, which runs the ends again and reproduces every sensitivity figure', async () => {
+  it('verifies on check, which runs the ends and the samples again and reproduces every sensitivity figure', async () => {
     const check = await kvarbookInProcess(['check', 'build/TEST-1-r1.html', '--json'], space.folder, space.env);
     const outcome = JSON.parse(check.stdout);
     expect(outcome.verdict).toBe('verified');

@@ -90,6 +90,21 @@ describe('the sensitivity section of the front matter', () => {
     expect(range.declared).toBe('÷ 1.25 to × 1.25');
   });
 
+  it('refuses samples without a seed, so that a sampled run always draws the same samples', async () => {
+    const source = lineStudy(`${section('    lineLength: { low: -1 %, high: +1 % }')}\n  samples: 20`);
+    const [problem] = await diagnosticsOf(runSource(source));
+    expect(problem?.code).toBe('front-matter-missing-key');
+    expect(problem?.message).toBe('"sensitivity" gives "samples" but no "seed"');
+  });
+
+  it('refuses more samples than a study may ask for, at the number', async () => {
+    const source = lineStudy(`${section('    lineLength: { low: -1 %, high: +1 % }')}\n  samples: 5000\n  seed: 1`);
+    const [problem] = await diagnosticsOf(runSource(source));
+    expect(problem?.code).toBe('front-matter-range');
+    expect(problem?.at?.line).toBe(lineOf(source, 'samples: 5000'));
+    expect(problem?.expected).toBe('a whole number from 2 to 1000');
+  });
+
   it('refuses --sensitivity for a study without a sensitivity section', async () => {
     const source = lineStudy().replace(/sensitivity:\n( {2}.*\n)+/, '');
     const [problem] = await diagnosticsOf(runSource(source, { sensitivity: true }));
