@@ -164,7 +164,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
         passed: problems === 0,
         detail: `${
           problems === 0
-            ? `${comparison.matched === 1 ? 'the one sealed figure' : `all ${comparison.matched} sealed figures`} reproduced`
+            ? `${comparison.matched === 1 ? 'the one sealed figure' : `all ${comparison.matched} sealed figures`} reproduced${manifest.sensitivity ? `, ${manifest.sensitivity.length} of them from the sensitivity runs, run again` : ''}`
             : `${comparison.mismatches.length} figures differ, ${comparison.missing.length} missing, ${comparison.extra.length} not sealed`
         }${environmentNote(manifest, request.environment)}`,
       });

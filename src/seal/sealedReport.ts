@@ -65,7 +65,7 @@ function sealSection(envelope: SealEnvelope, checks: readonly CheckRecord[]): st
     .join('\n');
   return `<section class="seal sealed" id="seal">
 <p><strong>Sealed</strong> by ${escapeHtml(signer.name)}, licence ${escapeHtml(signer.licence)} (${escapeHtml(signer.jurisdiction)}), for the study dated ${escapeHtml(envelope.manifest.studyDate)}.</p>
-<p>Signing key <span class="fingerprint">${escapeHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
+<p>Signing key <span class="fingerprint">${escapeHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, ${envelope.manifest.sensitivity ? `${envelope.manifest.sensitivity.length} sensitivity figures, ` : ''}the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
 ${checkLines}
 </section>`;
 }

@@ -7,8 +7,9 @@ import { type FieldReader, type YamlPlace, keyOf, nodeOf, pairsOf, readMap, read
 import { type ParsedQuantity, UnitProblem, parseQuantity, sameDimension } from './units.ts';
 
 const SECTION_KEYS = ['inputs', 'results', 'criteria', 'samples', 'seed'] as const;
-/** Each sample is a whole run of the study: a bound on the work one front matter can ask for. */
+/** Each end and each sample is a whole run of the study (and `check` makes them again): a bound on the work one front matter can ask for. */
 export const MAX_SAMPLES = 1000;
+const MAX_RUNS = 1200;
 const MAX_SEED = 2 ** 32 - 1;
 const RANGE_KEYS = ['low', 'high', 'factor'] as const;
 const PERCENT = /^([+-]?(?:\d+\.?\d*|\.\d+))\s*%$/;
@@ -66,6 +67,18 @@ export function readSensitivity(
       message: `"sensitivity" gives ${givenSamples ? '"samples" but no "seed"' : '"seed" but no "samples"'}`,
       at: place.at(section),
       hint: 'a sampled run needs both, so that it draws the same samples every time: e.g. "samples: 200" and "seed: 1"',
+    });
+  }
+  const runs = 2 * ranges.length + (samples ?? 0);
+  if (runs > MAX_RUNS) {
+    diagnostics.push({
+      code: 'front-matter-range',
+      message: `"sensitivity" asks for ${runs} runs of the study (two per range${samples ? ', one per sample' : ''}); a study may ask for at most ${MAX_RUNS}`,
+      at: place.at(section),
+      hint: 'follow fewer inputs, or draw fewer samples',
+      quantity: 'sensitivity runs',
+      expected: `at most ${MAX_RUNS}`,
+      actual: runs,
     });
   }
   if (diagnostics.length > before) return undefined;

@@ -33,6 +33,7 @@ describe('a study sealed with its sensitivity runs', () => {
     expect(names).toContain('sensitivity: criterion "Open-end voltage limit" met with seriesReactance at its high end');
     expect(names).toContain('sampled: "Open-end voltage" percentile95');
     expect(names).toContain('sampled: criterion "Open-end voltage limit" probability met');
+    expect(readFileSync(join(space.folder, 'build/TEST-1-r1.html'), 'utf8')).toContain(`${names.length} sensitivity figures, the cautions`);
     const results = JSON.parse(readFileSync(join(space.folder, 'build/TEST-1-r1.results.json'), 'utf8'));
     expect(results.sensitivity.runs).toBe(4);
   });
@@ -44,6 +45,9 @@ describe('a study sealed with its sensitivity runs', () => {
     const seal = JSON.parse(readFileSync(join(space.folder, 'build/TEST-1-r1.seal.json'), 'utf8'));
     const sealedCount = seal.manifest.results.length + 2 * seal.manifest.criteria.length + seal.manifest.sensitivity.length;
     expect(outcome.comparison.matched).toBe(sealedCount);
+    expect(outcome.steps.find((step: { name: string }) => step.name === 're-run').detail).toBe(
+      `all ${sealedCount} sealed figures reproduced, ${seal.manifest.sensitivity.length} of them from the sensitivity runs, run again`,
+    );
     expect(check.status).toBe(0);
   });
 

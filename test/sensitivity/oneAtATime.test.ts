@@ -1,7 +1,7 @@
 // The one-at-a-time runs of `--sensitivity`: each range's ends run through the overrides, results sorted by effect, flips called out.
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { RunProduct } from '../../src/pipeline.ts';
-import { runSource } from '../support/studies.ts';
+import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 import { SHUNT_SUSCEPTANCE_US_PER_KM, lineStudy } from './lineStudy.ts';
 
 describe('a lossless line run with its length and series reactance at the ends of their ranges', () => {
@@ -88,5 +88,18 @@ describe('a criterion that holds across the ranges', () => {
   it('is said to keep its outcome', async () => {
     const product = await runSource(lineStudy().replace('max: 1.068', 'max: 1.1'), { sensitivity: true });
     expect(product.report.body).toContain('no followed criterion changes its outcome');
+  });
+});
+
+describe('a study that fails at one end of a range', () => {
+  it('is refused at the failing line, naming the input and the end', async () => {
+    const source = studyText({
+      frontMatter: 'sensitivity:\n  inputs:\n    lineLength: { low: -1 %, high: +1 % }\n  results: [Length]',
+      inputs: '  lineLength: 320 km',
+      body: '```ts\nif (inputs.lineLength.in("km") > 321) throw new Error("longer than the route survey allows");\nresult("Length", inputs.lineLength.in("km"), { unit: "km" });\n```\n',
+    });
+    const [problem] = await diagnosticsOf(runSource(source, { sensitivity: true }));
+    expect(problem?.message).toBe('with lineLength at the high end of its sensitivity range (323.2 km): longer than the route survey allows');
+    expect(problem?.at?.line).toBe(lineOf(source, 'throw new Error'));
   });
 });

@@ -1,6 +1,6 @@
 // The front matter's sensitivity section: each mistake refused where it is written, with what is allowed.
 import { describe, expect, it } from 'vitest';
-import { diagnosticsOf, lineOf, runSource } from '../support/studies.ts';
+import { diagnosticsOf, lineOf, runSource, studyText } from '../support/studies.ts';
 import { lineStudy } from '../sensitivity/lineStudy.ts';
 
 const section = (inputs: string, results = 'Open-end voltage', criteria?: string) =>
@@ -103,6 +103,19 @@ describe('the sensitivity section of the front matter', () => {
     expect(problem?.code).toBe('front-matter-range');
     expect(problem?.at?.line).toBe(lineOf(source, 'samples: 5000'));
     expect(problem?.expected).toBe('a whole number from 2 to 1000');
+  });
+
+  it('refuses a section that asks for more runs of the study than a study may', async () => {
+    const names = Array.from({ length: 101 }, (_, index) => `length${index}`);
+    const source = studyText({
+      frontMatter: `sensitivity:\n  inputs:\n${names.map((name) => `    ${name}: { low: -1 %, high: +1 % }`).join('\n')}\n  results: [Length]\n  samples: 1000\n  seed: 1`,
+      inputs: names.map((name) => `  ${name}: 320 km`).join('\n'),
+      body: '```ts\nresult("Length", 1, { unit: "km" });\n```\n',
+    });
+    const [problem] = await diagnosticsOf(runSource(source));
+    expect(problem?.code).toBe('front-matter-range');
+    expect(problem?.actual).toBe(1202);
+    expect(problem?.expected).toBe('at most 1200');
   });
 
   it('refuses --sensitivity for a study without a sensitivity section', async () => {
