@@ -52,6 +52,8 @@ export interface ResultSensitivity {
   name: string;
   unit: string;
   digits: number;
+  /** The result's own relative tolerance for a checker, which its sensitivity figures keep. */
+  tolerance?: number;
   asRun: number;
   /** Largest effect first; equal effects keep the order of the ranges. */
   swings: ResultSwing[];
@@ -76,6 +78,7 @@ export interface SampledResult {
   name: string;
   unit: string;
   digits: number;
+  tolerance?: number;
   mean: number;
   /** The sample standard deviation (divided by n − 1). */
   standardDeviation: number;
@@ -206,7 +209,7 @@ export function sensitivityOutcome(
     });
     // Array.prototype.sort is stable: equal effects keep the order the front matter gives.
     swings.sort((a, b) => b.effect - a.effect);
-    return { name: named.name, unit: base.unit, digits: base.digits, asRun: base.value as number, swings };
+    return { name: named.name, unit: base.unit, digits: base.digits, ...tolerance(base), asRun: base.value as number, swings };
   });
   const criteria = plan.criteria.map((named): CriterionSensitivity => {
     const base = baseCriteria.get(named.name) as CriterionRecord;
@@ -250,6 +253,7 @@ function sampledOutcome(
       name: named.name,
       unit: base.unit,
       digits: base.digits,
+      ...tolerance(base),
       mean,
       standardDeviation: Math.sqrt(variance),
       min: sorted[0]!,
@@ -268,6 +272,10 @@ function sampledOutcome(
   return { samples: sampling.samples, seed: sampling.seed, results, criteria };
 }
 
+function tolerance(record: ResultRecord): { tolerance?: number } {
+  return record.tolerance === undefined ? {} : { tolerance: record.tolerance };
+}
+
 function endText(variant: Variant): string {
   return `with ${variant.input} at the ${variant.end} end of its range (${describe(variant.quantity)})`;
 }
@@ -276,6 +284,7 @@ export interface SensitivityFigure {
   name: string;
   value: number | boolean;
   unit?: string;
+  tolerance?: number;
 }
 
 /** Every sensitivity figure under a stable name, as the seal signs them and `check` compares them. */
@@ -288,7 +297,11 @@ export function sensitivityFigures(outcome: SensitivityOutcome): SensitivityFigu
     ),
     ...outcome.results.flatMap((result) =>
       result.swings.flatMap((swing) =>
-        RANGE_ENDS.map((end) => ({ name: `sensitivity: "${result.name}" ${at(swing.input, end)}`, ...withUnit(swing[end], result.unit) })),
+        RANGE_ENDS.map((end) => ({
+          name: `sensitivity: "${result.name}" ${at(swing.input, end)}`,
+          ...withUnit(swing[end], result.unit),
+          ...(result.tolerance === undefined ? {} : { tolerance: result.tolerance }),
+        })),
       ),
     ),
     ...outcome.criteria.flatMap((criterion) =>
@@ -305,6 +318,8 @@ export function sensitivityFigures(outcome: SensitivityOutcome): SensitivityFigu
             (['mean', 'standardDeviation', 'min', 'percentile5', 'percentile95', 'max'] as const).map((statistic) => ({
               name: `sampled: "${result.name}" ${statistic}`,
               ...withUnit(result[statistic], result.unit),
+              // A spread is not a value of the result: a relative tolerance of the result says nothing of it.
+              ...(result.tolerance === undefined || statistic === 'standardDeviation' ? {} : { tolerance: result.tolerance }),
             })),
           ),
           ...outcome.sampled.criteria.map((criterion) => ({
