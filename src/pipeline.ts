@@ -1,4 +1,4 @@
-// The run of one study, stage by stage: parse -> inputs -> transpile -> type-check -> execute -> charts -> render.
+// The run of one study, stage by stage: parse -> inputs -> transpile -> type-check -> execute -> sensitivity -> charts -> render.
 import type { Diagnostic } from './diagnostics/diagnostic.ts';
 import { StudyFailure } from './diagnostics/diagnostic.ts';
 import { parseStudy } from './study/parse.ts';
@@ -12,6 +12,9 @@ import { type LimitedWorker, WorkerLimitError, openLimitedWorker } from './execu
 import { DEFAULT_CEILINGS, HOST_STAGE_LIMITS, OUTPUT_LIMITS, grantLimits } from './execute/limits.ts';
 import type { RunLimits } from './study/model.ts';
 import { partModule } from './installation.ts';
+import { requireNamedFigures, sensitivityOutcome } from './sensitivity/outcome.ts';
+import { runSensitivity } from './sensitivity/variants.ts';
+import { sensitivityCharts } from './report/sensitivity.ts';
 
 export interface RunRequest {
   /** The study path as the user named it; used in every location shown. */
@@ -30,6 +33,8 @@ export interface RunRequest {
   /** Charts drawn by earlier runs, kept by the edge; every run draws anew when absent. */
   chartCache?: ChartCache;
   hooks?: ExecutionHooks;
+  /** Also run the study with each uncertain input at each end of its range (the front matter's `sensitivity:`). */
+  sensitivity?: boolean;
   /** Ends the run early, between stages and inside the execution (the live preview's superseded runs). */
   signal?: AbortSignal;
 }
@@ -59,6 +64,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   const calculation = startCalculation(study, granted.limits);
   const charts = new ChartDrawing(study.file, request.chartCache);
   let outcome: ExecutionOutcome;
+  let sensitivity: ReturnType<typeof sensitivityOutcome> | undefined;
   try {
     // 3. Transpile every block and inline value; declarations found for the shared scope.
     let blocks: ReturnType<typeof transpileBlocks>;
@@ -89,12 +95,38 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
     for (const records of held) charts.draw(records);
     outcome = await executed;
     request.signal?.throwIfAborted();
+    calculation.close();
+    // 6. Sensitivity: the named figures exist in every run; with --sensitivity, each range's ends (and the samples) run too, a few processes at a time.
+    const plan = study.sensitivity;
+    if (plan) requireNamedFigures(plan, outcome);
+    if (request.sensitivity && !plan) {
+      throw new StudyFailure([
+        {
+          code: 'sensitivity-no-plan',
+          message: '--sensitivity was asked, but the front matter declares no "sensitivity" section',
+          at: { file: study.file, line: 1 },
+          hint: 'name the uncertain inputs and the results to follow, e.g.\nsensitivity:\n  inputs:\n    lineLength: { low: -1 %, high: +1 % }\n  results: [Open-end voltage]',
+        },
+      ]);
+    }
+    const sensitivityRuns =
+      request.sensitivity && plan
+        ? await runSensitivity({
+            study,
+            plan,
+            overrides: request.overrides,
+            asRun: inputs,
+            execute: (variantInputs) =>
+              executeStudy(study, variantInputs, blocks, inlines, { ...(request.signal ? { signal: request.signal } : {}), granted }),
+          })
+        : undefined;
+    request.signal?.throwIfAborted();
+    sensitivity = sensitivityRuns && plan ? sensitivityOutcome(plan, { outcome, inputs }, sensitivityRuns) : undefined;
   } catch (error) {
     calculation.close();
     await charts.close();
     throw error;
   }
-  calculation.close();
   const run: StudyRun = {
     study,
     inputs,
@@ -108,10 +140,12 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
       typeChecked: request.typecheck,
       isolation: ISOLATION_DESCRIPTION,
     },
+    ...(sensitivity ? { sensitivity: { outcome: sensitivity, charts: sensitivityCharts(sensitivity) } } : {}),
   };
-  // 6. Charts: Vega-Lite to SVG, each failure located at its chart() call.
+  // 7. Charts: Vega-Lite to SVG, each failure located at its chart() call.
+  charts.draw(run.sensitivity?.charts ?? []);
   const rendered = await charts.finish();
-  // 7. Render the report and the results document, within the size a report may have.
+  // 8. Render the report and the results document, within the size a report may have.
   const report = renderReportParts(run, rendered, request.stylesheet);
   requireReportSize(run, report);
   return { run, report, results: resultsDocument(run) };

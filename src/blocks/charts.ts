@@ -461,6 +461,48 @@ export function transferComparisonChart(input: TransferComparisonInput): ChartSp
   return frame(input.title ?? 'Transfer limits of each alternative', layers);
 }
 
+export interface TornadoInput {
+  /** The figure whose sensitivity is drawn, with its unit, e.g. "Open-end voltage" in "pu". */
+  figure: string;
+  unit: string;
+  /** Its value as run: where every bar starts. */
+  asRun: number;
+  /** One bar per uncertain input, in the order to draw them from the top (largest effect first). */
+  bars: { label: string; low: number; high: number }[];
+  title?: string;
+}
+
+const TORNADO_ENDS = ['input at its low end', 'input at its high end'] as const;
+
+/** A tornado chart: for each input, the figure at the low and the high end of the input's range, as bars from the value as run. */
+export function tornadoChart(input: TornadoInput): ChartSpec {
+  const labels = seriesLabels(input.bars, 'bars');
+  const asRun = finite(input.asRun, 'asRun');
+  const values = input.bars.flatMap((bar, index) => [
+    { input: bar.label, end: TORNADO_ENDS[0], from: asRun, to: finite(bar.low, `bars[${index}].low`) },
+    { input: bar.label, end: TORNADO_ENDS[1], from: asRun, to: finite(bar.high, `bars[${index}].high`) },
+  ]);
+  const xTitle = input.unit ? `${input.figure} (${input.unit})` : input.figure;
+  return frame(input.title ?? `Sensitivity of ${input.figure}`, [
+    {
+      data: { values },
+      mark: { type: 'bar', opacity: 0.85 },
+      encoding: {
+        y: { field: 'input', type: 'nominal', title: 'Input', sort: labels },
+        x: { field: 'to', type: 'quantitative', title: xTitle, scale: { zero: false } },
+        x2: { field: 'from' },
+        color: {
+          field: 'end',
+          type: 'nominal',
+          title: 'Value with the',
+          scale: { domain: [...TORNADO_ENDS], range: [...seriesColours.slice(0, 2)] },
+        },
+      },
+    },
+    verticalRuleLayer(asRun, 'as run', xTitle),
+  ]);
+}
+
 function frame(title: string, layers: ChartSpec[], subtitle?: string): ChartSpec {
   return {
     title: subtitle === undefined ? title : { text: title, subtitle },

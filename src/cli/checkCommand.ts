@@ -50,6 +50,7 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         file,
         source: request.source,
         overrides: request.overrides,
+        sensitivity: request.sensitivity,
         typecheck: true,
         ...(ceilings ? { ceilings } : {}),
         environment: request.environment,

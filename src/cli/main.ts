@@ -81,6 +81,7 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
       .option('--variant <name>', 'the word in the file names of a run with --set (default: the overrides written out)')
       .addOption(new Option('--no-typecheck', 'skip type-checking the blocks (faster while drafting)'))
       .option('--pdf', 'also print the report to PDF with the system Chromium (or set report.pdf in the front matter)')
+      .option('--sensitivity', "also run each uncertain input at the ends of its range (the front matter's sensitivity section)")
       .option('--seal', "seal the report with the engineer's signing key")
       .option('--replace-sealed', 'move an existing sealed report of the same id and revision to superseded/ instead of refusing')
       .option('--keys <dir>', 'folder of signing keys', folders.keys),

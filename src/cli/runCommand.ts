@@ -32,12 +32,14 @@ export interface RunOptions {
   keys?: string;
   /** The most the run grants whatever the study asks. */
   ceilings?: RunLimits;
+  /** Also run each uncertain input at the ends of its range (the front matter's `sensitivity:`). */
+  sensitivity?: boolean;
 }
 
 /** The study run in this process to its report in memory (`run` writes it; `preview` serves it); `signal` ends it early. */
 export async function produceStudy(
   studyPath: string,
-  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings'> & { signal?: AbortSignal },
+  options: Pick<RunOptions, 'set' | 'typecheck' | 'ceilings' | 'sensitivity'> & { signal?: AbortSignal },
   terminal: Terminal,
 ): Promise<RunProduct> {
   const source = readStudyFile(studyPath);
@@ -49,6 +51,7 @@ export async function produceStudy(
     overrides: parseOverrideArguments(options.set),
     typecheck: options.typecheck,
     ...(options.ceilings ? { ceilings: options.ceilings } : {}),
+    ...(options.sensitivity ? { sensitivity: true } : {}),
     environment,
     stylesheet: reportStylesheet(),
     typecheckCache: typecheckCache(launchEnvironment(), environment.kvarbookVersion),
@@ -161,6 +164,13 @@ export async function runCommand(studyPath: string, options: RunOptions, termina
   if (sealed && failed > 0) {
     const names = criteria.filter((criterion) => !criterion.passed).map((criterion) => criterion.name);
     terminal.warn(`sealed with ${criteriaStatus(failed, criteria.length)}: ${names.join(', ')}`);
+  }
+  const sensitivity = product.results.sensitivity;
+  if (sensitivity) {
+    const flipping = sensitivity.criteria.filter((criterion) => criterion.flips.length > 0).map((criterion) => `"${criterion.name}"`);
+    terminal.say(
+      `sensitivity: ${sensitivity.runs} runs at the ends of ${sensitivity.inputs.length} ${sensitivity.inputs.length === 1 ? 'range' : 'ranges'}${sensitivity.sampled ? ` and ${sensitivity.sampled.samples} samples (seed ${sensitivity.sampled.seed})` : ''}; ${flipping.length ? `outcome flips within the ranges: ${flipping.join(', ')}` : 'no followed criterion flips'}`,
+    );
   }
   if (pdfFailure) throw pdfFailure;
   if (options.pdf || meta.report.pdf) terminal.say(`pdf: ${paths.pdf}`);

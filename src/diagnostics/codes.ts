@@ -37,6 +37,15 @@ export const DIAGNOSTIC_CODES = {
   'override-unit-mismatch': "the unit of a --set value does not measure the input's quantity",
   'override-out-of-range': "a --set value is outside the input's allowed range",
 
+  // Sensitivity (src/study/sensitivity.ts, src/sensitivity)
+  'sensitivity-unknown-input': 'the sensitivity section names an input the study does not declare',
+  'sensitivity-range': 'a sensitivity range is malformed: no ends, both a factor and ends, or a low end not below the high end',
+  'sensitivity-out-of-range': "a sensitivity range reaches outside the input's own allowed range",
+  'sensitivity-unknown-result': 'the sensitivity section names a result or criterion the run never produced',
+  'sensitivity-result-not-number': 'the sensitivity section names a result that is not a number',
+  'sensitivity-no-plan': '--sensitivity was asked of a study whose front matter declares no sensitivity section',
+  'sensitivity-variant-failed': 'the study failed with an input at one end of its sensitivity range',
+
   // The study body (src/study, src/execute)
   'fence-unclosed': 'a fenced code block has no closing fence',
   'markdown-image-source': 'an image in the prose points outside the report',

@@ -9,6 +9,7 @@ import { type StudyRun, calculationLogSteps, cautionsOf, recordsOf, solverCallOp
 import { STUDY_SOURCE_SCRIPT, jsonScript } from './embed.ts';
 import { escapeHtml, hashHtml } from './escape.ts';
 import { describeLimits } from './provenance.ts';
+import { flipsSummary, sensitivityAppendix } from './sensitivity.ts';
 
 // The study body's markdown-it, with the report's rules (below) registered once.
 const bodyMarkdown = createMarkdown();
@@ -274,7 +275,7 @@ function bodyHtml(
     counters,
     headings,
     slugs: {
-      taken: new Set(['criteria', 'cautions', CODE_APPENDIX.id, 'inputs', 'calculation-log', 'provenance', 'contents', 'summary']),
+      taken: new Set(['criteria', 'cautions', CODE_APPENDIX.id, 'inputs', 'calculation-log', 'sensitivity', 'provenance', 'contents', 'summary']),
       next: new Map(),
     },
     blocksByFence: new Map(run.study.blocks.map((block) => [block.fenceLine, block])),
@@ -466,8 +467,22 @@ export function renderReportParts(run: StudyRun, charts: RenderedCharts, stylesh
       content: `<p class="quiet">Every named result, criterion and solver call, in the order the study made them, with the study line it came from. Every value is given in full; a long array, or a value nested deeper than a line can show, is named with its place in the attached results.json (its solverCallLog holds every solver call whole, by step).</p>
 ${calculationLog(run)}`,
     },
+    ...(run.sensitivity
+      ? [
+          {
+            id: 'sensitivity',
+            title: 'Sensitivity',
+            content: sensitivityAppendix(
+              run.sensitivity,
+              run.sensitivity.charts.map((chart) => charts.get(chart) ?? ''),
+              counters,
+            ),
+          },
+        ]
+      : []),
     { id: 'provenance', title: 'Provenance', content: provenanceList(run) },
   ].map((appendix, index) => ({ ...appendix, heading: `Appendix ${String.fromCharCode(65 + index)}. ${appendix.title}` }));
+  const sensitivityHeading = appendices.find((appendix) => appendix.id === 'sensitivity')?.heading;
   const contents = [
     ...headings
       .filter((heading) => heading.level <= 2)
@@ -510,7 +525,7 @@ ${contents}
 </nav>
 <section class="summary" id="summary">
 <h2>Criteria at a glance</h2>
-${criteriaTable(criteria, false)}
+${criteriaTable(criteria, false)}${sensitivityHeading && run.sensitivity ? `\n${flipsSummary(run.sensitivity, sensitivityHeading)}` : ''}
 </section>
 <main class="study">
 ${body}

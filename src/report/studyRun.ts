@@ -3,7 +3,8 @@ import type { SourceLocation } from '../diagnostics/diagnostic.ts';
 import type { EffectiveInput } from '../study/inputs.ts';
 import type { Study } from '../study/model.ts';
 import type { ExecutionOutcome, LocatedRecord } from '../execute/session.ts';
-import type { CautionRecord, CriterionRecord, ResultRecord, SolverCallRecord } from '../execute/records.ts';
+import type { CautionRecord, ChartRecord, CriterionRecord, ResultRecord, SolverCallRecord } from '../execute/records.ts';
+import type { SensitivityOutcome } from '../sensitivity/outcome.ts';
 import { STANDING_CAUTIONS, earnedCautions } from './cautions.ts';
 import type { Provenance } from './provenance.ts';
 
@@ -12,6 +13,14 @@ export interface StudyRun {
   inputs: EffectiveInput[];
   outcome: ExecutionOutcome;
   provenance: Provenance;
+  /** The one-at-a-time runs, when the run was asked for them (`--sensitivity`). */
+  sensitivity?: StudySensitivity;
+}
+
+export interface StudySensitivity {
+  outcome: SensitivityOutcome;
+  /** One tornado chart per followed result, in the order of `outcome.results`. */
+  charts: ChartRecord[];
 }
 
 type Located<T> = T & { at?: SourceLocation };
@@ -86,6 +95,7 @@ export interface ResultsDocument {
   solverCalls: number;
   /** The solver calls of the calculation log in full; the report's log points here for what it does not show inline. */
   solverCallLog: SolverCallEntry[];
+  sensitivity?: SensitivityOutcome;
   provenance: Provenance;
 }
 
@@ -127,6 +137,7 @@ export function resultsDocument(run: StudyRun): ResultsDocument {
           ]
         : [],
     ),
+    ...(run.sensitivity ? { sensitivity: run.sensitivity.outcome } : {}),
     provenance: run.provenance,
   };
 }

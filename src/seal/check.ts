@@ -3,6 +3,7 @@ import type { RunProduct } from '../pipeline.ts';
 import type { ResultsDocument } from '../report/studyRun.ts';
 import type { CalcBlock, Person } from '../study/model.ts';
 import { compareResults, type ResultComparison } from './compare.ts';
+import { sensitivityFigures } from '../sensitivity/outcome.ts';
 import { checkRecordSchema, verifyCheckRecord, type CheckRecord, type CheckStep } from './checkRecord.ts';
 import { sha256Hex } from './digest.ts';
 import type { PublicIdentity } from './keys.ts';
@@ -22,6 +23,8 @@ export interface RerunRequest {
   /** The file name the sealed report shows; the re-run renders under the same name. */
   studyFile: string;
   overrides: { name: string; text: string }[];
+  /** The seal holds sensitivity figures: the re-run makes the one-at-a-time runs too. */
+  sensitivity: boolean;
   /**
    * The sealed environment, so that the re-rendered provenance reads as the sealed one does; the
    * calculation itself runs on this machine (`CheckRequest.environment`).
@@ -152,6 +155,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
         source: request.source,
         studyFile: manifest.studyFile,
         overrides: overridesOf(manifest),
+        sensitivity: manifest.sensitivity !== undefined,
         environment: sealedEnvironment(manifest),
       });
       comparison = compareResults(sealedFigures(manifest), rerunFigures(rerun.results), {
@@ -163,7 +167,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
         passed: problems === 0,
         detail: `${
           problems === 0
-            ? `${comparison.matched === 1 ? 'the one sealed figure' : `all ${comparison.matched} sealed figures`} reproduced`
+            ? `${comparison.matched === 1 ? 'the one sealed figure' : `all ${comparison.matched} sealed figures`} reproduced${manifest.sensitivity ? `, ${manifest.sensitivity.length} of them from the sensitivity runs, run again` : ''}`
             : `${comparison.mismatches.length} figures differ, ${comparison.missing.length} missing, ${comparison.extra.length} not sealed`
         }${environmentNote(manifest, request.environment)}`,
       });
@@ -300,6 +304,7 @@ function overridesOf(manifest: SealManifest): { name: string; text: string }[] {
 function sealedFigures(manifest: SealManifest) {
   return [
     ...manifest.results,
+    ...(manifest.sensitivity ?? []),
     ...manifest.criteria.flatMap((criterion) => [
       { name: `criterion "${criterion.name}"`, value: criterion.value, ...(criterion.unit ? { unit: criterion.unit } : {}) },
       { name: `criterion "${criterion.name}" met`, value: criterion.passed },
@@ -310,6 +315,7 @@ function sealedFigures(manifest: SealManifest) {
 function rerunFigures(results: ResultsDocument) {
   return [
     ...results.results.map((result) => ({ name: result.name, value: result.value, ...(result.unit ? { unit: result.unit } : {}) })),
+    ...(results.sensitivity ? sensitivityFigures(results.sensitivity) : []),
     ...results.criteria.flatMap((criterion) => [
       { name: `criterion "${criterion.name}"`, value: criterion.value, ...(criterion.unit ? { unit: criterion.unit } : {}) },
       { name: `criterion "${criterion.name}" met`, value: criterion.passed },

@@ -56,6 +56,8 @@ const subjectFields = {
   results: z.array(sealedResultSchema).superRefine(rejectDuplicateNames),
   criteria: z.array(criterionSchema).superRefine(rejectDuplicateNames),
   cautions: z.array(z.string()),
+  /** The figures of the one-at-a-time runs, when the report was made with them; `check` then runs them again. */
+  sensitivity: z.array(sealedResultSchema).superRefine(rejectDuplicateNames).optional(),
   kvarbookVersion: label,
   nodeVersion: label,
   lockfileSha256: sha256Hex,

@@ -7,6 +7,7 @@ import { escapeHtml, hashHtml } from '../report/escape.ts';
 import { serializeCheckRecord, type CheckRecord } from './checkRecord.ts';
 import { serializeEnvelope, type SealEnvelope, type SealSubject } from './manifest.ts';
 import { sha256Hex } from './digest.ts';
+import { sensitivityFigures } from '../sensitivity/outcome.ts';
 
 const SEAL_SCRIPT_OPEN = '<script type="application/json" id="kvarbook-seal">';
 const CHECK_SCRIPT_OPEN = '<script type="application/json" class="kvarbook-check">';
@@ -46,6 +47,7 @@ export function sealSubject(results: ResultsDocument, bodySha256: string): SealS
       limits: formatLimits(criterion),
     })),
     cautions: results.cautions.map((caution) => caution.text),
+    ...(results.sensitivity ? { sensitivity: sensitivityFigures(results.sensitivity) } : {}),
     kvarbookVersion: results.provenance.kvarbookVersion,
     nodeVersion: results.provenance.nodeVersion,
     lockfileSha256: results.provenance.lockfileSha256,
@@ -71,7 +73,7 @@ function sealSection(envelope: SealEnvelope, checks: readonly CheckRecord[]): st
     .join('\n');
   return `<section class="seal sealed" id="seal">
 <p><strong>Sealed</strong> by ${escapeHtml(signer.name)}, licence ${escapeHtml(signer.licence)} (${escapeHtml(signer.jurisdiction)}), for the study dated ${escapeHtml(envelope.manifest.studyDate)}.</p>
-${variantLine(envelope)}<p>Signing key <span class="fingerprint">${hashHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
+${variantLine(envelope)}<p>Signing key <span class="fingerprint">${hashHtml(signer.fingerprint)}</span>. The signature was verified when the report was sealed; it covers ${envelope.manifest.results.length} named results, ${envelope.manifest.criteria.length} criteria, ${envelope.manifest.sensitivity ? `${envelope.manifest.sensitivity.length} sensitivity figures, ` : ''}the cautions, the study source and this report's body. Re-verify with <code>kvarbook check</code>.</p>
 ${checkLines}
 </section>`;
 }

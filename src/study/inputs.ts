@@ -159,18 +159,18 @@ function quantityFrom(
   }
 }
 
-function allowedRange(spec: InputSpec): string {
+export function allowedRange(spec: Pick<InputSpec, 'min' | 'max'>): string {
   return `${spec.min ? describe(spec.min) : '-inf'} to ${spec.max ? describe(spec.max) : '+inf'}`;
 }
 
-function outOfRange(spec: InputSpec, quantity: ParsedQuantity): string | undefined {
+export function outOfRange(spec: Pick<InputSpec, 'min' | 'max'>, quantity: ParsedQuantity): string | undefined {
   const range = `allowed ${allowedRange(spec)}`;
   if (spec.min && quantity.si < spec.min.si) return `is below its minimum (${range})`;
   if (spec.max && quantity.si > spec.max.si) return `is above its maximum (${range})`;
   return undefined;
 }
 
-function describe(quantity: ParsedQuantity): string {
+export function describe(quantity: Pick<ParsedQuantity, 'value' | 'unit'>): string {
   return quantity.unit ? `${quantity.value} ${quantity.unit}` : String(quantity.value);
 }
 

@@ -4,7 +4,7 @@ import type { Diagnostic } from '../diagnostics/diagnostic.ts';
 import { CODE_PLACEMENTS, type CodePlacement, DEFAULT_LIMITS, type Person, type StudyMeta } from './model.ts';
 import { type FieldReader, type YamlPlace, readMap, readNumber, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
 
-const META_KEYS = ['title', 'project', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs'] as const;
+const META_KEYS = ['title', 'project', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs', 'sensitivity'] as const;
 const PERSON_KEYS = ['name', 'licence', 'jurisdiction'] as const;
 const LIMIT_KEYS = ['blockSeconds', 'studySeconds', 'heapMb'] as const;
 const REPORT_KEYS = ['pdf', 'paper', 'code'] as const;

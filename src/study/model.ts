@@ -55,6 +55,36 @@ export interface InputSpec {
   at: SourceLocation;
 }
 
+/** How far an uncertain input may lie from its value: per cent either side, a factor either way, or two quantities. */
+export type SensitivitySpread =
+  | { kind: 'percent'; lowPercent: number; highPercent: number }
+  | { kind: 'factor'; factor: number }
+  | { kind: 'ends'; low: ParsedQuantity; high: ParsedQuantity };
+
+export interface SensitivityRange {
+  input: string;
+  spread: SensitivitySpread;
+  /** The range as the front matter writes it, e.g. "-1 % to +1 %". */
+  declared: string;
+  at: SourceLocation;
+}
+
+/** A result or criterion the sensitivity section names, where it names it. */
+export interface NamedFigure {
+  name: string;
+  at: SourceLocation;
+}
+
+/** The front matter's `sensitivity:` section: the uncertain inputs with their ranges, and the figures to follow. */
+export interface SensitivityPlan {
+  ranges: SensitivityRange[];
+  results: NamedFigure[];
+  criteria: NamedFigure[];
+  /** A sampled run besides the ends: `samples` draws of every ranged input at once, uniform within its range, from `seed`. */
+  sampling?: { samples: number; seed: number };
+  at: SourceLocation;
+}
+
 export interface BlockOptions {
   /** Run the block but show only its outputs in the report. */
   hideCode: boolean;
@@ -88,6 +118,8 @@ export interface Study {
   sourceSha256: string;
   meta: StudyMeta;
   inputs: InputSpec[];
+  /** Present when the front matter declares what is uncertain (`kvarbook run --sensitivity` uses it). */
+  sensitivity?: SensitivityPlan;
   blocks: CalcBlock[];
   inlines: InlineExpression[];
   /** markdown-it tokens of the body, kept for rendering. */

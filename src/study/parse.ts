@@ -5,6 +5,7 @@ import { type Diagnostic, type SourceLocation, StudyFailure } from '../diagnosti
 import { createMarkdown, INLINE_VALUE_TOKEN } from './markdown.ts';
 import { readInputs } from './inputs.ts';
 import { readMeta } from './meta.ts';
+import { readSensitivity } from './sensitivity.ts';
 import type { CalcBlock, InlineExpression, Study } from './model.ts';
 import type { YamlPlace } from './yamlFields.ts';
 import { sha256Hex } from '../seal/digest.ts';
@@ -83,6 +84,7 @@ export function parseStudy(file: string, source: string): Study {
 
   const meta = readMeta(document as Document.Parsed, place, diagnostics);
   const inputs = readInputs(document as Document.Parsed, place, diagnostics);
+  const sensitivity = readSensitivity(document as Document.Parsed, place, diagnostics, inputs);
 
   const bodyFirstLine = closing + 2;
   const body = lines.slice(closing + 1).join('\n');
@@ -97,6 +99,7 @@ export function parseStudy(file: string, source: string): Study {
     sourceSha256: sha256Hex(source),
     meta,
     inputs,
+    ...(sensitivity ? { sensitivity } : {}),
     blocks,
     inlines,
     bodyTokens,

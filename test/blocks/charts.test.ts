@@ -6,6 +6,7 @@ import {
   stabilityMarginPercent,
   svcCharacteristicChart,
   svcCharacteristicCorners,
+  tornadoChart,
   voltageProfileChart,
 } from '../../src/blocks/charts.ts';
 import { ChartInputError } from '../../src/blocks/chartInputError.ts';
@@ -320,5 +321,38 @@ describe('loadabilityChart', () => {
 
   it('refuses an empty point list', () => {
     expectInputError(() => loadabilityChart({ points: [] }), 'chart-input-empty', 'points.length');
+  });
+});
+
+describe('tornadoChart', () => {
+  const input = {
+    figure: 'Open-end voltage',
+    unit: 'pu',
+    asRun: 1.0675,
+    bars: [
+      { label: 'seriesReactance', low: 1.0653, high: 1.0697 },
+      { label: 'lineLength', low: 1.0661, high: 1.0689 },
+    ],
+  };
+
+  it('draws the bars in the order given, from the top, with the value as run marked', async () => {
+    const svg = await renderChartSvg(tornadoChart(input));
+    const labels = texts(svg);
+    expect(labels.indexOf('seriesReactance')).toBeGreaterThanOrEqual(0);
+    expect(labels.indexOf('seriesReactance')).toBeLessThan(labels.indexOf('lineLength'));
+    expect(labels).toContain('as run');
+    expect(labels).toContain('Open-end voltage (pu)');
+  });
+
+  it('refuses two bars with the same label', () => {
+    expectInputError(() => tornadoChart({ ...input, bars: [input.bars[0]!, input.bars[0]!] }), 'chart-input-out-of-range', 'bars[1].label');
+  });
+
+  it('refuses a bar end that is not finite', () => {
+    expectInputError(
+      () => tornadoChart({ ...input, bars: [{ label: 'lineLength', low: Number.NaN, high: 1 }] }),
+      'chart-input-not-finite',
+      'bars[0].low',
+    );
   });
 });

@@ -40,12 +40,16 @@ export function lineOf(source: string, needle: string): number {
   return index + 1;
 }
 
-export function runSource(source: string, options: { overrides?: InputOverride[]; typecheck?: boolean; file?: string } = {}): Promise<RunProduct> {
+export function runSource(
+  source: string,
+  options: { overrides?: InputOverride[]; typecheck?: boolean; file?: string; sensitivity?: boolean } = {},
+): Promise<RunProduct> {
   return runStudy({
     file: options.file ?? 'test.study.md',
     source,
     overrides: options.overrides ?? [],
     typecheck: options.typecheck ?? false,
+    ...(options.sensitivity ? { sensitivity: true } : {}),
     environment: TEST_ENVIRONMENT,
     stylesheet: TEST_STYLESHEET,
   });
