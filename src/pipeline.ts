@@ -28,6 +28,8 @@ export interface RunRequest {
   /** Outcomes of earlier type checks, kept by the edge; every run checks anew when absent. */
   typecheckCache?: TypecheckCache;
   hooks?: ExecutionHooks;
+  /** Another build of the calculation child, for tests of a changed solver; the command line never sets it. */
+  childBundle?: string;
 }
 
 export interface RunProduct {
@@ -57,7 +59,11 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   if (request.typecheck) await typecheckStudy(study, undefined, request.typecheckCache);
   // 5. Execute in the sandboxed child, within the study's limits as far as the run's ceilings grant them.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
-  const outcome = await executeStudy(study, inputs, blocks, inlines, { ...(request.hooks ? { hooks: request.hooks } : {}), granted });
+  const outcome = await executeStudy(study, inputs, blocks, inlines, {
+    ...(request.hooks ? { hooks: request.hooks } : {}),
+    ...(request.childBundle ? { childBundle: request.childBundle } : {}),
+    granted,
+  });
   const run: StudyRun = {
     study,
     inputs,

@@ -36,7 +36,7 @@ export interface CheckOptions {
 /** Far above any report kvarbook writes; a larger file is not a report, and is not read into memory. */
 const MAX_CHECKED_FILE_BYTES = 256 * 1024 * 1024;
 
-async function readReport(reportPath: string): Promise<{ html: string; pdf?: PdfInHand }> {
+export async function readReport(reportPath: string): Promise<{ html: string; pdf?: PdfInHand }> {
   let size: number;
   try {
     size = statSync(reportPath).size;
@@ -61,7 +61,8 @@ async function readReport(reportPath: string): Promise<{ html: string; pdf?: Pdf
   return { html: bytes.toString('utf8') };
 }
 
-function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined) {
+/** The check's re-run of a study: from the checker's copy of the source, or the embedded one in a scratch folder. */
+export function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined, childBundle?: string) {
   return async (request: RerunRequest): Promise<RunProduct> => {
     // An embedded source runs from an empty scratch folder: it may read nothing of the checker's.
     // Either way the run carries the sealed file name, so that the report it renders can be compared.
@@ -76,6 +77,7 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         typecheck: true,
         ...(ceilings ? { ceilings } : {}),
         environment: request.environment,
+        ...(childBundle ? { childBundle } : {}),
         stylesheet: reportStylesheet(),
         typecheckCache: typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion),
       });

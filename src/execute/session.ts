@@ -69,6 +69,11 @@ export interface ExecutionOptions {
   hooks?: ExecutionHooks;
   /** The limits granted to the study; the study's own when absent. */
   granted?: GrantedLimits;
+  /**
+   * Another build of the calculation child (a test's deliberately changed solver); set only by code that calls the
+   * pipeline, never by the command line, the environment or a study.
+   */
+  childBundle?: string;
 }
 
 export async function executeStudy(
@@ -81,7 +86,7 @@ export async function executeStudy(
   const hooks = options.hooks ?? {};
   const granted = options.granted ?? { limits: study.meta.limits, asked: {} };
   const limits = granted.limits;
-  const bundlePath = childBundlePath();
+  const bundlePath = options.childBundle ?? childBundlePath();
   const child = fork(bundlePath, [], {
     execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, limits.heapMb),
     env: childEnvironment(),
