@@ -60,7 +60,7 @@ export async function runArchiveBench(count = 100): Promise<ArchiveBenchResult> 
       scrypt: { N: 2 ** 10, r: 8, p: 1 },
     });
     const privateKey = unlockSigningKey(created.encryptedPrivateKeyPem, 'benchmark passphrase only');
-    const archive = openArchive(join(scratch, 'archive'));
+    const archive = await openArchive(join(scratch, 'archive'));
     const workers = availableParallelism();
     try {
       // Sealed as `run --seal` seals, several at once to keep the set-up short.
@@ -85,7 +85,12 @@ export async function runArchiveBench(count = 100): Promise<ArchiveBenchResult> 
               created.identity,
             );
             const html = sealedReportHtml(product.report, envelope);
-            addReport(archive, { path: file, html, htmlName: `BENCH-${index}-r1.html`, siblings: [] }, [created.identity], '2026-12-01T00:00:00Z');
+            await addReport(
+              archive,
+              { path: file, html, htmlName: `BENCH-${index}-r1.html`, siblings: [] },
+              [created.identity],
+              '2026-12-01T00:00:00Z',
+            );
           }),
         );
       }
@@ -107,7 +112,7 @@ export async function runArchiveBench(count = 100): Promise<ArchiveBenchResult> 
       const poolMs = await recheck(workers);
       return { studies: count, workers, sequentialMs, poolMs, ratio: sequentialMs / poolMs };
     } finally {
-      archive.index.close();
+      await archive.index.close();
     }
   } finally {
     if (cacheBefore === undefined) delete environment.KVARBOOK_CACHE;

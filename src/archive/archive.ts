@@ -54,7 +54,7 @@ function personText(person: { name: string; licence?: string; jurisdiction?: str
  * Verifies the report without running it (the checker's steps up to the re-run, with counter-signatures), then stores
  * every file, then the entry that lists them, and only then adds the index row: a killed add leaves objects no row names.
  */
-export function addReport(archive: Archive, inHand: ReportInHand, trusted: readonly PublicIdentity[], archivedAt: string): AddOutcome {
+export async function addReport(archive: Archive, inHand: ReportInHand, trusted: readonly PublicIdentity[], archivedAt: string): Promise<AddOutcome> {
   const source = embeddedStudySource(inHand.html);
   const findings = verifySealedReport(inHand.html, source, 'carried in the report', trusted);
   const reasons = findings.steps.filter((step) => !step.passed).map((step) => `${step.name}: ${step.detail}`);
@@ -104,8 +104,8 @@ export function addReport(archive: Archive, inHand: ReportInHand, trusted: reado
     files: files.sort((a, b) => a.role.localeCompare(b.role) || a.name.localeCompare(b.name)),
   };
   const entrySha256 = archive.store.put(serializeEntry(entry));
-  const added = archive.index.add(entrySha256, entry, archivedAt);
-  const report = archive.index.get(entrySha256);
+  const added = await archive.index.add(entrySha256, entry, archivedAt);
+  const report = await archive.index.get(entrySha256);
   if (!report) throw new Error(`the index has no row for ${entrySha256} right after adding it`);
   return { report, added };
 }
@@ -115,8 +115,8 @@ export function readEntry(archive: Archive, entrySha256: string): ArchiveEntry |
   return bytes && sha256Hex(bytes) === entrySha256 ? parseEntry(bytes) : undefined;
 }
 
-export function findReport(archive: Archive, studyId: string, revision?: number): { report: IndexedReport; entry: ArchiveEntry } {
-  const report = archive.index.latest(studyId, revision);
+export async function findReport(archive: Archive, studyId: string, revision?: number): Promise<{ report: IndexedReport; entry: ArchiveEntry }> {
+  const report = await archive.index.latest(studyId, revision);
   const entry = report && readEntry(archive, report.entrySha256);
   if (!report || !entry) {
     throw new StudyFailure([
@@ -173,11 +173,11 @@ export interface VerifyOutcome {
 }
 
 /** Every stored file against its hash and every signature (seal and counter-signatures), without re-running any study. */
-export function verifyArchive(archive: Archive, trusted: readonly PublicIdentity[]): VerifyOutcome {
+export async function verifyArchive(archive: Archive, trusted: readonly PublicIdentity[]): Promise<VerifyOutcome> {
   const problems: VerifyProblem[] = [];
   const named = new Set<string>();
   let files = 0;
-  const rows = archive.index.all();
+  const rows = await archive.index.all();
   for (const row of rows) {
     const where = { studyId: row.studyId, revision: row.revision };
     named.add(row.entrySha256);
@@ -215,7 +215,7 @@ export function verifyArchive(archive: Archive, trusted: readonly PublicIdentity
 }
 
 /** The index rebuilt from the stored entries alone: every entry whose files are all in the store. */
-export function reindexArchive(archive: Archive): { reports: number; skipped: string[]; temporariesRemoved: number } {
+export async function reindexArchive(archive: Archive): Promise<{ reports: number; skipped: string[]; temporariesRemoved: number }> {
   const temporariesRemoved = removeStrayTemporaries(archive.store);
   const rows: { entrySha256: string; entry: ArchiveEntry; archivedAt: string }[] = [];
   const skipped: string[] = [];
@@ -230,6 +230,6 @@ export function reindexArchive(archive: Archive): { reports: number; skipped: st
     // The entry's own file time is when the add stored it.
     rows.push({ entrySha256: sha, entry, archivedAt: statSync(archive.store.pathOf(sha)).mtime.toISOString() });
   }
-  archive.index.replaceReports(rows);
+  await archive.index.replaceReports(rows);
   return { reports: rows.length, skipped, temporariesRemoved };
 }

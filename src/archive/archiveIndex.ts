@@ -1,8 +1,4 @@
-// The archive's index: one row per archived report, and each recheck with its verdicts; kept in SQLite (WAL) beside the store.
-import { renameSync, rmSync } from 'node:fs';
-import { join } from 'node:path';
-import Database from 'better-sqlite3';
-import { StudyFailure } from '../diagnostics/diagnostic.ts';
+// The archive's index: one row per archived report, and each recheck with its verdicts; the same SQL over SQLite or PostgreSQL.
 import { fileOf, type ArchiveEntry } from './entry.ts';
 
 export interface IndexedReport {
@@ -66,25 +62,38 @@ export interface RecheckRun {
 /** The one interface every command works through, whatever keeps the index. */
 export interface ArchiveIndex {
   /** Adds the row, and relinks the study's revisions, in one transaction; false when the entry was there already. */
-  add(entrySha256: string, entry: ArchiveEntry, archivedAt: string): boolean;
-  get(entrySha256: string): IndexedReport | undefined;
-  all(): IndexedReport[];
-  find(query: FindQuery): IndexedReport[];
+  add(entrySha256: string, entry: ArchiveEntry, archivedAt: string): Promise<boolean>;
+  get(entrySha256: string): Promise<IndexedReport | undefined>;
+  all(): Promise<IndexedReport[]>;
+  find(query: FindQuery): Promise<IndexedReport[]>;
   /** The latest archived report of a study (of one revision, when given). */
-  latest(studyId: string, revision?: number): IndexedReport | undefined;
+  latest(studyId: string, revision?: number): Promise<IndexedReport | undefined>;
   /** Starts a recheck of these entries, or takes up the unfinished one with the same selection. */
-  startRecheck(selection: string, entries: readonly string[], startedAt: string): RecheckRun;
-  /** The item's verdict and the report's last recheck, in one transaction. */
-  recordVerdict(runId: string, entrySha256: string, verdict: RecheckVerdict, findings: string, at: string): void;
-  finishRecheck(runId: string, at: string): void;
-  itemsOf(runId: string): RecheckItem[];
+  startRecheck(selection: string, entries: readonly string[], startedAt: string): Promise<RecheckRun>;
+  /** The item's verdict and the report's last recheck, in one transaction; false (and nothing written) when the item was done already. */
+  recordVerdict(runId: string, entrySha256: string, verdict: RecheckVerdict, findings: string, at: string): Promise<boolean>;
+  finishRecheck(runId: string, at: string): Promise<void>;
+  itemsOf(runId: string): Promise<RecheckItem[]>;
   /** Replaces every report row by these (reindex); rechecks recorded before are kept for the rows that remain. */
-  replaceReports(rows: readonly { entrySha256: string; entry: ArchiveEntry; archivedAt: string }[]): void;
-  close(): void;
+  replaceReports(rows: readonly { entrySha256: string; entry: ArchiveEntry; archivedAt: string }[]): Promise<void>;
+  close(): Promise<void>;
 }
 
-const SCHEMA = `
-CREATE TABLE IF NOT EXISTS reports (
+/** What the index needs of a database: the one place SQLite and PostgreSQL differ. */
+export interface SqlConnection {
+  /** Rows of a query; `?` marks each parameter. */
+  all<T>(sql: string, parameters?: readonly unknown[]): Promise<T[]>;
+  /** How many rows a statement changed. */
+  run(sql: string, parameters?: readonly unknown[]): Promise<number>;
+  /** One transaction that takes the write lock at its start, so two writers never both read and then write. */
+  transaction<T>(work: () => Promise<T>): Promise<T>;
+  /** `LIKE` that ignores case, as SQLite's does. */
+  like: 'LIKE' | 'ILIKE';
+  close(): Promise<void>;
+}
+
+export const SCHEMA = [
+  `CREATE TABLE IF NOT EXISTS reports (
   entry_sha256 TEXT PRIMARY KEY,
   study_id TEXT NOT NULL,
   revision INTEGER NOT NULL,
@@ -104,66 +113,43 @@ CREATE TABLE IF NOT EXISTS reports (
   supersedes TEXT,
   last_recheck_at TEXT,
   last_verdict TEXT
-);
-CREATE INDEX IF NOT EXISTS reports_study ON reports (study_id, revision);
-CREATE INDEX IF NOT EXISTS reports_date ON reports (study_date);
-CREATE TABLE IF NOT EXISTS recheck_runs (
+)`,
+  'CREATE INDEX IF NOT EXISTS reports_study ON reports (study_id, revision)',
+  'CREATE INDEX IF NOT EXISTS reports_date ON reports (study_date)',
+  `CREATE TABLE IF NOT EXISTS recheck_runs (
   run_id TEXT PRIMARY KEY,
   selection TEXT NOT NULL,
   started_at TEXT NOT NULL,
   finished_at TEXT
-);
-CREATE TABLE IF NOT EXISTS recheck_items (
+)`,
+  `CREATE TABLE IF NOT EXISTS recheck_items (
   run_id TEXT NOT NULL REFERENCES recheck_runs (run_id),
   entry_sha256 TEXT NOT NULL,
+  position INTEGER NOT NULL,
   state TEXT NOT NULL CHECK (state IN ('pending', 'done')),
   verdict TEXT,
   findings TEXT,
   finished_at TEXT,
   PRIMARY KEY (run_id, entry_sha256)
-);
-`;
+)`,
+];
 
-const COLUMNS = `entry_sha256 AS entrySha256, study_id AS studyId, revision, title, project, line, engineer, checker,
-  study_date AS studyDate, archived_at AS archivedAt, signer_fingerprint AS signerFingerprint, envelope_sha256 AS envelopeSha256,
-  report_sha256 AS reportSha256, source_sha256 AS sourceSha256, kvarbook_version AS kvarbookVersion, node_version AS nodeVersion,
-  supersedes, last_recheck_at AS lastRecheckAt, last_verdict AS lastVerdict`;
-
-export const SQLITE_INDEX_FILE = 'index.sqlite';
-
-function open(path: string): Database.Database {
-  try {
-    const db = new Database(path);
-    // WAL lets readers go on while one writer adds; FULL makes each committed add durable, so a row never outlives a crash its objects survived.
-    db.pragma('journal_mode = WAL');
-    db.pragma('synchronous = FULL');
-    db.pragma('busy_timeout = 30000');
-    db.exec(SCHEMA);
-    return db;
-  } catch (error) {
-    throw new StudyFailure([
-      {
-        code: 'archive-index-unreadable',
-        message: `the archive index ${path} cannot be opened: ${(error as Error).message}`,
-        hint: 'run `kvarbook archive reindex` to rebuild it from the stored files',
-      },
-    ]);
-  }
-}
+const COLUMNS = `entry_sha256 AS "entrySha256", study_id AS "studyId", revision, title, project, line, engineer, checker,
+  study_date AS "studyDate", archived_at AS "archivedAt", signer_fingerprint AS "signerFingerprint", envelope_sha256 AS "envelopeSha256",
+  report_sha256 AS "reportSha256", source_sha256 AS "sourceSha256", kvarbook_version AS "kvarbookVersion", node_version AS "nodeVersion",
+  supersedes, last_recheck_at AS "lastRecheckAt", last_verdict AS "lastVerdict"`;
 
 function likePattern(text: string): string {
   return `%${text.replace(/[\\%_]/g, (character) => `\\${character}`)}%`;
 }
 
-function insertRow(db: Database.Database, entrySha256: string, entry: ArchiveEntry, archivedAt: string): boolean {
+async function insertRow(db: SqlConnection, entrySha256: string, entry: ArchiveEntry, archivedAt: string): Promise<boolean> {
   const sha = (role: 'report' | 'source') => fileOf(entry, role)?.sha256 ?? '';
-  const inserted = db
-    .prepare(
-      `INSERT OR IGNORE INTO reports (entry_sha256, study_id, revision, title, project, line, engineer, checker, study_date, archived_at,
-        signer_fingerprint, envelope_sha256, report_sha256, source_sha256, kvarbook_version, node_version)
-       VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-    )
-    .run(
+  const changed = await db.run(
+    `INSERT INTO reports (entry_sha256, study_id, revision, title, project, line, engineer, checker, study_date, archived_at,
+      signer_fingerprint, envelope_sha256, report_sha256, source_sha256, kvarbook_version, node_version)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING`,
+    [
       entrySha256,
       entry.studyId,
       entry.revision,
@@ -180,40 +166,43 @@ function insertRow(db: Database.Database, entrySha256: string, entry: ArchiveEnt
       sha('source'),
       entry.kvarbookVersion,
       entry.nodeVersion,
-    );
-  return inserted.changes > 0;
+    ],
+  );
+  return changed > 0;
 }
 
 /** Each revision points at the latest entry of the highest lower revision: right whatever order the revisions came in. */
-function relink(db: Database.Database, studyId: string): void {
-  db.prepare(
+async function relink(db: SqlConnection, studyId: string): Promise<void> {
+  await db.run(
     `UPDATE reports SET supersedes = (
        SELECT earlier.entry_sha256 FROM reports AS earlier
        WHERE earlier.study_id = reports.study_id AND earlier.revision < reports.revision
        ORDER BY earlier.revision DESC, earlier.archived_at DESC, earlier.entry_sha256 DESC LIMIT 1)
      WHERE study_id = ?`,
-  ).run(studyId);
+    [studyId],
+  );
 }
 
-export function openSqliteIndex(archiveFolder: string): ArchiveIndex {
-  return sqliteIndexAt(join(archiveFolder, SQLITE_INDEX_FILE));
-}
-
-function sqliteIndexAt(path: string): ArchiveIndex {
-  const db = open(path);
-  const rows = (sql: string, ...parameters: unknown[]) => db.prepare(`SELECT ${COLUMNS} FROM reports ${sql}`).all(...parameters) as IndexedReport[];
+/** The index over a connection whose schema is in place. */
+export function archiveIndexOver(db: SqlConnection): ArchiveIndex {
+  const rows = (sql: string, parameters: readonly unknown[] = []) =>
+    db
+      .all<IndexedReport>(`SELECT ${COLUMNS} FROM reports ${sql}`, parameters)
+      .then((found) => found.map((row) => ({ ...row, revision: Number(row.revision) })));
+  const itemsOf = (runId: string) =>
+    db.all<RecheckItem>('SELECT entry_sha256 AS "entrySha256", state, verdict, findings FROM recheck_items WHERE run_id = ? ORDER BY position', [
+      runId,
+    ]);
   return {
     add(entrySha256, entry, archivedAt) {
-      return db
-        .transaction(() => {
-          const added = insertRow(db, entrySha256, entry, archivedAt);
-          if (added) relink(db, entry.studyId);
-          return added;
-        })
-        .immediate();
+      return db.transaction(async () => {
+        const added = await insertRow(db, entrySha256, entry, archivedAt);
+        if (added) await relink(db, entry.studyId);
+        return added;
+      });
     },
-    get(entrySha256) {
-      return rows('WHERE entry_sha256 = ?', entrySha256)[0];
+    async get(entrySha256) {
+      return (await rows('WHERE entry_sha256 = ?', [entrySha256]))[0];
     },
     all() {
       return rows('ORDER BY study_id, revision, archived_at');
@@ -223,7 +212,7 @@ function sqliteIndexAt(path: string): ArchiveIndex {
       const parameters: string[] = [];
       const like = (column: string, value: string | undefined) => {
         if (value === undefined) return;
-        where.push(`${column} LIKE ? ESCAPE '\\'`);
+        where.push(`${column} ${db.like} ? ESCAPE '\\'`);
         parameters.push(likePattern(value));
       };
       like('study_id', query.studyId);
@@ -246,98 +235,75 @@ function sqliteIndexAt(path: string): ArchiveIndex {
         where.push('study_date <= ?');
         parameters.push(query.to);
       }
-      if (query.text !== undefined) {
-        for (const word of query.text.split(/\s+/).filter(Boolean)) {
-          where.push(`(title LIKE ? ESCAPE '\\' OR project LIKE ? ESCAPE '\\')`);
-          parameters.push(likePattern(word), likePattern(word));
-        }
+      for (const word of (query.text ?? '').split(/\s+/).filter(Boolean)) {
+        where.push(`(title ${db.like} ? ESCAPE '\\' OR project ${db.like} ? ESCAPE '\\')`);
+        parameters.push(likePattern(word), likePattern(word));
       }
-      return rows(`${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY study_id, revision, archived_at`, ...parameters);
+      return rows(`${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY study_id, revision, archived_at`, parameters);
     },
-    latest(studyId, revision) {
+    async latest(studyId, revision) {
       const found =
         revision === undefined
-          ? rows('WHERE study_id = ? ORDER BY revision DESC, archived_at DESC, entry_sha256 DESC LIMIT 1', studyId)
-          : rows('WHERE study_id = ? AND revision = ? ORDER BY archived_at DESC, entry_sha256 DESC LIMIT 1', studyId, revision);
+          ? await rows('WHERE study_id = ? ORDER BY revision DESC, archived_at DESC, entry_sha256 DESC LIMIT 1', [studyId])
+          : await rows('WHERE study_id = ? AND revision = ? ORDER BY archived_at DESC, entry_sha256 DESC LIMIT 1', [studyId, revision]);
       return found[0];
     },
     startRecheck(selection, entries, startedAt) {
-      return db
-        .transaction((): RecheckRun => {
-          const unfinished = db
-            .prepare('SELECT run_id AS runId FROM recheck_runs WHERE selection = ? AND finished_at IS NULL ORDER BY started_at DESC LIMIT 1')
-            .get(selection) as { runId: string } | undefined;
-          if (unfinished) return { runId: unfinished.runId, resumed: true, items: this.itemsOf(unfinished.runId) };
-          const runId = `${startedAt.replace(/[^0-9]/g, '').slice(0, 14)}-${Math.random().toString(36).slice(2, 8)}`;
-          db.prepare('INSERT INTO recheck_runs (run_id, selection, started_at) VALUES (?, ?, ?)').run(runId, selection, startedAt);
-          const insert = db.prepare("INSERT INTO recheck_items (run_id, entry_sha256, state) VALUES (?, ?, 'pending')");
-          for (const entry of entries) insert.run(runId, entry);
-          return { runId, resumed: false, items: this.itemsOf(runId) };
-        })
-        .immediate();
+      return db.transaction(async (): Promise<RecheckRun> => {
+        const [unfinished] = await db.all<{ runId: string }>(
+          'SELECT run_id AS "runId" FROM recheck_runs WHERE selection = ? AND finished_at IS NULL ORDER BY started_at DESC LIMIT 1',
+          [selection],
+        );
+        if (unfinished) return { runId: unfinished.runId, resumed: true, items: await itemsOf(unfinished.runId) };
+        const runId = `${startedAt.replace(/[^0-9]/g, '').slice(0, 14)}-${Math.random().toString(36).slice(2, 8)}`;
+        await db.run('INSERT INTO recheck_runs (run_id, selection, started_at) VALUES (?, ?, ?)', [runId, selection, startedAt]);
+        for (const [position, entry] of entries.entries())
+          await db.run("INSERT INTO recheck_items (run_id, entry_sha256, position, state) VALUES (?, ?, ?, 'pending')", [runId, entry, position]);
+        return { runId, resumed: false, items: await itemsOf(runId) };
+      });
     },
     recordVerdict(runId, entrySha256, verdict, findings, at) {
-      db.transaction(() => {
-        db.prepare("UPDATE recheck_items SET state = 'done', verdict = ?, findings = ?, finished_at = ? WHERE run_id = ? AND entry_sha256 = ?").run(
-          verdict,
-          findings,
-          at,
-          runId,
-          entrySha256,
+      return db.transaction(async () => {
+        const changed = await db.run(
+          "UPDATE recheck_items SET state = 'done', verdict = ?, findings = ?, finished_at = ? WHERE run_id = ? AND entry_sha256 = ? AND state = 'pending'",
+          [verdict, findings, at, runId, entrySha256],
         );
-        db.prepare('UPDATE reports SET last_recheck_at = ?, last_verdict = ? WHERE entry_sha256 = ?').run(at, verdict, entrySha256);
-      }).immediate();
+        if (changed === 0) return false;
+        await db.run('UPDATE reports SET last_recheck_at = ?, last_verdict = ? WHERE entry_sha256 = ?', [at, verdict, entrySha256]);
+        return true;
+      });
     },
-    finishRecheck(runId, at) {
-      db.prepare('UPDATE recheck_runs SET finished_at = ? WHERE run_id = ?').run(at, runId);
+    async finishRecheck(runId, at) {
+      await db.run('UPDATE recheck_runs SET finished_at = ? WHERE run_id = ?', [at, runId]);
     },
-    itemsOf(runId) {
-      return db
-        .prepare('SELECT entry_sha256 AS entrySha256, state, verdict, findings FROM recheck_items WHERE run_id = ? ORDER BY rowid')
-        .all(runId) as RecheckItem[];
-    },
+    itemsOf,
     replaceReports(newRows) {
-      db.transaction(() => {
+      return db.transaction(async () => {
         const kept = new Map(
           (
-            db.prepare('SELECT entry_sha256 AS sha, last_recheck_at AS at, last_verdict AS verdict FROM reports').all() as {
-              sha: string;
-              at: string | null;
-              verdict: string | null;
-            }[]
+            await db.all<{ sha: string; at: string | null; verdict: string | null }>(
+              'SELECT entry_sha256 AS sha, last_recheck_at AS at, last_verdict AS verdict FROM reports',
+            )
           ).map((row) => [row.sha, row]),
         );
-        db.prepare('DELETE FROM reports').run();
+        await db.run('DELETE FROM reports');
         const studies = new Set<string>();
         for (const row of newRows) {
-          insertRow(db, row.entrySha256, row.entry, row.archivedAt);
+          await insertRow(db, row.entrySha256, row.entry, row.archivedAt);
           studies.add(row.entry.studyId);
           const earlier = kept.get(row.entrySha256);
           if (earlier?.at)
-            db.prepare('UPDATE reports SET last_recheck_at = ?, last_verdict = ? WHERE entry_sha256 = ?').run(
+            await db.run('UPDATE reports SET last_recheck_at = ?, last_verdict = ? WHERE entry_sha256 = ?', [
               earlier.at,
               earlier.verdict,
               row.entrySha256,
-            );
+            ]);
         }
-        for (const studyId of studies) relink(db, studyId);
-      }).immediate();
+        for (const studyId of studies) await relink(db, studyId);
+      });
     },
     close() {
-      db.close();
+      return db.close();
     },
   };
-}
-
-/** A damaged index file is moved aside (never deleted) so that reindex can start a fresh one. */
-export function setAsideIndex(archiveFolder: string, at: string): string | undefined {
-  const path = join(archiveFolder, SQLITE_INDEX_FILE);
-  const aside = `${path}.damaged-${at.replace(/[^0-9]/g, '')}`;
-  try {
-    renameSync(path, aside);
-  } catch {
-    return undefined;
-  }
-  for (const suffix of ['-wal', '-shm']) rmSync(`${path}${suffix}`, { force: true });
-  return aside;
 }

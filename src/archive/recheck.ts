@@ -137,56 +137,81 @@ async function eachInPool<T>(items: readonly T[], concurrency: number, work: (it
   await Promise.all(Array.from({ length: Math.max(1, Math.min(concurrency, items.length)) }, lane));
 }
 
-/**
- * Rechecks the selected reports. The recheck and each study's state are rows of the index: a verdict is recorded as
- * soon as its study is done, so a recheck that was interrupted (or killed) and is run again with the same selection
- * takes up the studies still pending and re-runs none twice.
- */
-export async function recheckArchive(archive: Archive, options: RecheckOptions): Promise<RecheckSummary> {
-  const selected = selectReports(archive.index.all(), options.selection);
-  const selectionKey = JSON.stringify({
-    all: options.selection.all ?? false,
-    since: options.selection.since ?? null,
-    ids: [...(options.selection.ids ?? [])].sort(),
-  });
-  const run = archive.index.startRecheck(
-    selectionKey,
+/** The key a recheck's selection is known by, so that the same recheck run again resumes the unfinished one. */
+function selectionKey(selection: RecheckSelection): string {
+  return JSON.stringify({ all: selection.all ?? false, since: selection.since ?? null, ids: [...(selection.ids ?? [])].sort() });
+}
+
+/** Starts (or takes up) a recheck of the selected reports; the pending ones are the work left. */
+export async function startRecheck(
+  archive: Archive,
+  selection: RecheckSelection,
+  now: () => string,
+): Promise<{ runId: string; resumed: boolean; total: number; pending: IndexedReport[] }> {
+  const selected = selectReports(await archive.index.all(), selection);
+  const run = await archive.index.startRecheck(
+    selectionKey(selection),
     selected.map((row) => row.entrySha256),
-    options.now(),
+    now(),
   );
   const byEntry = new Map(selected.map((row) => [row.entrySha256, row]));
-  const pending = run.items
-    .filter((item) => item.state === 'pending')
-    .map((item) => byEntry.get(item.entrySha256) ?? archive.index.get(item.entrySha256));
-  const total = run.items.length;
-  let done = total - pending.length;
-  const doneBefore = done;
-  options.onProgress?.(done, total);
-  await eachInPool(
-    pending.filter((row): row is IndexedReport => row !== undefined),
-    options.concurrency,
-    async (row) => {
-      const result = await recheckOne(archive, row, options);
-      archive.index.recordVerdict(run.runId, row.entrySha256, result.verdict, JSON.stringify(result), options.now());
-      done += 1;
-      options.onProgress?.(done, total);
-    },
-    options.signal,
-  );
-  const items = archive.index.itemsOf(run.runId);
+  const pending: IndexedReport[] = [];
+  for (const item of run.items.filter((candidate) => candidate.state === 'pending')) {
+    const row = byEntry.get(item.entrySha256) ?? (await archive.index.get(item.entrySha256));
+    if (row) pending.push(row);
+  }
+  return { runId: run.runId, resumed: run.resumed, total: run.items.length, pending };
+}
+
+/** Rechecks one report of a recheck and records its verdict; false when another worker had recorded it first. */
+export async function recheckAndRecord(archive: Archive, runId: string, row: IndexedReport, options: RecheckOptions): Promise<boolean> {
+  const result = await recheckOne(archive, row, options);
+  return archive.index.recordVerdict(runId, row.entrySha256, result.verdict, JSON.stringify(result), options.now());
+}
+
+/** What a recheck found so far, from its rows in the index; a recheck with nothing pending is marked finished. */
+export async function recheckSummary(
+  archive: Archive,
+  runId: string,
+  context: { resumed: boolean; doneBefore: number; now: () => string },
+): Promise<RecheckSummary> {
+  const items = await archive.index.itemsOf(runId);
   const interrupted = items.some((item) => item.state === 'pending');
-  if (!interrupted) archive.index.finishRecheck(run.runId, options.now());
+  if (!interrupted) await archive.index.finishRecheck(runId, context.now());
   const studies = items.filter((item) => item.findings !== null).map((item) => JSON.parse(item.findings!) as StudyRecheck);
   const counts: Record<RecheckVerdict, number> = { reproduced: 0, moved: 0, 'failed-to-run': 0, 'signature-problem': 0 };
   for (const study of studies) counts[study.verdict] += 1;
   return {
-    runId: run.runId,
-    resumed: run.resumed,
-    doneBefore,
-    total,
+    runId,
+    resumed: context.resumed,
+    doneBefore: context.doneBefore,
+    total: items.length,
     counts,
     studies,
     moved: studies.flatMap((study) => study.moved),
     interrupted,
   };
+}
+
+/**
+ * Rechecks the selected reports on this machine. The recheck and each study's state are rows of the index: a verdict
+ * is recorded as soon as its study is done, so a recheck that was interrupted (or killed) and is run again with the
+ * same selection takes up the studies still pending and re-runs none twice.
+ */
+export async function recheckArchive(archive: Archive, options: RecheckOptions): Promise<RecheckSummary> {
+  const run = await startRecheck(archive, options.selection, options.now);
+  let done = run.total - run.pending.length;
+  const doneBefore = done;
+  options.onProgress?.(done, run.total);
+  await eachInPool(
+    run.pending,
+    options.concurrency,
+    async (row) => {
+      await recheckAndRecord(archive, run.runId, row, options);
+      done += 1;
+      options.onProgress?.(done, run.total);
+    },
+    options.signal,
+  );
+  return recheckSummary(archive, run.runId, { resumed: run.resumed, doneBefore, now: options.now });
 }

@@ -5,7 +5,9 @@ import { basename, dirname, join } from 'node:path';
 import { writeAtomically } from '../bundleRecord.ts';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { addReport, exportReport, findReport, reindexArchive, verifyArchive, type Archive, type ReportInHand } from '../archive/archive.ts';
-import { openSqliteIndex, type FindQuery, type IndexedReport } from '../archive/archiveIndex.ts';
+import type { FindQuery, IndexedReport } from '../archive/archiveIndex.ts';
+import { openSqliteIndex } from '../archive/sqliteIndex.ts';
+import { enqueueRecheck, startWorker, type QueueTiming } from '../archive/queue.ts';
 import { recheckArchive, type RecheckSelection, type RecheckSummary } from '../archive/recheck.ts';
 import { openObjectStore } from '../archive/store.ts';
 import { loadTrustedIdentities } from '../seal/trust.ts';
@@ -16,21 +18,25 @@ import type { Terminal } from './terminal.ts';
 
 export interface ArchiveOptions {
   archive: string;
+  /** postgres://… to keep the index in PostgreSQL; the SQLite file in the archive folder when absent. */
+  index?: string;
   json?: boolean;
 }
 
 /** Opens (creating on first use) the archive folder, its store and its index; the caller closes the index. */
-export function openArchive(folder: string): Archive {
+export async function openArchive(folder: string, indexUrl?: string): Promise<Archive> {
   mkdirSync(folder, { recursive: true, mode: 0o700 });
-  return { folder, store: openObjectStore(folder), index: openSqliteIndex(folder) };
+  if (indexUrl === undefined) return { folder, store: openObjectStore(folder), index: openSqliteIndex(folder) };
+  const { openPostgresIndex } = await import('../archive/postgresIndex.ts');
+  return { folder, store: openObjectStore(folder), index: await openPostgresIndex(indexUrl) };
 }
 
-async function withArchive<T>(folder: string, work: (archive: Archive) => Promise<T> | T): Promise<T> {
-  const archive = openArchive(folder);
+async function withArchive<T>(options: ArchiveOptions, work: (archive: Archive) => Promise<T> | T): Promise<T> {
+  const archive = await openArchive(options.archive, options.index);
   try {
     return await work(archive);
   } finally {
-    archive.index.close();
+    await archive.index.close();
   }
 }
 
@@ -78,10 +84,10 @@ function printRows(rows: IndexedReport[], options: ArchiveOptions, terminal: Ter
 export async function archiveAddCommand(paths: string[], options: ArchiveOptions & { trust: string }, terminal: Terminal): Promise<number> {
   const trusted = loadTrustedIdentities(options.trust).identities;
   const failures: StudyFailure[] = [];
-  await withArchive(options.archive, async (archive) => {
+  await withArchive(options, async (archive) => {
     for (const path of paths) {
       try {
-        const outcome = addReport(archive, await reportInHand(path), trusted, now());
+        const outcome = await addReport(archive, await reportInHand(path), trusted, now());
         terminal.say(`${outcome.added ? 'archived' : 'already archived'}: ${reportLine(outcome.report)}`);
       } catch (error) {
         if (!(error instanceof StudyFailure)) throw error;
@@ -94,19 +100,19 @@ export async function archiveAddCommand(paths: string[], options: ArchiveOptions
 }
 
 export async function archiveListCommand(options: ArchiveOptions, terminal: Terminal): Promise<number> {
-  await withArchive(options.archive, (archive) => printRows(archive.index.all(), options, terminal));
+  await withArchive(options, async (archive) => printRows(await archive.index.all(), options, terminal));
   return 0;
 }
 
 export async function archiveFindCommand(query: FindQuery, options: ArchiveOptions, terminal: Terminal): Promise<number> {
-  const rows = await withArchive(options.archive, (archive) => archive.index.find(query));
+  const rows = await withArchive(options, (archive) => archive.index.find(query));
   printRows(rows, options, terminal);
   return rows.length > 0 ? 0 : 1;
 }
 
 export async function archiveShowCommand(id: string, options: ArchiveOptions & { revision?: number }, terminal: Terminal): Promise<number> {
-  await withArchive(options.archive, (archive) => {
-    const { report, entry } = findReport(archive, id, options.revision);
+  await withArchive(options, async (archive) => {
+    const { report, entry } = await findReport(archive, id, options.revision);
     if (options.json) {
       process.stdout.write(`${JSON.stringify({ ...report, files: entry.files }, null, 2)}\n`);
       return;
@@ -115,7 +121,7 @@ export async function archiveShowCommand(id: string, options: ArchiveOptions & {
     terminal.say(`  engineer ${report.engineer}${report.checker ? `; checker ${report.checker}` : ''}; signing key ${report.signerFingerprint}`);
     terminal.say(`  sealed with kvarbook ${report.kvarbookVersion} on Node.js ${report.nodeVersion}; archived ${report.archivedAt}`);
     if (report.supersedes) {
-      const earlier = archive.index.get(report.supersedes);
+      const earlier = await archive.index.get(report.supersedes);
       terminal.say(`  supersedes revision ${earlier?.revision ?? '?'} (${report.supersedes.slice(0, 16)})`);
     }
     for (const file of entry.files) terminal.say(`  ${file.role.padEnd(8)} ${file.name}  ${file.bytes} bytes  sha256 ${file.sha256}`);
@@ -129,8 +135,8 @@ export async function archiveExportCommand(
   options: ArchiveOptions & { revision?: number },
   terminal: Terminal,
 ): Promise<number> {
-  await withArchive(options.archive, (archive) => {
-    const { entry } = findReport(archive, id, options.revision);
+  await withArchive(options, async (archive) => {
+    const { entry } = await findReport(archive, id, options.revision);
     for (const path of exportReport(archive, entry, folder)) terminal.say(`exported ${path}`);
   });
   return 0;
@@ -138,7 +144,7 @@ export async function archiveExportCommand(
 
 export async function archiveVerifyCommand(options: ArchiveOptions & { trust: string }, terminal: Terminal): Promise<number> {
   const trusted = loadTrustedIdentities(options.trust).identities;
-  const outcome = await withArchive(options.archive, (archive) => verifyArchive(archive, trusted));
+  const outcome = await withArchive(options, (archive) => verifyArchive(archive, trusted));
   if (options.json) process.stdout.write(`${JSON.stringify(outcome, null, 2)}\n`);
   else {
     for (const problem of outcome.problems) terminal.say(`${problem.studyId} r${problem.revision}: ${problem.file}: ${problem.problem}`);
@@ -150,13 +156,24 @@ export async function archiveVerifyCommand(options: ArchiveOptions & { trust: st
 }
 
 export async function archiveReindexCommand(options: ArchiveOptions, terminal: Terminal): Promise<number> {
-  const outcome = await withArchive(options.archive, (archive) => reindexArchive(archive));
+  const outcome = await withArchive(options, (archive) => reindexArchive(archive));
   for (const skipped of outcome.skipped) terminal.say(`not indexed: ${skipped}`);
   terminal.say(`index rebuilt from the stored files: ${outcome.reports} reports`);
   return 0;
 }
 
-export interface RecheckCommandOptions extends ArchiveOptions {
+export interface QueueOptions {
+  /** postgres://… of the job queue: the recheck is spread over `archive worker` processes. */
+  queue?: string;
+  jobSeconds?: number;
+}
+
+function queueTiming(options: QueueOptions): QueueTiming {
+  const jobSeconds = options.jobSeconds ?? 1800;
+  return { jobSeconds, sweepSeconds: Math.max(1, Math.min(60, Math.floor(jobSeconds / 2))) };
+}
+
+export interface RecheckCommandOptions extends ArchiveOptions, QueueOptions {
   all?: boolean;
   since?: string;
   trust: string;
@@ -189,13 +206,21 @@ function summaryLines(summary: RecheckSummary): string[] {
 
 export async function archiveRecheckCommand(ids: string[], options: RecheckCommandOptions, terminal: Terminal): Promise<number> {
   const selection: RecheckSelection = ids.length > 0 ? { ids } : options.since ? { since: options.since } : { all: true };
+  if (options.queue) {
+    const queue = options.queue;
+    const queued = await withArchive(options, (archive) => enqueueRecheck(archive, queue, selection, now, queueTiming(options)));
+    terminal.say(
+      `recheck ${queued.runId}${queued.resumed ? ' (resumed)' : ''}: ${queued.enqueued} of ${queued.total} studies put on the queue; workers record each verdict in the index`,
+    );
+    return 0;
+  }
   const trusted = loadTrustedIdentities(options.trust).identities;
   // Ctrl-C stops taking new studies; those running finish and are recorded, so the next recheck resumes.
   const stop = new AbortController();
   const onSignal = () => stop.abort();
   process.once('SIGINT', onSignal);
   try {
-    const summary = await withArchive(options.archive, (archive) =>
+    const summary = await withArchive(options, (archive) =>
       recheckArchive(archive, {
         selection,
         concurrency: options.jobs ?? availableParallelism(),
@@ -242,4 +267,37 @@ function progressBar(done: number, total: number): string {
   const width = 30;
   const filled = total === 0 ? width : Math.round((done / total) * width);
   return `recheck [${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${done}/${total}`;
+}
+
+export interface WorkerCommandOptions extends ArchiveOptions, QueueOptions {
+  trust: string;
+  tolerance: number;
+  ceilings?: RunLimits;
+}
+
+/** `archive worker`: takes recheck jobs until stopped (SIGTERM or Ctrl-C finish the job in hand first). */
+export async function archiveWorkerCommand(options: WorkerCommandOptions, terminal: Terminal): Promise<number> {
+  const queue = options.queue as string;
+  const archive = await openArchive(options.archive, options.index);
+  const worker = await startWorker(
+    archive,
+    queue,
+    {
+      trusted: loadTrustedIdentities(options.trust).identities,
+      defaultRelativeTolerance: options.tolerance,
+      environment: installationFacts(),
+      rerun: rerunFrom(undefined, options.ceilings),
+      now,
+    },
+    queueTiming(options),
+    (job, state) => terminal.say(`${state} ${job.runId} ${job.entrySha256}`),
+  );
+  terminal.say('worker ready');
+  await new Promise<void>((resolve) => {
+    process.once('SIGTERM', resolve);
+    process.once('SIGINT', resolve);
+  });
+  await worker.stop();
+  await archive.index.close();
+  return 0;
 }

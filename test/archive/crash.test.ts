@@ -42,14 +42,14 @@ describe('the archive when processes are killed or run at once', () => {
   }, 120_000);
 
   /** Every indexed report has all its files, intact and with valid signatures; returns the ids indexed. */
-  function consistentIds(folder: string): string[] {
-    const archive = openArchive(folder);
+  async function consistentIds(folder: string): Promise<string[]> {
+    const archive = await openArchive(folder);
     try {
-      const outcome = verifyArchive(archive, loadTrustedIdentities(set.space.trustFolder).identities);
+      const outcome = await verifyArchive(archive, loadTrustedIdentities(set.space.trustFolder).identities);
       expect(outcome.problems).toEqual([]);
-      return archive.index.all().map((row) => row.studyId);
+      return (await archive.index.all()).map((row) => row.studyId);
     } finally {
-      archive.index.close();
+      await archive.index.close();
     }
   }
 
@@ -60,12 +60,12 @@ describe('the archive when processes are killed or run at once', () => {
     for (let attempt = 0; attempt < 14; attempt += 1) {
       // Anywhere from start-up to past the end of an add of both reports.
       await addProcess(set, folder, reports, Math.random() * untimed.ms * 1.1);
-      const ids = consistentIds(folder);
+      const ids = await consistentIds(folder);
       expect(new Set(ids).size).toBe(ids.length);
     }
     const finished = await addProcess(set, folder, reports);
     expect(finished.stderr).toBe('');
-    expect(consistentIds(folder).sort()).toEqual(['CRS-1', 'CRS-2']);
+    expect((await consistentIds(folder)).sort()).toEqual(['CRS-1', 'CRS-2']);
   }, 60_000);
 
   it('keeps each report once when two processes add the same reports at the same time', async () => {
@@ -73,6 +73,6 @@ describe('the archive when processes are killed or run at once', () => {
     const outcomes = await Promise.all([addProcess(set, folder, reports), addProcess(set, folder, [...reports].reverse())]);
     expect(outcomes.map((outcome) => outcome.stderr)).toEqual(['', '']);
     expect(outcomes.map((outcome) => outcome.status)).toEqual([0, 0]);
-    expect(consistentIds(folder).sort()).toEqual(['CRS-1', 'CRS-2']);
+    expect((await consistentIds(folder)).sort()).toEqual(['CRS-1', 'CRS-2']);
   }, 60_000);
 });

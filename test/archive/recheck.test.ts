@@ -52,11 +52,11 @@ describe('rechecking the archive', () => {
   }, 120_000);
 
   async function filledArchive(): Promise<Archive> {
-    const archive = openArchive(join(scratchFolder(), 'archive'));
+    const archive = await openArchive(join(scratchFolder(), 'archive'));
     const trusted = loadTrustedIdentities(set.space.trustFolder).identities;
     for (const path of Object.values(set.reports)) {
       const { html } = await readReport(path);
-      addReport(archive, { path, html, htmlName: path.split('/').pop()!, siblings: [] }, trusted, '2026-12-01T00:00:00Z');
+      await addReport(archive, { path, html, htmlName: path.split('/').pop()!, siblings: [] }, trusted, '2026-12-01T00:00:00Z');
     }
     return archive;
   }
@@ -81,9 +81,9 @@ describe('rechecking the archive', () => {
       expect(two).toMatchObject({ name: 'Magnitude', sealed: 10, unit: 'kV' });
       expect(two.rerun).toBeCloseTo(10.2, 12);
       expect(two.relativeChange).toBeCloseTo(0.02, 12);
-      expect(archive.index.all().map((row) => row.lastVerdict)).toEqual(['moved', 'moved', 'moved']);
+      expect((await archive.index.all()).map((row) => row.lastVerdict)).toEqual(['moved', 'moved', 'moved']);
     } finally {
-      archive.index.close();
+      await archive.index.close();
     }
   }, 120_000);
 
@@ -106,9 +106,9 @@ describe('rechecking the archive', () => {
       expect(second).toMatchObject({ runId: first.runId, resumed: true, doneBefore: 1, interrupted: false });
       expect(second.counts.reproduced).toBe(3);
       expect([...rerunStudies].sort()).toEqual(['one.study.md', 'three.study.md', 'two.study.md']);
-      expect(archive.index.itemsOf(first.runId).every((item) => item.state === 'done' && item.verdict === 'reproduced')).toBe(true);
+      expect((await archive.index.itemsOf(first.runId)).every((item) => item.state === 'done' && item.verdict === 'reproduced')).toBe(true);
     } finally {
-      archive.index.close();
+      await archive.index.close();
     }
   }, 120_000);
 });
