@@ -74,6 +74,10 @@ export interface ArchiveIndex {
   recordVerdict(runId: string, entrySha256: string, verdict: RecheckVerdict, findings: string, at: string): Promise<boolean>;
   finishRecheck(runId: string, at: string): Promise<void>;
   itemsOf(runId: string): Promise<RecheckItem[]>;
+  /** One study's state in a recheck, without reading the rest; undefined when it is not part of it. */
+  itemOf(runId: string, entrySha256: string): Promise<RecheckItem | undefined>;
+  /** How many studies of a recheck are still pending. */
+  pendingCount(runId: string): Promise<number>;
   /** Replaces every report row by these (reindex); rechecks recorded before are kept for the rows that remain. */
   replaceReports(rows: readonly { entrySha256: string; entry: ArchiveEntry; archivedAt: string }[]): Promise<void>;
   close(): Promise<void>;
@@ -277,6 +281,19 @@ export function archiveIndexOver(db: SqlConnection): ArchiveIndex {
       await db.run('UPDATE recheck_runs SET finished_at = ? WHERE run_id = ?', [at, runId]);
     },
     itemsOf,
+    async itemOf(runId, entrySha256) {
+      const [item] = await db.all<RecheckItem>(
+        'SELECT entry_sha256 AS "entrySha256", state, verdict, findings FROM recheck_items WHERE run_id = ? AND entry_sha256 = ?',
+        [runId, entrySha256],
+      );
+      return item;
+    },
+    async pendingCount(runId) {
+      const [row] = await db.all<{ count: number | string }>("SELECT COUNT(*) AS count FROM recheck_items WHERE run_id = ? AND state = 'pending'", [
+        runId,
+      ]);
+      return Number(row?.count ?? 0);
+    },
     replaceReports(newRows) {
       return db.transaction(async () => {
         const kept = new Map(

@@ -1,7 +1,7 @@
 // A recheck spread over many machines: one job per study in a PostgreSQL job queue (pg-boss), taken by any number of workers.
 import PgBoss from 'pg-boss';
 import type { Archive } from './archive.ts';
-import { recheckAndRecord, recheckSummary, startRecheck, type RecheckOptions, type RecheckSelection } from './recheck.ts';
+import { recheckAndRecord, startRecheck, type RecheckOptions, type RecheckSelection } from './recheck.ts';
 
 export const RECHECK_QUEUE = 'kvarbook-recheck';
 
@@ -68,7 +68,7 @@ export async function startWorker(
   await boss.work<RecheckJob>(RECHECK_QUEUE, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
     if (!job) return;
     const { runId, entrySha256 } = job.data;
-    const item = (await archive.index.itemsOf(runId)).find((candidate) => candidate.entrySha256 === entrySha256);
+    const item = await archive.index.itemOf(runId, entrySha256);
     const row = await archive.index.get(entrySha256);
     if (!item || item.state === 'done' || !row) {
       onJob(job.data, 'skipped');
@@ -78,7 +78,7 @@ export async function startWorker(
     const recorded = await recheckAndRecord(archive, runId, row, { ...options, selection: {}, concurrency: 1 });
     onJob(job.data, recorded ? 'recorded' : 'skipped');
     // The worker that records the last verdict marks the recheck finished.
-    await recheckSummary(archive, runId, { resumed: false, doneBefore: 0, now: options.now });
+    if (recorded && (await archive.index.pendingCount(runId)) === 0) await archive.index.finishRecheck(runId, options.now());
   });
   return {
     stop: () => boss.stop({ graceful: true, wait: true }),

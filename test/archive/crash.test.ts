@@ -1,21 +1,20 @@
 import { spawn } from 'node:child_process';
 import { join } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
-import { KVARBOOK_BIN, scratchFolder } from '../support/cli.ts';
+import { beforeAll, describe, expect, it, vi } from 'vitest';
+import { KVARBOOK_BIN, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { verifyArchive } from '../../src/archive/archive.ts';
 import { openArchive } from '../../src/cli/archiveCommand.ts';
 import { loadTrustedIdentities } from '../../src/seal/trust.ts';
 import { archivedStudy, sealStudies, type SealedSet } from './sealedReports.ts';
 
-/** `kvarbook archive add` as its own process; resolves with its exit status, or null when killed after `killAfterMs`. */
-function addProcess(
+/** `kvarbook archive <args>` as its own process; resolves with its exit status (null when killed: after `killAfterMs`, or by `kill`). */
+function archiveProcess(
   set: SealedSet,
-  archive: string,
-  reports: string[],
+  args: string[],
   killAfterMs?: number,
-): Promise<{ status: number | null; ms: number; stderr: string }> {
+): Promise<{ status: number | null; ms: number; stderr: string }> & { kill: () => void } {
   const started = performance.now();
-  const child = spawn(process.execPath, [KVARBOOK_BIN, 'archive', 'add', ...reports, '--archive', archive], {
+  const child = spawn(process.execPath, [KVARBOOK_BIN, 'archive', ...args], {
     cwd: set.space.folder,
     env: { ...process.env, ...set.space.env },
     stdio: ['ignore', 'ignore', 'pipe'],
@@ -25,12 +24,17 @@ function addProcess(
     stderr += chunk.toString('utf8');
   });
   const timer = killAfterMs === undefined ? undefined : setTimeout(() => child.kill('SIGKILL'), killAfterMs);
-  return new Promise((resolve) => {
+  const exited = new Promise<{ status: number | null; ms: number; stderr: string }>((resolve) => {
     child.on('exit', (status) => {
       clearTimeout(timer);
       resolve({ status, ms: performance.now() - started, stderr });
     });
   });
+  return Object.assign(exited, { kill: () => child.kill('SIGKILL') });
+}
+
+function addProcess(set: SealedSet, archive: string, reports: string[], killAfterMs?: number) {
+  return archiveProcess(set, ['add', ...reports, '--archive', archive], killAfterMs);
 }
 
 describe('the archive when processes are killed or run at once', () => {
@@ -66,6 +70,28 @@ describe('the archive when processes are killed or run at once', () => {
     const finished = await addProcess(set, folder, reports);
     expect(finished.stderr).toBe('');
     expect((await consistentIds(folder)).sort()).toEqual(['CRS-1', 'CRS-2']);
+  }, 60_000);
+
+  it('leaves the archive consistent when a recheck is killed after its first verdict, and the same recheck then resumes', async () => {
+    const folder = join(scratchFolder(), 'archive');
+    expect((await addProcess(set, folder, reports)).status).toBe(0);
+    const recheck = archiveProcess(set, ['recheck', '--all', '--jobs', '1', '--archive', folder]);
+    await vi.waitFor(
+      async () => {
+        const archive = await openArchive(folder);
+        try {
+          expect((await archive.index.all()).some((row) => row.lastVerdict !== null)).toBe(true);
+        } finally {
+          await archive.index.close();
+        }
+      },
+      { timeout: 60_000, interval: 50 },
+    );
+    recheck.kill();
+    expect((await recheck).status).toBeNull();
+    expect((await consistentIds(folder)).sort()).toEqual(['CRS-1', 'CRS-2']);
+    const resumed = await kvarbookInProcess(['archive', 'recheck', '--all', '--json', '--archive', folder], set.space.folder, set.space.env);
+    expect(JSON.parse(resumed.stdout)).toMatchObject({ resumed: true, interrupted: false, total: 2, reproduced: 2 });
   }, 60_000);
 
   it('keeps each report once when two processes add the same reports at the same time', async () => {
