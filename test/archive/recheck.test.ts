@@ -1,4 +1,4 @@
-import { readFileSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { build, stop } from 'esbuild';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -86,6 +86,15 @@ describe('rechecking the archive', () => {
       await archive.index.close();
     }
   }, 120_000);
+
+  it('gives the command line no way to choose another calculation child: no call of the re-run passes one', () => {
+    const sources = join(import.meta.dirname, '../../src');
+    const calls = readdirSync(sources, { recursive: true, encoding: 'utf8' })
+      .filter((path) => path.endsWith('.ts'))
+      .flatMap((path) => [...readFileSync(join(sources, path), 'utf8').matchAll(/(?<!function )rerunFrom\(([^)]*)\)/g)].map((match) => match[1]!));
+    expect(calls.length).toBeGreaterThan(0);
+    for (const args of calls) expect(args.split(',')).toHaveLength(2);
+  });
 
   it('takes an interrupted recheck up where it stopped, re-running no study twice', async () => {
     const archive = await filledArchive();
