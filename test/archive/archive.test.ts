@@ -114,6 +114,26 @@ describe('the archive on one machine', () => {
     });
   });
 
+  it('archives a printed report from its PDF: the PDF and the sealed HTML it carries, with the files beside them', async () => {
+    writeFileSync(join(set.space.folder, 'printed.study.md'), archivedStudy('PRN-1', 1));
+    const printed = await cli(['run', 'printed.study.md', '--seal', '--pdf', '--out', 'printed'], set.space.folder, set.space.env);
+    expect(printed.status).toBe(0);
+    const folder = scratchFolder();
+    expect((await run(['archive', 'add', join(set.space.folder, 'printed', 'PRN-1-r1.pdf')], folder)).status).toBe(0);
+    const shown = JSON.parse((await run(['archive', 'show', 'PRN-1', '--json'], folder)).stdout);
+    expect(shown.files.map((file: { role: string; name: string }) => `${file.role} ${file.name}`)).toEqual([
+      'pdf PRN-1-r1.pdf',
+      'report PRN-1-r1.html',
+      'results PRN-1-r1.results.json',
+      'seal PRN-1-r1.seal.json',
+      'source printed.study.md',
+    ]);
+    const out = join(scratchFolder(), 'exported');
+    expect((await run(['archive', 'export', 'PRN-1', out], folder)).status).toBe(0);
+    for (const name of ['PRN-1-r1.pdf', 'PRN-1-r1.html'])
+      expect(readFileSync(join(out, name)).equals(readFileSync(join(set.space.folder, 'printed', name)))).toBe(true);
+  }, 60_000);
+
   it('refuses an unsealed report, saying it is not sealed, and stores nothing', async () => {
     const folder = scratchFolder();
     const refused = await run(['archive', 'add', join(set.space.folder, 'build', 'DRF-1-r1.html')], folder);
