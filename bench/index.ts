@@ -2,6 +2,7 @@
 import { runProfileBench } from './profile.bench.ts';
 import { runPdfBench } from './pdf.bench.ts';
 import { runCheckBench } from './check.bench.ts';
+import { archiveRow, runArchiveBench } from './archive.bench.ts';
 import { runScalingBench, scalingTable, unclosedBracesTable } from './scaling.bench.ts';
 import { runStartupBench, startupRows } from './startup.bench.ts';
 
@@ -21,6 +22,8 @@ const check = await runCheckBench();
 rows.push(
   `check vs run of the demo  run ${check.runMs.toFixed(0)} ms   check ${check.checkMs.toFixed(0)} ms   ratio ${check.ratio.toFixed(2)} (target 1.1)`,
 );
+
+rows.push(archiveRow(await runArchiveBench()));
 
 console.log(rows.join('\n'));
 console.log('\nstages against study size (declarations, results and inline values each; x2.0 per doubling is linear):');

@@ -11,8 +11,8 @@ import { SCHEMA_DEFINITIONS_READ } from '../src/report/chart/vegaLiteNames.ts';
 const RECORD = installedPath(join(BUNDLE_FOLDER, 'build-inputs.json'));
 /** Besides the bundles' own sources, the bundle depends on how it is built. */
 const BUILD_FILES = ['scripts/build.ts', 'package.json'];
-/** Loaded from node_modules at run time: native binaries, the compiler (used only by the type check), the browser driver, and the PDF library whose internals decodeBudget.ts patches by path. */
-const EXTERNAL = ['esbuild', 'typescript', 'puppeteer-core', 'pdf-lib', 'tsx', 'tsx/*'];
+/** Loaded from node_modules at run time: native binaries, the PostgreSQL driver and job queue (whose optional native driver a bundle cannot resolve), the compiler (used only by the type check), the browser driver, and the PDF library whose internals decodeBudget.ts patches by path. */
+const EXTERNAL = ['better-sqlite3', 'pg', 'pg-boss', 'esbuild', 'typescript', 'puppeteer-core', 'pdf-lib', 'tsx', 'tsx/*'];
 const ESM_PARTS: readonly BundlePart[] = ['cli', 'workerEntry', 'typecheckWorker', 'chartWorker'];
 
 /** True when dist/ holds a bundle built from the sources as they are now. */

@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # Makes sure the Debian packages for PDF printing and checking are present: chromium, poppler-utils,
-# and fonts-liberation (the charts' first font; chromium does not depend on any font package).
+# fonts-liberation (the charts' first font; chromium does not depend on any font package), and postgresql (the
+# archive's queue test).
 # Idempotent and quiet when everything is installed; installs as root, otherwise says what is missing.
 set -euo pipefail
 
@@ -10,6 +11,8 @@ if ! command -v pdftoppm >/dev/null 2>&1 || ! command -v pdftotext >/dev/null 2>
   missing+=(poppler-utils)
 fi
 dpkg-query -W -f='${Status}' fonts-liberation 2>/dev/null | grep -q 'install ok installed' || missing+=(fonts-liberation)
+# The archive's queue test runs against a local PostgreSQL (scripts/ensure-postgres.sh starts it).
+command -v pg_lsclusters >/dev/null 2>&1 || missing+=(postgresql)
 
 if [[ ${#missing[@]} -eq 0 ]]; then
   exit 0

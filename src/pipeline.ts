@@ -35,6 +35,8 @@ export interface RunRequest {
   hooks?: ExecutionHooks;
   /** Also run the study with each uncertain input at each end of its range (the front matter's `sensitivity:`). */
   sensitivity?: boolean;
+  /** Another build of the calculation child, for tests of a changed solver; the command line never sets it. */
+  childBundle?: string;
   /** Ends the run early, between stages and inside the execution (the live preview's superseded runs). */
   signal?: AbortSignal;
 }
@@ -61,7 +63,7 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
   const inputs = effectiveInputs(study.inputs, request.overrides);
   // The calculation child is forked now, so that its start overlaps the transpile and the type check.
   const granted = grantLimits(study.meta.limits, request.ceilings ?? DEFAULT_CEILINGS);
-  const calculation = startCalculation(study, granted.limits);
+  const calculation = startCalculation(study, granted.limits, request.childBundle);
   const charts = new ChartDrawing(study.file, request.chartCache);
   let outcome: ExecutionOutcome;
   let sensitivity: ReturnType<typeof sensitivityOutcome> | undefined;
@@ -117,7 +119,11 @@ export async function runStudy(request: RunRequest): Promise<RunProduct> {
             overrides: request.overrides,
             asRun: inputs,
             execute: (variantInputs) =>
-              executeStudy(study, variantInputs, blocks, inlines, { ...(request.signal ? { signal: request.signal } : {}), granted }),
+              executeStudy(study, variantInputs, blocks, inlines, {
+                ...(request.signal ? { signal: request.signal } : {}),
+                ...(request.childBundle ? { childBundle: request.childBundle } : {}),
+                granted,
+              }),
           })
         : undefined;
     request.signal?.throwIfAborted();

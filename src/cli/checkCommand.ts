@@ -38,7 +38,10 @@ export interface CheckOptions {
   ceilings?: RunLimits;
 }
 
-function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined) {
+/** The check's re-run of a study: from the checker's copy of the source, or the embedded one in a scratch folder. */
+export function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefined, childBundle?: string) {
+  // One cache for every re-run it makes: a recheck of many studies works out the checker's identity once, not per study.
+  const cache = typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion);
   return async (request: RerunRequest): Promise<RunProduct> => {
     // An embedded source runs from an empty scratch folder: it may read nothing of the checker's.
     // Either way the run carries the sealed file name, so that the report it renders can be compared.
@@ -54,8 +57,9 @@ function rerunFrom(sourcePath: string | undefined, ceilings: RunLimits | undefin
         typecheck: true,
         ...(ceilings ? { ceilings } : {}),
         environment: request.environment,
+        ...(childBundle ? { childBundle } : {}),
         stylesheet: reportStylesheet(),
-        typecheckCache: typecheckCache(launchEnvironment(), installationFacts().kvarbookVersion),
+        typecheckCache: cache,
         chartCache: chartCache(launchEnvironment(), installationFacts()),
       });
     } catch (error) {

@@ -170,6 +170,12 @@ export const DIAGNOSTIC_CODES = {
   'new-unwritable': 'the new study cannot be written',
   'preview-port-unavailable': 'the live preview cannot listen on the port asked for (taken, or not allowed)',
   'preview-watch-failed': 'the live preview cannot watch the study file for saves',
+
+  // The archive (src/archive, src/cli/archiveCommand.ts)
+  'archive-refused': 'a report was not archived: it is not sealed, was changed since sealing, or its signer is not trusted',
+  'archive-not-found': 'no archived report has that study id (and revision)',
+  'archive-export-exists': 'the folder an archived report would be exported to already holds one of its files',
+  'archive-index-unreadable': 'the archive index cannot be opened or is not an archive index',
   internal: 'kvarbook failed unexpectedly (a defect to report)',
 } as const satisfies Record<string, string>;
 

@@ -73,6 +73,11 @@ export interface ExecutionOptions {
   granted?: GrantedLimits;
   /** Ends the run early (a newer save superseded it): the child is killed at once and the run fails. */
   signal?: AbortSignal;
+  /**
+   * Another build of the calculation child (a test's deliberately changed solver); set only by code that calls the
+   * pipeline, never by the command line, the environment or a study.
+   */
+  childBundle?: string;
   /** A child started earlier with the same limits (`startCalculation`); one is started here when absent. */
   started?: CalculationProcess;
 }
@@ -88,8 +93,8 @@ export interface CalculationProcess {
  * milliseconds, so the pipeline forks it as soon as the study's limits are known and transpiles and type-checks
  * meanwhile; the child runs nothing of the study until its blocks are sent.
  */
-export function startCalculation(study: Study, limits: RunLimits): CalculationProcess {
-  const bundlePath = childBundlePath();
+export function startCalculation(study: Study, limits: RunLimits, childBundle?: string): CalculationProcess {
+  const bundlePath = childBundle ?? childBundlePath();
   const child = fork(bundlePath, [], {
     execArgv: childExecArguments(dirname(resolve(study.file)), bundlePath, limits.heapMb),
     env: childEnvironment(),
@@ -110,7 +115,7 @@ export async function executeStudy(
   const hooks = options.hooks ?? {};
   const granted = options.granted ?? { limits: study.meta.limits, asked: {} };
   const limits = granted.limits;
-  const calculation = options.started ?? startCalculation(study, limits);
+  const calculation = options.started ?? startCalculation(study, limits, options.childBundle);
   const { conversation } = calculation;
   const studyDeadline = Date.now() + limits.studySeconds * 1000;
   const stop = () => conversation.close();

@@ -1,5 +1,6 @@
 // The checker's procedure on a sealed report: signature, unchanged report, source, re-run, re-rendered body, engineer, verdict.
 import type { RunProduct } from '../pipeline.ts';
+import type { ReportParts } from '../report/html.ts';
 import type { ResultsDocument } from '../report/studyRun.ts';
 import type { CalcBlock, Person } from '../study/model.ts';
 import { compareResults, type ResultComparison } from './compare.ts';
@@ -77,29 +78,37 @@ export interface CheckOutcome {
   rerun: RunProduct | null;
 }
 
-export async function checkSealedReport(request: CheckRequest): Promise<CheckOutcome> {
+/** What can be known of a sealed report without running its study: steps 1 to 3 and the counter-signatures. */
+export interface SealedReportFindings {
+  steps: CheckStep[];
+  verification: ReturnType<typeof verifyEnvelope> | null;
+  manifest: SealManifest | null;
+  envelope: SealEnvelope | null;
+  checks: CheckRecord[];
+  /** The report's body parts around the seal slot; null when the slot is not intact. */
+  parts: ReportParts | null;
+  sourceMatches: boolean;
+  /** Null when every counter-signature on the report verifies (or there is none). */
+  counterSignatures: CheckStep | null;
+}
+
+/** The seal's signature and trust, the report unchanged, and the source the one sealed; never runs the study. */
+export function verifySealedReport(
+  html: string,
+  source: string | undefined,
+  sourceOrigin: string,
+  trusted: readonly PublicIdentity[],
+): SealedReportFindings {
   const steps: CheckStep[] = [];
-  const reading = readSealedHtml(request.html);
+  const reading = readSealedHtml(html);
   if (!reading.ok) {
     steps.push({ name: 'seal', passed: false, detail: reading.problem });
-    return {
-      verdict: 'failed',
-      steps,
-      signer: null,
-      envelope: null,
-      checks: [],
-      comparison: null,
-      study: null,
-      blocks: null,
-      bodyDifference: null,
-      criteria: null,
-      rerun: null,
-    };
+    return { steps, verification: null, manifest: null, envelope: null, checks: [], parts: null, sourceMatches: false, counterSignatures: null };
   }
   const { parts } = reading.contents;
 
   // 1. The signature, and whether the signer is one the checker trusts.
-  const verification = verifyEnvelope(reading.contents.envelope, request.trusted);
+  const verification = verifyEnvelope(reading.contents.envelope, trusted);
   const manifest = verification.manifest;
   const envelope = manifest ? (reading.contents.envelope as SealEnvelope) : null;
   const signerText = verification.signer ? describeSigner(verification.signer) : 'an unknown signer';
@@ -119,7 +128,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
       const parsed = checkRecordSchema.safeParse(raw);
       if (parsed.success) checks.push(parsed.data);
     }
-    const framingMatches = checks.length === reading.contents.checks.length && sealedReportHtml(parts, envelope, checks) === request.html;
+    const framingMatches = checks.length === reading.contents.checks.length && sealedReportHtml(parts, envelope, checks) === html;
     steps.push({
       name: 'report unchanged',
       passed: bodyMatches && framingMatches,
@@ -134,18 +143,54 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
   }
 
   // 3. The study source is the one that was sealed.
-  const sourceMatches = manifest !== null && request.source !== undefined && sha256Hex(request.source) === manifest.studySourceSha256;
+  const sourceMatches = manifest !== null && source !== undefined && sha256Hex(source) === manifest.studySourceSha256;
   steps.push({
     name: 'study source',
     passed: sourceMatches,
     detail:
-      request.source === undefined
+      source === undefined
         ? 'no study source: the report carries none and none was given'
         : sourceMatches
-          ? `the source (${request.sourceOrigin}) is the one sealed`
-          : `the source (${request.sourceOrigin}) differs from the one sealed`,
+          ? `the source (${sourceOrigin}) is the one sealed`
+          : `the source (${sourceOrigin}) differs from the one sealed`,
   });
 
+  // Counter-signatures already on the report, if any.
+  let counterSignatures: CheckStep | null = null;
+  if (envelope && checks.length > 0) {
+    const verified = checks.map((check) => verifyCheckRecord(check, envelope, trusted));
+    counterSignatures = {
+      name: 'counter-signatures',
+      passed: verified.every((result) => result.ok),
+      detail: verified
+        .map(
+          (result) =>
+            `${result.signer ? describeSigner(result.signer) : 'unknown checker'}: ${result.ok ? 'valid' : result.problems.join('; ') || 'not trusted'}`,
+        )
+        .join('; '),
+    };
+  }
+  return { steps, verification, manifest, envelope, checks, parts, sourceMatches, counterSignatures };
+}
+
+export async function checkSealedReport(request: CheckRequest): Promise<CheckOutcome> {
+  const findings = verifySealedReport(request.html, request.source, request.sourceOrigin, request.trusted);
+  const { steps, verification, manifest, envelope, checks, parts, sourceMatches } = findings;
+  if (verification === null || parts === null) {
+    return {
+      verdict: 'failed',
+      steps,
+      signer: null,
+      envelope: null,
+      checks: [],
+      comparison: null,
+      study: null,
+      blocks: null,
+      bodyDifference: null,
+      criteria: null,
+      rerun: null,
+    };
+  }
   // 4. Re-run, and compare every named result and criterion.
   let comparison: ResultComparison | null = null;
   let rerun: RunProduct | null = null;
@@ -199,20 +244,7 @@ export async function checkSealedReport(request: CheckRequest): Promise<CheckOut
   // 6. The seal is by the engineer the study names, not by some other trusted key.
   steps.push(engineerStep(verification.signer, rerun?.results.study.engineer));
 
-  // Counter-signatures already on the report, if any.
-  if (envelope && checks.length > 0) {
-    const verified = checks.map((check) => verifyCheckRecord(check, envelope, request.trusted));
-    steps.push({
-      name: 'counter-signatures',
-      passed: verified.every((result) => result.ok),
-      detail: verified
-        .map(
-          (result) =>
-            `${result.signer ? describeSigner(result.signer) : 'unknown checker'}: ${result.ok ? 'valid' : result.problems.join('; ') || 'not trusted'}`,
-        )
-        .join('; '),
-    });
-  }
+  if (findings.counterSignatures) steps.push(findings.counterSignatures);
 
   return {
     verdict: verdictOf(steps),

@@ -4,7 +4,7 @@ import type { Diagnostic } from '../diagnostics/diagnostic.ts';
 import { CODE_PLACEMENTS, type CodePlacement, DEFAULT_LIMITS, type Person, type StudyMeta } from './model.ts';
 import { type FieldReader, type YamlPlace, readMap, readNumber, readString, rejectUnknownKeys, nodeOf } from './yamlFields.ts';
 
-const META_KEYS = ['title', 'project', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs', 'sensitivity'] as const;
+const META_KEYS = ['title', 'project', 'line', 'id', 'revision', 'date', 'engineer', 'checker', 'limits', 'report', 'inputs', 'sensitivity'] as const;
 const PERSON_KEYS = ['name', 'licence', 'jurisdiction'] as const;
 const LIMIT_KEYS = ['blockSeconds', 'studySeconds', 'heapMb'] as const;
 const REPORT_KEYS = ['pdf', 'paper', 'code'] as const;
@@ -19,6 +19,7 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
 
   const title = readString(reader, root, 'title', 'the front matter', true);
   const project = readString(reader, root, 'project', 'the front matter', true);
+  const line = readString(reader, root, 'line', 'the front matter', false);
   const id = readString(reader, root, 'id', 'the front matter', true);
   if (id !== undefined && !STUDY_ID.test(id)) {
     diagnostics.push({
@@ -105,7 +106,7 @@ export function readMeta(document: Document.Parsed, place: YamlPlace, diagnostic
   }
 
   if (diagnostics.length > before || !title || !project || !id || revision === undefined || !date || !engineer) return undefined;
-  return { title, project, id, revision, date, engineer, ...(checker ? { checker } : {}), limits, report };
+  return { title, project, ...(line !== undefined ? { line } : {}), id, revision, date, engineer, ...(checker ? { checker } : {}), limits, report };
 }
 
 function readPerson(reader: FieldReader, root: YAMLMap, key: 'engineer' | 'checker', required: boolean): Person | undefined {

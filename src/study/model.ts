@@ -33,6 +33,8 @@ export interface ReportOptions {
 export interface StudyMeta {
   title: string;
   project: string;
+  /** The line the study is about, as the utility names it; optional, and what the archive is searched by. */
+  line?: string;
   id: string;
   revision: number;
   /** ISO date (YYYY-MM-DD) of the study; the report never uses the wall clock. */
