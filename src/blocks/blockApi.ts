@@ -357,7 +357,7 @@ export function createBlockApi(
     }
     const content = caseTableContent(cases, layout);
     table(content.rows, { ...(options.caption === undefined ? {} : { caption: options.caption }), columns: content.columns });
-    for (const note of unsolvedNotes(cases)) emit({ kind: 'text', text: note });
+    for (const note of [...unsolvedNotes(cases), ...content.notes]) emit({ kind: 'text', text: note });
   }
 
   function chart(spec: object, options: ChartOptions): void {

@@ -13,16 +13,18 @@ export interface CaseTableColumn {
 export interface CaseTableContent {
   columns: CaseTableColumn[];
   rows: Record<string, string | number>[];
+  /** What a reader needs beneath the table to lose nothing: the columns left out because no case has a value for them. */
+  notes: string[];
 }
 
-type Solutions = Pick<CorridorCaseTable, 'cases'> & { busNames?: readonly string[] };
+type Solutions = Pick<CorridorCaseTable, 'cases'> & { busNames?: readonly string[]; sectionNames?: readonly string[] };
 
 const DIGITS_PU = 4;
 
 /**
  * Cases as rows: the case number and label, each bus voltage (pu), the highest voltage along the lines (pu), the angle across the
  * corridor, the output of each SVC in service and the current of each series segment (or "bypassed"), and why a case has no
- * solution. Buses as rows: each bus's voltage in each case, a column per case.
+ * solution; a column with no value in any case is left out, and a note says so. Buses as rows: each bus's voltage in each case, a column per case.
  */
 export function caseTableContent(table: Solutions, layout: CaseTableLayout = 'cases-as-rows'): CaseTableContent {
   const solved = table.cases.filter((solution) => solution.solved);
@@ -47,17 +49,19 @@ export function caseTableContent(table: Solutions, layout: CaseTableLayout = 'ca
           }),
         ),
       })),
+      notes: [],
     };
   }
   const segmentNames = [
     ...new Set(solved.flatMap((solution) => solution.sections.flatMap((section) => section.seriesCapacitors.map((segment) => segment.name)))),
   ];
   const svcNames = [...new Set(solved.flatMap((solution) => solution.svcs.map((svc) => svc.name)))];
+  const lineCount = table.sectionNames?.length ?? solved[0]?.sections.length ?? 0;
   const columns: CaseTableColumn[] = [
     { key: 'number', label: 'No.' },
     { key: 'case', label: 'Case' },
     ...busNames.map((name, index) => ({ key: `bus${index}`, label: name, unit: 'pu', digits: DIGITS_PU })),
-    { key: 'highest', label: 'Highest along the lines', unit: 'pu', digits: DIGITS_PU },
+    { key: 'highest', label: lineCount === 1 ? 'Highest along the line' : 'Highest along the lines', unit: 'pu', digits: DIGITS_PU },
     { key: 'angle', label: 'Angle across', unit: 'deg', digits: 3 },
     ...svcNames.map((name, index) => ({ key: `svc${index}`, label: name, unit: 'Mvar', digits: 3 })),
     ...segmentNames.map((name, index) => ({ key: `segment${index}`, label: name, unit: 'A', digits: 4 })),
@@ -87,7 +91,14 @@ export function caseTableContent(table: Solutions, layout: CaseTableLayout = 'ca
     });
     return row;
   });
-  return { columns, rows };
+  // The first column after the case carries "no solution" and stays; any other column that is "-" in every row says nothing.
+  const empty = new Set(columns.slice(3).filter((column) => rows.every((row) => row[column.key] === '-')));
+  const kept = columns.filter((column) => !empty.has(column));
+  return {
+    columns: kept,
+    rows: rows.map((row) => Object.fromEntries(kept.map((column) => [column.key, row[column.key]!]))),
+    notes: [...empty].map((column) => `The column "${column.label}" is left out: no case has a value for it.`),
+  };
 }
 
 /** The reasons of the cases without a solution, numbered as in the table, for a note beneath it. */

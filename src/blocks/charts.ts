@@ -3,6 +3,7 @@ import { ChartInputError } from './chartInputError.ts';
 import { stabilityMarginPercent } from '../solver/curves.ts';
 import { type SvcCharacteristicOptions, svcCharacteristicCorners } from '../solver/sizing.ts';
 import { allowedBandFill, referenceInk, seriesColours, seriesDashes, seriesShapes } from './chartStyle.ts';
+import { columnFormat } from './format.ts';
 
 // Blocks have always found these two beside the charts that draw them.
 export { stabilityMarginPercent, svcCharacteristicCorners };
@@ -67,17 +68,25 @@ export function pvCurveChart(input: PvCurveInput): ChartSpec {
   );
   const x = { field: 'pMw', type: 'quantitative', title: 'Receiving-end active power P (MW)' };
   const y = { field: 'voltagePu', type: 'quantitative', title: 'Receiving-end voltage (pu)', scale: { zero: false } };
-  const noses = input.curves.flatMap((curve, curveIndex) =>
+  const marked = input.curves.flatMap((curve, curveIndex) =>
     curve.nose
       ? [
           {
+            label: curve.label,
             pMw: finite(curve.nose.pMw, `curves[${curveIndex}].nose.pMw`),
             voltagePu: finite(curve.nose.voltagePu, `curves[${curveIndex}].nose.voltagePu`),
-            note: `${input.curves.length > 1 ? `${curve.label}: ` : ''}nose ${formatNumber(curve.nose.pMw)} MW, ${formatNumber(curve.nose.voltagePu)} pu`,
           },
         ]
       : [],
   );
+  // One format for all the noses of a chart, as for a table column, so that "0.6850 pu" stands beside "0.6717 pu".
+  const formatMw = columnFormat(marked.map((nose) => nose.pMw));
+  const formatPu = columnFormat(marked.map((nose) => nose.voltagePu));
+  const noses = marked.map((nose) => ({
+    pMw: nose.pMw,
+    voltagePu: nose.voltagePu,
+    note: `${input.curves.length > 1 ? `${nose.label}: ` : ''}nose ${formatMw(nose.pMw)} MW, ${formatPu(nose.voltagePu)} pu`,
+  }));
   const layers: ChartSpec[] = [seriesLayer(values, labels, x, y, 'Curve')];
   if (noses.length > 0) layers.push(noseLayer(noses, values, x, y));
   return frame(input.title ?? 'P-V curves at the receiving end', layers);
@@ -385,10 +394,12 @@ export interface CostComparisonInput {
     costUnit: string;
     options: readonly { label: string; equipmentCost: number; presentValueOfLosses: number; presentValueOfMaintenance: number }[];
   };
+  /** What the study calls the items compared ("alternative", "scheme"), for the title and the axis; left out, neither names them. */
+  itemName?: string;
   title?: string;
 }
 
-/** Capitalised cost of each option as stacked bars: equipment, present value of losses, present value of maintenance. */
+/** Capitalised cost of each item compared as stacked bars: equipment, present value of losses, present value of maintenance. */
 export function costComparisonChart(input: CostComparisonInput): ChartSpec {
   const parts = ['equipment', 'losses (present value)', 'maintenance (present value)'];
   const options = nonEmpty(input.comparison.options, 'comparison.options');
@@ -407,12 +418,19 @@ export function costComparisonChart(input: CostComparisonInput): ChartSpec {
       stackOrder: 2,
     },
   ]);
-  return frame(input.title ?? 'Capitalised cost of each option', [
+  const itemName = input.itemName === undefined ? undefined : readItemName(input.itemName);
+  return frame(input.title ?? (itemName ? `Capitalised cost of each ${itemName}` : 'Capitalised cost compared'), [
     {
       data: { values },
       mark: { type: 'bar' },
       encoding: {
-        y: { field: 'option', type: 'nominal', title: 'Option', sort: options.map((option) => option.label), axis: { labelLimit: 240 } },
+        y: {
+          field: 'option',
+          type: 'nominal',
+          title: itemName ? capitalised(itemName) : null,
+          sort: options.map((option) => option.label),
+          axis: { labelLimit: 240 },
+        },
         x: { field: 'cost', type: 'quantitative', title: `Capitalised cost (${input.comparison.costUnit})`, stack: 'zero' },
         color: { field: 'part', type: 'nominal', title: 'Part', scale: { domain: parts, range: [...seriesColours.slice(0, 3)] } },
         order: { field: 'stackOrder', type: 'quantitative' },
@@ -426,12 +444,15 @@ export interface TransferComparisonInput {
   alternatives: readonly { label: string; maximumTransferMw: number; loadabilityMw: number }[];
   /** The transfer the corridor must carry, drawn as a vertical line. */
   targetTransferMw?: number;
+  /** What the study calls the items compared, for the title and the axis; "alternative" when left out. */
+  itemName?: string;
   title?: string;
 }
 
 /** Maximum transfer and loadability of each alternative as overlaid horizontal bars, with the target transfer marked. */
 export function transferComparisonChart(input: TransferComparisonInput): ChartSpec {
   const labels = seriesLabels(input.alternatives, 'alternatives');
+  const itemName = readItemName(input.itemName ?? 'alternative');
   const parts = ['steady-state limit', 'within the angle limit'];
   const values = input.alternatives.flatMap((alternative, index) => [
     {
@@ -448,7 +469,7 @@ export function transferComparisonChart(input: TransferComparisonInput): ChartSp
       mark: { type: 'bar' },
       encoding: {
         // Alternatives are named in words; the default label limit would cut most of them.
-        y: { field: 'alternative', type: 'nominal', title: 'Alternative', sort: labels, axis: { labelLimit: 240 } },
+        y: { field: 'alternative', type: 'nominal', title: capitalised(itemName), sort: labels, axis: { labelLimit: 240 } },
         x: { ...x, stack: null },
         color: { field: 'part', type: 'nominal', title: 'Transfer', scale: { domain: parts, range: [seriesColours[1], seriesColours[0]] } },
       },
@@ -458,7 +479,25 @@ export function transferComparisonChart(input: TransferComparisonInput): ChartSp
     const target = positive(input.targetTransferMw, 'targetTransferMw', 'e.g. 1100 MW');
     layers.push(verticalRuleLayer(target, `target ${formatNumber(target)} MW`, x.title));
   }
-  return frame(input.title ?? 'Transfer limits of each alternative', layers);
+  return frame(input.title ?? `Transfer limits of each ${itemName}`, layers);
+}
+
+/** The word a study uses for the items a chart compares: one short line of text. */
+function readItemName(word: string): string {
+  const trimmed = typeof word === 'string' ? word.trim() : '';
+  if (trimmed === '' || trimmed.length > 40 || /[\r\n]/.test(trimmed)) {
+    throw new ChartInputError('chart-input-out-of-range', {
+      quantity: 'itemName',
+      value: String(word),
+      allowed: 'a word or two of up to 40 characters on one line',
+      hint: 'Name the items compared as the study does, e.g. itemName: "alternative".',
+    });
+  }
+  return trimmed;
+}
+
+function capitalised(word: string): string {
+  return word.charAt(0).toUpperCase() + word.slice(1);
 }
 
 export interface TornadoInput {
@@ -529,6 +568,21 @@ function withMarkers(values: Record<string, unknown>[]): Record<string, unknown>
   });
 }
 
+/**
+ * Vega lays a legend out by its own estimate of a label's width, 0.8 em a character when it has no canvas (as in a report), at the
+ * theme's 10 px labels; a symbol and the gaps beside it take about 30 px more.
+ */
+const LEGEND_CHARACTER_PX = 8;
+const LEGEND_ENTRY_EXTRA_PX = 30;
+const LEGEND_MAX_COLUMNS = 3;
+
+/** A legend that shows every label whole: as wide as the longest label, in as many columns (up to three) as fit the chart's width. */
+function seriesLegend(labels: readonly string[]): { labelLimit: number; columns: number } {
+  const labelLimit = Math.max(...labels.map((label) => label.length)) * LEGEND_CHARACTER_PX + LEGEND_CHARACTER_PX;
+  const columns = Math.max(1, Math.min(LEGEND_MAX_COLUMNS, Math.floor(defaultWidthPx / (labelLimit + LEGEND_ENTRY_EXTRA_PX))));
+  return { labelLimit, columns };
+}
+
 /** One line plus point layer per series, told apart by colour, dash pattern and point shape. */
 function seriesLayer(
   values: Record<string, unknown>[],
@@ -537,7 +591,8 @@ function seriesLayer(
   y: Record<string, unknown>,
   legendTitle: string,
 ): ChartSpec {
-  const color = { field: 'series', type: 'nominal', title: legendTitle, scale: { domain: labels, range: [...seriesColours] } };
+  const legend = seriesLegend(labels);
+  const color = { field: 'series', type: 'nominal', title: legendTitle, legend, scale: { domain: labels, range: [...seriesColours] } };
   return {
     data: { values: withMarkers(values) },
     layer: [
@@ -547,7 +602,7 @@ function seriesLayer(
           x,
           y,
           color,
-          strokeDash: { field: 'series', type: 'nominal', title: legendTitle, scale: { domain: labels, range: seriesDashes } },
+          strokeDash: { field: 'series', type: 'nominal', title: legendTitle, legend, scale: { domain: labels, range: seriesDashes } },
           order: { field: 'order', type: 'quantitative' },
         },
       },
@@ -558,7 +613,7 @@ function seriesLayer(
           x,
           y,
           color,
-          shape: { field: 'series', type: 'nominal', title: legendTitle, scale: { domain: labels, range: [...seriesShapes] } },
+          shape: { field: 'series', type: 'nominal', title: legendTitle, legend, scale: { domain: labels, range: [...seriesShapes] } },
         },
       },
     ],

@@ -276,7 +276,7 @@ export function seriesCompensationDesign(options: {
   const warnings: string[] = [];
   if (degree > 0 && emergencyPeakKv >= protectiveLevelPeakKv) {
     warnings.push(
-      `Emergency current ${emergencyCurrentA} A gives a capacitor peak of ${emergencyPeakKv.toFixed(1)} kV, at or above the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor would conduct in emergency loading; raise protectiveLevelPu.`,
+      `Emergency current ${forMessage(emergencyCurrentA)} A gives a capacitor peak of ${emergencyPeakKv.toFixed(1)} kV, at or above the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor would conduct in emergency loading; raise protectiveLevelPu.`,
     );
   }
   if (degree > 0) {
@@ -286,11 +286,11 @@ export function seriesCompensationDesign(options: {
     ] as const) {
       if (point.bankCurrentA > emergencyCurrentA) {
         warnings.push(
-          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its emergency current of ${emergencyCurrentA} A: the varistor would conduct in service (capacitor peak ${((Math.SQRT2 * point.bankCurrentA * reactanceOhm) / 1e3).toFixed(1)} kV); raise the bank's ratings.`,
+          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its emergency current of ${forMessage(emergencyCurrentA)} A: the varistor would conduct in service (capacitor peak ${((Math.SQRT2 * point.bankCurrentA * reactanceOhm) / 1e3).toFixed(1)} kV); raise the bank's ratings.`,
         );
       } else if (point.bankCurrentA > ratedCurrentA) {
         warnings.push(
-          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its rated current of ${ratedCurrentA} A: rate the bank for this current or limit the transfer.`,
+          `The bank carries ${point.bankCurrentA.toFixed(0)} A ${where}, above its rated current of ${forMessage(ratedCurrentA)} A: rate the bank for this current or limit the transfer.`,
         );
       }
     }
@@ -304,8 +304,8 @@ export function seriesCompensationDesign(options: {
       degree === 0
         ? 'No series capacitor is needed for this target.'
         : varistorConducts
-          ? `A through fault of ${throughFaultCurrentA} A would drive the capacitor to ${throughFaultPeakKv.toFixed(1)} kV peak; the varistor conducts and clamps it at the protective level ${protectiveLevelPeakKv.toFixed(1)} kV. This is its normal duty on external faults. Whether the bypass switch or gap must also close depends on the energy the varistor absorbs during the fault, which this design does not compute.`
-          : `A through fault of ${throughFaultCurrentA} A gives ${throughFaultPeakKv.toFixed(1)} kV peak, below the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor does not conduct for external faults.`,
+          ? `A through fault of ${forMessage(throughFaultCurrentA)} A would drive the capacitor to ${throughFaultPeakKv.toFixed(1)} kV peak; the varistor conducts and clamps it at the protective level ${protectiveLevelPeakKv.toFixed(1)} kV. This is its normal duty on external faults. Whether the bypass switch or gap must also close depends on the energy the varistor absorbs during the fault, which this design does not compute.`
+          : `A through fault of ${forMessage(throughFaultCurrentA)} A gives ${throughFaultPeakKv.toFixed(1)} kV peak, below the protective level ${protectiveLevelPeakKv.toFixed(1)} kV: the varistor does not conduct for external faults.`,
   };
   return assertFiniteResult('seriesCompensationDesign', {
     location,

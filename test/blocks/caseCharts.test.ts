@@ -91,6 +91,28 @@ describe('frequencyScanChart', () => {
 });
 
 describe('costComparisonChart', () => {
+  const twoSchemes = () =>
+    capitalisedCostComparison({
+      discountRatePercent: 7,
+      lifeYears: 30,
+      energyCostPerMwh: 55,
+      costUnit: 'EMK',
+      options: [
+        { label: 'series capacitor', equipmentCost: 28e6, lineLosses: { peakLossMw: 21, loadFactor: 0.62 } },
+        { label: 'shunt reactors only', equipmentCost: 9e6, lineLosses: { peakLossMw: 26, loadFactor: 0.62 } },
+      ],
+    });
+
+  it('names the compared items in neutral words unless told what the study calls them', async () => {
+    const words = texts(await renderChartSvg(costComparisonChart({ comparison: twoSchemes() }))).join(' ');
+    expect(words).not.toMatch(/option/i);
+  });
+
+  it('calls the compared items what the study calls them', async () => {
+    const svg = await renderChartSvg(costComparisonChart({ comparison: twoSchemes(), itemName: 'alternative' }));
+    expect(texts(svg)).toEqual(expect.arrayContaining(['Capitalised cost of each alternative', 'Alternative']));
+  });
+
   it('stacks equipment, losses and maintenance for each option', async () => {
     const comparison = capitalisedCostComparison({
       discountRatePercent: 7,
@@ -121,6 +143,11 @@ describe('transferComparisonChart', () => {
     expect(texts(svg)).toEqual(expect.arrayContaining(['none', 'series 40 %', 'Transfer (MW)', 'steady-state limit', 'target 1000 MW']));
     const bars = svg.match(/<g class="mark-rect role-mark[^"]*"[^>]*>([\s\S]*?)<\/g>/)?.[1] ?? '';
     expect(bars.match(/<path/g)).toHaveLength(4);
+  });
+
+  it('calls the compared items what the study calls them', async () => {
+    const svg = await renderChartSvg(transferComparisonChart({ alternatives, itemName: 'scheme' }));
+    expect(texts(svg)).toEqual(expect.arrayContaining(['Transfer limits of each scheme', 'Scheme']));
   });
 
   it('refuses two alternatives with one label', () => {

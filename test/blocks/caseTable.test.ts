@@ -38,7 +38,7 @@ describe('the case table', () => {
       'Case',
       'Upper Lode',
       'Sallow',
-      'Highest along the lines',
+      'Highest along the line',
       'Angle across',
       'SV',
       'S1',
@@ -53,6 +53,32 @@ describe('the case table', () => {
     });
     expect(rows[0]!.angle).toBeCloseTo(Math.abs(first.buses[0]!.angleDeg - first.buses[1]!.angleDeg), 12);
     expect(rows[1]).toMatchObject({ svc0: 'out', segment0: 'bypassed' });
+  });
+
+  it('says "along the lines" when the corridor has several lines', () => {
+    const twoLines: CorridorInput = {
+      ...corridor,
+      buses: [{ name: 'Upper Lode' }, { name: 'Mere' }, { name: 'Sallow' }],
+      sections: [
+        { from: 'Upper Lode', to: 'Mere', lengthKm: 150, ...perKm },
+        { from: 'Mere', to: 'Sallow', lengthKm: 150, ...perKm },
+      ],
+    };
+    const { columns } = caseTableContent(solveCorridorCases({ corridor: twoLines, cases: [cases[0]!] }));
+    expect(columns.map((column) => column.label)).toContain('Highest along the lines');
+  });
+
+  it('leaves out a column with no value in any case and says so in a note', () => {
+    const energisations = solveCorridorCases({
+      corridor,
+      cases: [
+        { label: 'energised from Upper Lode', loading: { kind: 'energisation', closedEnd: 'sending' } },
+        { label: 'energised from Sallow', loading: { kind: 'energisation', closedEnd: 'receiving' } },
+      ],
+    });
+    const { columns, notes } = caseTableContent(energisations);
+    expect(columns.map((column) => column.key)).not.toContain('angle');
+    expect(notes).toEqual(['The column "Angle across" is left out: no case has a value for it.']);
   });
 
   it('keeps a row for a case without a solution', () => {

@@ -56,6 +56,12 @@ describe('voltageProfileChart', () => {
     expect(texts(svg)).toEqual(expect.arrayContaining(['Distance from sending end (km)', 'Voltage (pu)']));
   });
 
+  it('shows a long case label whole in the legend', async () => {
+    const label = 'C4: peak, Fennick Cross at half strength, one circuit out';
+    const svg = await renderChartSvg(voltageProfileChart({ cases: [...cases, { label, points: openEndedProfile(400, 0.95) }] }));
+    expect(texts(svg)).toContain(label);
+  });
+
   it('draws one line per case, each with its own colour and dash pattern', async () => {
     const lines = linePaths(await renderChartSvg(voltageProfileChart({ cases })));
     expect(lines).toHaveLength(3);
@@ -139,7 +145,16 @@ describe('pvCurveChart', () => {
 
   it('marks the nose with its power and voltage', async () => {
     const svg = await renderChartSvg(pvCurveChart(input));
-    expect(texts(svg)).toContain('nose 500 MW, 0.7071 pu');
+    expect(texts(svg)).toContain('nose 500.0 MW, 0.7071 pu');
+  });
+
+  it('writes the noses of all its curves in one format', async () => {
+    const curves = [
+      { label: 'bare', points, nose: { pMw: 812, voltagePu: 0.685 } },
+      { label: 'one step', points, nose: { pMw: 1005.3, voltagePu: 0.6717 } },
+    ];
+    const notes = texts(await renderChartSvg(pvCurveChart({ curves }))).filter((text) => text.includes('nose'));
+    expect(notes.sort()).toEqual(['bare: nose 812 MW, 0.6850 pu', 'one step: nose 1005 MW, 0.6717 pu']);
   });
 
   // A fixed shuffle, so that the test is the same on every run: the order a study happens to pass its points in.
@@ -185,7 +200,10 @@ describe('pvCurveChart', () => {
     );
     const rightmostPx = Math.max(...linePaths(svg).flatMap((curve) => curve.vertices.map((vertex) => vertex[0])));
     const labels = textPlacements(svg).filter((text) => text.text.includes('nose'));
-    expect(labels.map((label) => label.text).sort()).toEqual(['unity power factor: nose 500 MW, 0.7071 pu', 'weaker source: nose 400 MW, 0.7071 pu']);
+    expect(labels.map((label) => label.text).sort()).toEqual([
+      'unity power factor: nose 500.0 MW, 0.7071 pu',
+      'weaker source: nose 400.0 MW, 0.7071 pu',
+    ]);
     for (const label of labels) expect(label.x).toBeGreaterThan(rightmostPx);
     expect(Math.abs(labels[0]!.y - labels[1]!.y)).toBeGreaterThanOrEqual(10);
   });

@@ -42,6 +42,13 @@ describe('seriesCompensationDesign', () => {
     expect(design.protectiveLevelPeakKv).toBeCloseTo(2.2 * Math.SQRT2 * design.capacitorVoltageAtRatedCurrentKv, 9);
   });
 
+  test('quotes the through-fault current rounded in its note', () => {
+    // 15 000 MVA at 400 kV: I = S / (sqrt(3) V) = 21650.635... A.
+    const throughFaultCurrentA = 15000e3 / (Math.sqrt(3) * 400);
+    const { note } = seriesCompensationDesign({ ...base, targetTransferMw: 1000, throughFaultCurrentA }).throughFault;
+    expect(note).toContain('A through fault of 21650.6 A');
+  });
+
   test('reports that the varistor conducts when a through fault drives the capacitor above the protective level', () => {
     expect(seriesCompensationDesign({ ...base, targetTransferMw: 1000 }).throughFault.varistorConducts).toBe(true);
     expect(seriesCompensationDesign({ ...base, targetTransferMw: 1000, throughFaultCurrentA: 3000 }).throughFault.varistorConducts).toBe(false);

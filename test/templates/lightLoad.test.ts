@@ -45,6 +45,12 @@ const reactors = (bus: string) => shuntFromRating(run.result(`Shunt reactors at 
 const openEndPu = (chain: Abcd, emfKv: number) => emfKv / abs(chain.A) / nominalKv;
 
 describe('the light-load template', () => {
+  it('writes a count of reactors times their rating with the multiplication sign', () => {
+    const body = run.product.report.body;
+    expect(body).toMatch(/\d × \d/);
+    expect(body).not.toMatch(/\d x \d/);
+  });
+
   it('meets every criterion it states', () => {
     expect(run.product.results.criteria.every((entry) => entry.passed)).toBe(true);
     expect(run.product.results.criteria.length).toBeGreaterThanOrEqual(5);

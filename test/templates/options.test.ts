@@ -65,4 +65,19 @@ describe('the options template', async () => {
     expect(/The recommendation is <strong>(<span[^>]*>)?reactors \+ series 40 %/.test(body)).toBe(true);
     expect(/NaN|Infinity/.test(body)).toBe(false);
   });
+
+  it('recommends none of the alternatives, and quotes no cost for one, when none meets every criterion', async () => {
+    // A peak transfer beyond every alternative's limit within the angle limit (the largest here is near 2.9 GW).
+    const none = await runSource(readFileSync(TEMPLATE, 'utf8'), {
+      file: 'options.study.md',
+      overrides: [{ name: 'peakTransfer', text: '5000 MW' }],
+    });
+    expect(none.results.criteria.map((entry) => entry.passed)).toEqual([false]);
+    const start = none.report.body.indexOf('<h2 id="recommendation">');
+    const section = none.report.body.slice(start, none.report.body.indexOf('<h2', start + 1));
+    expect(section).not.toContain('the cheapest of them');
+    expect(section).toMatch(/The recommendation is <strong>(<span[^>]*>)?none of the alternatives/);
+    expect(section).toMatch(/no alternative meets every criterion/);
+    expect(none.results.results.map((entry) => entry.name)).not.toContain('Capitalised cost of the recommendation');
+  });
 });
