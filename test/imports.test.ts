@@ -46,3 +46,26 @@ describe('the module layout', () => {
     expect(importCircles(importGraph())).toEqual([]);
   });
 });
+
+/** The modules a module loads when it runs: relative imports that are not type-only, followed to the end. */
+function loadedAtStart(entry: string): string[] {
+  const reached = new Set<string>();
+  const visit = (file: string) => {
+    if (reached.has(file)) return;
+    reached.add(file);
+    const text = readFileSync(file, 'utf8');
+    for (const match of text.matchAll(/^\s*(?:import|export)\s+(?!type\b)[^'";]*?\bfrom\s+'(\.[^']+)'/gm)) visit(resolve(dirname(file), match[1]!));
+  };
+  visit(entry);
+  return [...reached].map((file) => relative(sourceFolder, file));
+}
+
+describe('the command line at start-up', () => {
+  // --help and usage errors answer before any stage of a command is loaded; each command loads its own on demand.
+  it('loads neither the study parser, the pipeline, the report nor the archive before a command runs', () => {
+    const heavy = loadedAtStart(join(sourceFolder, 'cli/main.ts')).filter((file) =>
+      /^(study\/parse|pipeline|report\/|archive\/|execute\/session)/.test(file),
+    );
+    expect(heavy).toEqual([]);
+  });
+});

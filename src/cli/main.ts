@@ -14,7 +14,7 @@ import { StudyFailure } from '../diagnostics/diagnostic.ts';
 import { CEILING_OPTIONS, CEILING_RANGES, DEFAULT_CEILINGS } from '../execute/limits.ts';
 import type { RunLimits } from '../study/model.ts';
 import { installationFacts } from './environment.ts';
-import { listTemplates, newCommand, templateNames } from './newCommand.ts';
+import { templateNames } from './templateFiles.ts';
 import { processTerminal, type Terminal, unexpectedProblem } from './terminal.ts';
 
 export const EXIT = { ok: 0, studyFailed: 1, usage: 2 } as const;
@@ -322,7 +322,8 @@ export function buildProgram(terminal: Terminal, setExit: (code: number) => void
     .argument('[template]', `template name (${templateNames().join(', ')})`)
     .argument('[file]', 'the study file to create')
     .option('--list', 'name each template with what it is for')
-    .action((template: string | undefined, file: string | undefined, options: { list?: boolean }) => {
+    .action(async (template: string | undefined, file: string | undefined, options: { list?: boolean }) => {
+      const { listTemplates, newCommand } = await import('./newCommand.ts');
       if (options.list) {
         if (template !== undefined) create.error('error: kvarbook new --list takes no template or file', { code: 'commander.excessArguments' });
         setExit(listTemplates(terminal));

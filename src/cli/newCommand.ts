@@ -1,30 +1,16 @@
 // `kvarbook new`: start a study from a template in templates/, never overwriting an existing file; `--list` names the templates.
-import { copyFileSync, constants, existsSync, readFileSync, readdirSync } from 'node:fs';
-import { join } from 'node:path';
+import { copyFileSync, constants, existsSync, readFileSync } from 'node:fs';
 import { StudyFailure } from '../diagnostics/diagnostic.ts';
-import { KVARBOOK_ROOT } from '../installation.ts';
 import { parseStudy } from '../study/parse.ts';
+import { templateFile, templateFileName, templateNames } from './templateFiles.ts';
 import type { Terminal } from './terminal.ts';
-
-const TEMPLATE_SUFFIX = '.study.md';
-
-export function templateNames(): string[] {
-  return readdirSync(join(KVARBOOK_ROOT, 'templates'))
-    .filter((name) => name.endsWith(TEMPLATE_SUFFIX))
-    .map((name) => name.slice(0, -TEMPLATE_SUFFIX.length))
-    .sort();
-}
-
-function templateFile(name: string): string {
-  return join(KVARBOOK_ROOT, 'templates', `${name}${TEMPLATE_SUFFIX}`);
-}
 
 /**
  * What a template is for, in one line, from the template itself: the first sentence of the paragraph under its
  * "Purpose" heading, or its title when it has none.
  */
 export function templateSummary(name: string): string {
-  const file = `${name}${TEMPLATE_SUFFIX}`;
+  const file = templateFileName(name);
   const study = parseStudy(file, readFileSync(templateFile(name), 'utf8'));
   const tokens = study.bodyTokens;
   const heading = tokens.findIndex((token, index) => token.type === 'heading_open' && /^purpose\b/i.test(tokens[index + 1]?.content ?? ''));

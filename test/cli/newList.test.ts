@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { kvarbookInProcess, scratchFolder } from '../support/cli.ts';
-import { templateNames } from '../../src/cli/newCommand.ts';
+import { templateNames } from '../../src/cli/templateFiles.ts';
 
 const templateSource = (name: string) => readFileSync(resolve(import.meta.dirname, '../../templates', `${name}.study.md`), 'utf8');
 

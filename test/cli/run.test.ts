@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { kvarbook, kvarbookInProcess, scratchFolder } from '../support/cli.ts';
 import { lineOf, studyText } from '../support/studies.ts';
-import { templateNames } from '../../src/cli/newCommand.ts';
+import { templateNames } from '../../src/cli/templateFiles.ts';
 
 const goodStudy = studyText({ inputs: '  lineLength: 320 km', body: '```ts\nresult("length", inputs.lineLength.in("km"), { unit: "km" });\n```\n' });
 

@@ -3,7 +3,7 @@
 import { readFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { templateNames } from '../../src/cli/newCommand.ts';
+import { templateNames } from '../../src/cli/templateFiles.ts';
 import { parseStudy } from '../../src/study/parse.ts';
 import { type TemplateRun, runTemplate } from '../support/templateRun.ts';
 
