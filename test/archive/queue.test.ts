@@ -92,7 +92,10 @@ describe('a recheck spread over workers through a PostgreSQL job queue', () => {
     // The first worker creates the queue's tables in the empty database; the second starts once they exist.
     for (let count = 0; count < 2; count += 1) {
       workers.push(worker(set, workerArgs));
-      await vi.waitFor(() => expect(workers.every((running) => running.lines.includes('worker ready'))).toBe(true), { timeout: 60_000, interval: 100 });
+      await vi.waitFor(() => expect(workers.every((running) => running.lines.includes('worker ready'))).toBe(true), {
+        timeout: 60_000,
+        interval: 100,
+      });
     }
     const queued = await cli(['archive', 'recheck', '--all', ...shared, '--queue', database.url, '--job-seconds', '10']);
     expect(queued.stdout).toContain('4 of 4 studies put on the queue');
